@@ -1,0 +1,10 @@
+#!/usr/bin/env node
+// Runs a TypeScript file of the project (benchmarks, scripts) through tsx.
+import { register } from 'tsx/esm/api';
+import { pathToFileURL } from 'node:url';
+import { resolve } from 'node:path';
+
+register();
+const [file, ...rest] = process.argv.slice(2);
+process.argv = [process.argv[0], file, ...rest];
+await import(pathToFileURL(resolve(file)).href);

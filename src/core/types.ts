@@ -1,0 +1,148 @@
+// Shared types of the gatesmith library. Units: Hz and seconds everywhere
+// (see README "Conventions"); the factor 2*pi is applied inside the core only.
+
+/** A Bloch vector or rotation axis, (x, y, z). */
+export type Vec3 = [number, number, number];
+
+/** One member of an error ensemble: detuning (Hz), relative amplitude error, weight. */
+export interface Member {
+  detuning: number;
+  amplitudeError: number;
+  weight: number;
+}
+
+/** What a pulse must do: a gate (phase-insensitive) or a point-to-point state transfer. */
+export type Target =
+  | { kind: 'gate'; axis: Vec3; angleRad: number }
+  | { kind: 'state'; from: Vec3; to: Vec3 };
+
+/** How the drive-amplitude limit is held: the disc sqrt(I^2+Q^2) <= rabiMax, or a per-axis box. */
+export type AmplitudeBound = 'disc' | 'box';
+
+/** Hardware limits and penalties applied while designing. */
+export interface Constraints {
+  /** First and last samples held at zero amplitude. */
+  zeroEdges: boolean;
+  /** Weight of the sample-to-sample change penalty (dimensionless, 0 = off). */
+  smoothness: number;
+  /** The amplitude bound; 'box' lets the peak reach sqrt(2) rabiMax and must be asked for. */
+  bound: AmplitudeBound;
+}
+
+/** Optimiser settings. */
+export interface OptimizerSettings {
+  starts: number;
+  seed: number;
+  maxIterations: number;
+  /** Stop when the ensemble mean infidelity falls below this. */
+  targetInfidelity: number;
+  /** Stop when the gradient's infinity norm falls below this. */
+  gradientTolerance: number;
+  /** Wall-clock budget per design, seconds (Infinity = none). */
+  timeLimit: number;
+  /** L-BFGS memory (number of correction pairs). */
+  memory: number;
+}
+
+/** A validated, normalised design problem (what `parseSpec` returns). */
+export interface Problem {
+  target: Target;
+  /** Total duration (s). */
+  duration: number;
+  segments: number;
+  /** Segment length duration/segments (s). */
+  dt: number;
+  /** Peak Rabi frequency (Hz). */
+  rabiMax: number;
+  /** Ensemble members with weights normalised to sum 1. */
+  members: Member[];
+  constraints: Constraints;
+  optimizer: OptimizerSettings;
+}
+
+/** Metadata carried by a pulse file. */
+export interface PulseMetadata {
+  name?: string;
+  /** How the pulse was made: 'design', 'composite', 'import', ... */
+  origin?: string;
+  /** The design spec as given (JSON), when there is one. */
+  spec?: unknown;
+  /** Figures reached, as reported when the pulse was made. */
+  figures?: Record<string, number | string>;
+  [key: string]: unknown;
+}
+
+/** A piecewise-constant I/Q pulse: samples of length dt, Rabi frequencies in Hz. */
+export interface Pulse {
+  dt: number;
+  i: Float64Array;
+  q: Float64Array;
+  metadata: PulseMetadata;
+}
+
+/** Figures of one ensemble member. */
+export interface MemberFigure extends Member {
+  /** 1 - F (gate: phase-insensitive, F = |Tr(V^dag U)|^2/4; state: 1 - |<to|U|from>|^2). */
+  infidelity: number;
+}
+
+/** The result of evaluating a pulse on an ensemble. */
+export interface Evaluation {
+  members: MemberFigure[];
+  /** Weighted mean of the members' infidelities. */
+  meanInfidelity: number;
+  worstInfidelity: number;
+  /** Index into members of the worst one. */
+  worstIndex: number;
+}
+
+/** Why an optimiser run stopped. */
+export type StopReason =
+  | 'target-reached'
+  | 'gradient-tolerance'
+  | 'max-iterations'
+  | 'time-limit'
+  | 'stopped'
+  | 'line-search-failed';
+
+/** One progress report of a running design. */
+export interface Progress {
+  start: number;
+  iteration: number;
+  /** Weighted mean infidelity over the ensemble (penalty not included). */
+  meanInfidelity: number;
+  /** Objective minimised: mean infidelity plus the smoothness penalty. */
+  objective: number;
+  gradientNorm: number;
+  elapsedS: number;
+  /** The current samples, present when the caller asked for them (throttled). */
+  pulse?: { i: Float64Array; q: Float64Array };
+}
+
+/** The outcome of one optimiser start. */
+export interface StartResult {
+  start: number;
+  pulse: Pulse;
+  meanInfidelity: number;
+  objective: number;
+  iterations: number;
+  evaluations: number;
+  stopReason: StopReason;
+  elapsedS: number;
+}
+
+/** The outcome of a design: the best start, its evaluation, and every start. */
+export interface DesignResult {
+  pulse: Pulse;
+  evaluation: Evaluation;
+  best: StartResult;
+  starts: StartResult[];
+  elapsedS: number;
+}
+
+/** A uniform grid axis. */
+export interface GridAxis {
+  min: number;
+  max: number;
+  points: number;
+}
