@@ -1,0 +1,52 @@
+// The one place in the core that allocates: a bump arena above the static data.
+// JavaScript resets it per job and carves every buffer of the job from it, so the
+// hot loops never allocate and memory never fragments.
+//
+// Layout of one job (all f64, 16-byte aligned, sizes in elements):
+//
+//   +--------------------+  __heap_base
+//   | I[n]   Q[n]        |  pulse samples, Hz
+//   +--------------------+
+//   | scale[m]           |  1 + amplitude error of each member      (m padded to a
+//   | detuning[m]        |  Hz                                        multiple of 4 with
+//   | weight[m]          |  normalised, padding members weigh 0      copies of member 0)
+//   +--------------------+
+//   | target[8]          |  G = (u, v) then H = (u, v) as re, im pairs: the figure is
+//   |                    |  taken of W = G U H (gate: G = V^dag, H = 1; state: G, H rotate
+//   |                    |  the poles onto the target and initial states)
+//   +--------------------+
+//   | perMember[m]       |  infidelity of each member (output)
+//   | gradI[n] gradQ[n]  |  d(mean infidelity)/dI_k, /dQ_k (output, gradient jobs)
+//   | forward[8 n]       |  A_k = U_k ... U_1 H of one pair of members: per k the
+//   |                    |  v128 lanes (ur, ui, vr, vi), two members side by side
+//   +--------------------+
+//   | optimiser state    |  x, g, trial x, trial g, direction, S[M][P], Y[M][P], ...
+//   +--------------------+  arena top (grows memory as needed)
+
+let arenaStart: usize = 0;
+let arenaTop: usize = 0;
+
+/** Forget every buffer of the previous job. */
+export function arenaReset(): void {
+  if (arenaStart == 0) arenaStart = (__heap_base + 15) & ~(<usize>15);
+  arenaTop = arenaStart;
+}
+
+/** A 16-byte aligned block of `bytes` bytes, growing memory when needed; 0 when it cannot. */
+export function arenaAlloc(bytes: usize): usize {
+  if (arenaStart == 0) arenaReset();
+  const ptr = arenaTop;
+  const end = (ptr + bytes + 15) & ~(<usize>15);
+  const have = (<usize>memory.size()) << 16;
+  if (end > have) {
+    const pages = <i32>((end - have + 0xffff) >> 16);
+    if (memory.grow(pages) < 0) return 0;
+  }
+  arenaTop = end;
+  return ptr;
+}
+
+/** Bytes in use by the current job. */
+export function arenaUsed(): usize {
+  return arenaTop - arenaStart;
+}

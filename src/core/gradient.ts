@@ -1,0 +1,43 @@
+// The ensemble figure and its exact gradient from the wasm core, as plain arrays:
+// for tests against the oracle and for the benchmark (which re-runs a prepared job).
+import { checkPulse, encodeMembers, encodeTarget, targetMode } from './encode.ts';
+import type { Member, Pulse, Target } from './types.ts';
+import { getCore } from './wasm.ts';
+
+/** Figure and gradient of the weighted mean infidelity with respect to every sample (per Hz). */
+export interface FigureGradient {
+  mean: number;
+  perMember: Float64Array;
+  gradI: Float64Array;
+  gradQ: Float64Array;
+}
+
+/** A job placed in wasm memory once; `run` recomputes it (valid until the next core job). */
+export interface GradientJob {
+  run(): number;
+  result(): FigureGradient;
+}
+
+/** Place pulse, members and target in the core for repeated gradient evaluations. */
+export function prepareGradientJob(target: Target, pulse: Pulse, members: Member[]): GradientJob {
+  checkPulse(pulse);
+  const core = getCore();
+  const n = pulse.i.length;
+  const enc = encodeMembers(members, 4, true);
+  core.reset();
+  const iPtr = core.put(pulse.i), qPtr = core.put(pulse.q);
+  const sPtr = core.put(enc.scale), dPtr = core.put(enc.detuning), wPtr = core.put(enc.weight);
+  const tPtr = core.put(encodeTarget(target));
+  const outPtr = core.alloc(enc.padded), gIPtr = core.alloc(n), gQPtr = core.alloc(n), workPtr = core.alloc(16 * n);
+  const mode = targetMode(target);
+  const run = (): number => core.exports.ensembleGradient(iPtr, qPtr, n, pulse.dt, sPtr, dPtr, wPtr, enc.padded, tPtr, mode, outPtr, gIPtr, gQPtr, workPtr);
+  return {
+    run,
+    result: () => ({ mean: run(), perMember: core.read(outPtr, enc.count), gradI: core.read(gIPtr, n), gradQ: core.read(gQPtr, n) }),
+  };
+}
+
+/** Figure and exact gradient of a pulse on an ensemble (weights normalised). */
+export function figureAndGradient(target: Target, pulse: Pulse, members: Member[]): FigureGradient {
+  return prepareGradientJob(target, pulse, members).result();
+}

@@ -1,0 +1,220 @@
+// The wasm core against the plain-TypeScript oracle (tests/reference/oracle.ts), and
+// its gradients against central finite differences.
+import { describe, expect, it } from 'vitest';
+import { evaluateMembers } from '../../src/core/api.ts';
+import { encodeMembers, encodeTarget, targetMode } from '../../src/core/encode.ts';
+import { figureAndGradient } from '../../src/core/gradient.ts';
+import type { Member, Pulse, Target } from '../../src/core/types.ts';
+import { getCore } from '../../src/core/wasm.ts';
+import * as oracle from '../reference/oracle.ts';
+import { mulberry32 } from '../../src/core/start.ts';
+
+const rand = mulberry32(20261201);
+const uniform = (lo: number, hi: number): number => lo + (hi - lo) * rand();
+
+function randomPulse(n: number, dt: number, rabi: number, zeroEvery = 0): Pulse {
+  const i = new Float64Array(n), q = new Float64Array(n);
+  for (let k = 0; k < n; k++) {
+    if (zeroEvery && k % zeroEvery === 0) continue; // zero-drive samples
+    i[k] = uniform(-rabi, rabi);
+    q[k] = uniform(-rabi, rabi);
+  }
+  return { dt, i, q, metadata: {} };
+}
+
+function randomMembers(count: number, detuning: number, amp: number): Member[] {
+  return Array.from({ length: count }, () => ({ detuning: uniform(-detuning, detuning), amplitudeError: uniform(-amp, amp), weight: uniform(0.2, 1) }));
+}
+
+const targets: Target[] = [
+  { kind: 'gate', axis: [1, 0, 0], angleRad: Math.PI / 2 },
+  { kind: 'gate', axis: [0.3, -0.8, 0.5], angleRad: 2.1 },
+  { kind: 'state', from: [0, 0, 1], to: [1, 0, 0] },
+  { kind: 'state', from: [0.2, 0.5, -0.6], to: [-0.7, 0.1, 0.4] },
+];
+
+// Angles per segment: small (series only), about 1 (longest series) and well above 1
+// (halving and double-angle recovery), so every path of the kernels is exercised.
+const regimes = [
+  { name: 'small angles', dt: 2e-9, rabi: 1e7, det: 1e6 },
+  { name: 'angles near 1', dt: 1e-8, rabi: 2.5e7, det: 5e6 },
+  { name: 'angles above 1 (halving)', dt: 1e-6, rabi: 2e6, det: 5e5 },
+];
+
+describe('wasm figure against the oracle', () => {
+  for (const r of regimes) {
+    for (const target of targets) {
+      it(`${r.name}, ${target.kind} target: per-member infidelity within 1e-13`, () => {
+        const pulse = randomPulse(37, r.dt, r.rabi, 7);
+        const members = randomMembers(11, r.det, 0.2);
+        const got = evaluateMembers(target, pulse, members);
+        const want = oracle.ensembleFigure(target, pulse, members);
+        got.members.forEach((m, j) => expect(Math.abs(m.infidelity - want.perMember[j])).toBeLessThan(1e-13));
+        expect(Math.abs(got.meanInfidelity - want.mean)).toBeLessThan(1e-13);
+        expect(got.worstIndex).toBe(want.worstIndex);
+      });
+    }
+  }
+});
+
+describe('wasm gradient against the oracle and finite differences', () => {
+  for (const r of regimes) {
+    for (const target of targets) {
+      it(`${r.name}, ${target.kind} target: gradient agrees with the oracle to 1e-12 relative`, () => {
+        const pulse = randomPulse(23, r.dt, r.rabi, 5);
+        const members = randomMembers(7, r.det, 0.15);
+        const got = figureAndGradient(target, pulse, members);
+        const want = oracle.ensembleGradient(target, pulse, members);
+        const scale = Math.max(...want.gradI.map(Math.abs), ...want.gradQ.map(Math.abs));
+        for (let k = 0; k < pulse.i.length; k++) {
+          expect(Math.abs(got.gradI[k] - want.gradI[k]) / scale).toBeLessThan(1e-12);
+          expect(Math.abs(got.gradQ[k] - want.gradQ[k]) / scale).toBeLessThan(1e-12);
+        }
+        expect(Math.abs(got.mean - want.mean)).toBeLessThan(1e-13);
+      });
+    }
+  }
+
+  it('matches central finite differences of the wasm figure (relative error < 1e-6), zero-drive samples included', () => {
+    // Central differences: error O(h^2) (Nocedal & Wright, section 8.1).
+    for (const target of targets) {
+      const pulse = randomPulse(15, 2e-8, 5e6, 4);
+      const members = randomMembers(5, 1e6, 0.1);
+      const got = figureAndGradient(target, pulse, members);
+      const h = 100; // Hz, on samples of order 1e6 Hz: rounding error ~1e-16/h, truncation ~h^2
+      for (const channel of ['i', 'q'] as const) {
+        for (let k = 0; k < pulse.i.length; k++) {
+          const plus = { ...pulse, [channel]: pulse[channel].slice() } as Pulse;
+          const minus = { ...pulse, [channel]: pulse[channel].slice() } as Pulse;
+          plus[channel][k] += h;
+          minus[channel][k] -= h;
+          const fd = (evaluateMembers(target, plus, members).meanInfidelity - evaluateMembers(target, minus, members).meanInfidelity) / (2 * h);
+          const g = channel === 'i' ? got.gradI[k] : got.gradQ[k];
+          expect(Math.abs(g - fd)).toBeLessThan(1e-6 * Math.max(Math.abs(fd), 1e-9));
+        }
+      }
+    }
+  });
+});
+
+/** The optimiser's objective and its gradient with respect to the variables, from the core. */
+function objectiveAt(target: Target, n: number, dt: number, rabiMax: number, members: Member[],
+  opts: { box: boolean; zeroEdges: boolean; smoothness: number }, x: Float64Array): { f: number; g: Float64Array; i: Float64Array; q: Float64Array } {
+  const core = getCore();
+  const enc = encodeMembers(members, 4, true);
+  core.reset();
+  const iPtr = core.alloc(n), qPtr = core.alloc(n);
+  const sPtr = core.put(enc.scale), dPtr = core.put(enc.detuning), wPtr = core.put(enc.weight);
+  const tPtr = core.put(encodeTarget(target));
+  const outPtr = core.alloc(enc.padded), gI = core.alloc(n), gQ = core.alloc(n), work = core.alloc(16 * n);
+  const nVar = core.exports.problemSet(n, dt, rabiMax, opts.box ? 1 : 0, opts.zeroEdges ? 1 : 0, opts.smoothness, targetMode(target),
+    enc.padded, iPtr, qPtr, sPtr, dPtr, wPtr, tPtr, outPtr, gI, gQ, work);
+  expect(nVar).toBe(x.length);
+  const xPtr = core.put(x), gPtr = core.alloc(nVar);
+  const f = core.exports.objective(xPtr, gPtr);
+  return { f, g: core.read(gPtr, nVar), i: core.read(iPtr, n), q: core.read(qPtr, n) };
+}
+
+describe('design objective: bounded variables, penalty, chain rule', () => {
+  const cases = [
+    { box: false, zeroEdges: false, smoothness: 0 },
+    { box: false, zeroEdges: true, smoothness: 0.3 },
+    { box: true, zeroEdges: false, smoothness: 0.05 },
+  ];
+  for (const opts of cases) {
+    it(`gradient with respect to the variables matches central differences (${JSON.stringify(opts)})`, () => {
+      const n = 12;
+      const free = opts.zeroEdges ? n - 2 : n;
+      const x = new Float64Array(2 * free).map(() => uniform(-2, 2));
+      x[0] = 1e-4; x[1] = -2e-4; // a sample near zero amplitude exercises the tanh(r)/r series
+      const target: Target = { kind: 'gate', axis: [1, 0, 0], angleRad: Math.PI };
+      const members = randomMembers(6, 1e6, 0.1);
+      const at = objectiveAt(target, n, 1e-8, 1e7, members, opts, x);
+      const h = 1e-6;
+      for (let v = 0; v < x.length; v++) {
+        const xp = x.slice(), xm = x.slice();
+        xp[v] += h; xm[v] -= h;
+        const fd = (objectiveAt(target, n, 1e-8, 1e7, members, opts, xp).f - objectiveAt(target, n, 1e-8, 1e7, members, opts, xm).f) / (2 * h);
+        expect(Math.abs(at.g[v] - fd)).toBeLessThan(1e-6 * Math.max(Math.abs(fd), 1e-7));
+      }
+    });
+  }
+
+  it('never exceeds the bound, even for huge variables (disc: sqrt(I^2+Q^2) <= rabiMax; box: |I|,|Q| <= rabiMax)', () => {
+    const n = 8;
+    const x = Float64Array.from([40, 40, -1e6, 3, 1e300, -1e300, 0, 0, 25, -25, 18.5, 0.001, -30, 30, 7, 7]);
+    const members = [{ detuning: 0, amplitudeError: 0, weight: 1 }];
+    const target: Target = { kind: 'gate', axis: [1, 0, 0], angleRad: 1 };
+    const disc = objectiveAt(target, n, 1e-8, 1e7, members, { box: false, zeroEdges: false, smoothness: 0 }, x);
+    for (let k = 0; k < n; k++) expect(Math.hypot(disc.i[k], disc.q[k])).toBeLessThanOrEqual(1e7);
+    const box = objectiveAt(target, n, 1e-8, 1e7, members, { box: true, zeroEdges: false, smoothness: 0 }, x);
+    for (let k = 0; k < n; k++) {
+      expect(Math.abs(box.i[k])).toBeLessThanOrEqual(1e7);
+      expect(Math.abs(box.q[k])).toBeLessThanOrEqual(1e7);
+    }
+    // The box really is larger: its corner reaches sqrt(2) rabiMax (PHYSICS.md section 3).
+    expect(Math.hypot(box.i[0], box.q[0])).toBeGreaterThan(1.41e7);
+  });
+
+  it('holds zero edges at exactly zero', () => {
+    const n = 9;
+    const x = new Float64Array(2 * (n - 2)).map(() => uniform(-2, 2));
+    const r = objectiveAt({ kind: 'gate', axis: [0, 1, 0], angleRad: 1 }, n, 1e-8, 1e7, [{ detuning: 1e5, amplitudeError: 0, weight: 1 }],
+      { box: false, zeroEdges: true, smoothness: 0 }, x);
+    expect([r.i[0], r.q[0], r.i[n - 1], r.q[n - 1]]).toEqual([0, 0, 0, 0]);
+  });
+});
+
+describe('precision of small infidelities', () => {
+  it('a rectangular X(theta) under amplitude error eps gives sin^2(theta eps/2) down to 1e-20', () => {
+    // Closed form: the pulse is a rotation by theta (1+eps) about x, so W = R_x(theta eps)
+    // and 1 - F = sin^2(theta eps / 2) (PHYSICS.md sections 1-2).
+    const theta = Math.PI;
+    const n = 50, dt = 1e-9;
+    const rabi = theta / (2 * Math.PI * n * dt);
+    const pulse: Pulse = { dt, i: new Float64Array(n).fill(rabi), q: new Float64Array(n), metadata: {} };
+    for (const eps of [1e-3, 1e-6, 1e-9, 1e-10]) {
+      const got = evaluateMembers({ kind: 'gate', axis: [1, 0, 0], angleRad: theta }, pulse, [{ detuning: 0, amplitudeError: eps, weight: 1 }]);
+      const want = Math.sin((theta * eps) / 2) ** 2;
+      expect(got.meanInfidelity).toBeGreaterThan(0);
+      expect(Math.abs(got.meanInfidelity - want) / want).toBeLessThan(1e-5);
+    }
+  });
+
+  it('BB1 at amplitude error 1e-3 has infidelity of order 1e-18 (sixth order), positive', () => {
+    // Wimperis, J. Magn. Reson. A 109, 221 (1994): theta_0 pi_p1 2pi_3p1 pi_p1 with
+    // p1 = arccos(-theta/(4 pi)); its propagator error is O(eps^3), so 1 - F = O(eps^6).
+    const theta = Math.PI / 2;
+    const p1 = Math.acos(-theta / (4 * Math.PI));
+    const rabi = 1e7, dt = 1e-10;
+    const elements: [number, number][] = [[theta, 0], [Math.PI, p1], [2 * Math.PI, 3 * p1], [Math.PI, p1]];
+    const i: number[] = [], q: number[] = [];
+    for (const [angle, phase] of elements) {
+      const t = angle / (2 * Math.PI * rabi);
+      const samples = Math.ceil(t / dt - 1e-9);
+      const amp = angle / (2 * Math.PI * samples * dt);
+      for (let k = 0; k < samples; k++) { i.push(amp * Math.cos(phase)); q.push(amp * Math.sin(phase)); }
+    }
+    const pulse: Pulse = { dt, i: Float64Array.from(i), q: Float64Array.from(q), metadata: {} };
+    const target: Target = { kind: 'gate', axis: [1, 0, 0], angleRad: theta };
+    const at = (eps: number) => evaluateMembers(target, pulse, [{ detuning: 0, amplitudeError: eps, weight: 1 }]).meanInfidelity;
+    const f3 = at(1e-3);
+    expect(f3).toBeGreaterThan(1e-20);
+    expect(f3).toBeLessThan(1e-16);
+    const slope = Math.log(at(2e-3) / f3) / Math.log(2);
+    expect(slope).toBeGreaterThan(5.9);
+    expect(slope).toBeLessThan(6.1);
+    // And the oracle agrees on the value to 1e-6 relative.
+    const ref = oracle.memberInfidelity(target, pulse, { detuning: 0, amplitudeError: 1e-3, weight: 1 });
+    expect(Math.abs(f3 - ref) / ref).toBeLessThan(1e-6);
+  });
+
+  it('stays unitary over 10^5 segments: the ideal-pulse infidelity of a full rotation stays at rounding level', () => {
+    // Unitarity of products (PHYSICS.md section 1): 10^5 segments of a 2 pi rotation in total.
+    const n = 100000, dt = 1e-9;
+    const rabi = 1 / (n * dt);
+    const pulse: Pulse = { dt, i: new Float64Array(n).fill(rabi), q: new Float64Array(n), metadata: {} };
+    const got = evaluateMembers({ kind: 'gate', axis: [1, 0, 0], angleRad: 2 * Math.PI }, pulse, [{ detuning: 0, amplitudeError: 0, weight: 1 }]);
+    expect(got.meanInfidelity).toBeLessThan(1e-20);
+  });
+});
