@@ -138,7 +138,14 @@ export function ensembleFigure(
 /**
  * Weighted mean infidelity (returned), each member's infidelity (out[m]) and the exact
  * gradient of the mean with respect to every sample (gradI[n], gradQ[n], per Hz).
- * m must be even; work holds 8 n f64.
+ * m must be even; work holds 6 n f64.
+ *
+ * The backward sweep carries only the vector part m of M_k = R_{k+1} L_k (and m' of
+ * M'_k = R_{k+1} K L_k for states): M_{k-1} = U_k^dag M_k U_k is a rotation of m,
+ *   m <- (cos^2 a - sin^2 a) m + 2 cos a (m x w) + 2 (m . w) w,   w = S b,
+ * and with dU/dbx U^dag = -i g_x . sigma (traceless, since U stays in SU(2)),
+ *   Tr(dU/dbx P_k) = -2 g_x . m,   g_x = bx (S^2 + C T) b + C S e_x - S^2 (e_x x b)
+ * (likewise for y). So the gradient needs no stored products, only cos a, S, T.
  */
 export function ensembleGradient(
   iPtr: usize, qPtr: usize, n: i32, dt: f64,
@@ -172,49 +179,9 @@ export function ensembleGradient(
     const bz = vmul(ld(detPtr, j), vsplat(c));
     const bz2 = vmul(bz, bz);
 
-    // Forward sweep: store R_k = U_{k-1} ... U_1 H before applying U_k.
+    // Forward sweep: the product A = U_n ... U_1 H; cos a, S and T kept per segment.
     let aur = hur, aui = hui, avr = hvr, avi = hvi;
     for (let k = 0; k < n; k++) {
-      const slot = workPtr + (<usize>k << 6);
-      v128.store(slot, aur); v128.store(slot, aui, 16); v128.store(slot, avr, 32); v128.store(slot, avi, 48);
-      const iS = load<f64>(iPtr + (<usize>k << 3));
-      const qS = load<f64>(qPtr + (<usize>k << 3));
-      let x = vmad(s2, vsplat(c2 * (iS * iS + qS * qS)), bz2);
-      if (halv > 0) x = vmul(x, reduce);
-      let co = seriesCos(x, terms);
-      let si = seriesSinc(x, terms);
-      for (let h = 0; h < halv; h++) {
-        const nc = vsub(one, vmul(vmul(two, x), vmul(si, si)));
-        si = vmul(si, co); co = nc; x = vmul(x, four);
-      }
-      const sig = vmul(si, cs);
-      const uur = co, uui = vneg(vmul(si, bz)), uvr = vmul(sig, vsplat(qS)), uvi = vneg(vmul(sig, vsplat(iS)));
-      const nur = qmulUr(uur, uui, uvr, uvi, aur, aui, avr, avi);
-      const nui = qmulUi(uur, uui, uvr, uvi, aur, aui, avr, avi);
-      const nvr = qmulVr(uur, uui, uvr, uvi, aur, aui, avr, avi);
-      const nvi = qmulVi(uur, uui, uvr, uvi, aur, aui, avr, avi);
-      aur = nur; aui = nui; avr = nvr; avi = nvi;
-    }
-    const wur = qmulUr(gur, gui, gvr, gvi, aur, aui, avr, avi);
-    const wui = qmulUi(gur, gui, gvr, gvi, aur, aui, avr, avi);
-    const wvr = qmulVr(gur, gui, gvr, gvi, aur, aui, avr, avi);
-    const wvi = qmulVi(gur, gui, gvr, gvi, aur, aui, avr, avi);
-    let fig = vadd(vmul(wvr, wvr), vmul(wvi, wvi));
-    if (mode == MODE_GATE) fig = vmad(wui, wui, fig);
-    v128.store(outPtr + (<usize>j << 3), fig);
-    const w = ld(wPtr, j);
-    mean += vsum(vmul(fig, w));
-    // Chain factors: weight * d(1-F)/d(uW) * d b / d(I or Q) = w * (-uW) * c (1+eps).
-    const wcs = vmul(w, cs);
-    // Tr(dU P) = 2 (...) below, so the factor -uW Tr(dU P) becomes -2 uW (...).
-    const fa = vneg(vmul(vadd(wcs, wcs), wur));
-    const fb = mode == MODE_STATE ? vneg(vmul(vadd(wcs, wcs), wui)) : zero;
-
-    // Backward sweep: L starts at G and absorbs U_k after segment k is done.
-    let lur = gur, lui = gui, lvr = gvr, lvi = gvi;
-    for (let k = n - 1; k >= 0; k--) {
-      const slot = workPtr + (<usize>k << 6);
-      const rur = v128.load(slot), rui = v128.load(slot, 16), rvr = v128.load(slot, 32), rvi = v128.load(slot, 48);
       const iS = load<f64>(iPtr + (<usize>k << 3));
       const qS = load<f64>(qPtr + (<usize>k << 3));
       const full = vmad(s2, vsplat(c2 * (iS * iS + qS * qS)), bz2);
@@ -235,43 +202,83 @@ export function ensembleGradient(
         const pos = f64x2.gt(full, zero);
         tt = v128.bitselect(f64x2.div(vsub(co, si), v128.bitselect(full, one, pos)), third, pos);
       }
+      const slot = workPtr + <usize>k * 48;
+      v128.store(slot, co); v128.store(slot, si, 16); v128.store(slot, tt, 32);
+      const sig = vmul(si, cs);
+      const uur = co, uui = vneg(vmul(si, bz)), uvr = vmul(sig, vsplat(qS)), uvi = vneg(vmul(sig, vsplat(iS)));
+      const nur = qmulUr(uur, uui, uvr, uvi, aur, aui, avr, avi);
+      const nui = qmulUi(uur, uui, uvr, uvi, aur, aui, avr, avi);
+      const nvr = qmulVr(uur, uui, uvr, uvi, aur, aui, avr, avi);
+      const nvi = qmulVi(uur, uui, uvr, uvi, aur, aui, avr, avi);
+      aur = nur; aui = nui; avr = nvr; avi = nvi;
+    }
+    const wur = qmulUr(gur, gui, gvr, gvi, aur, aui, avr, avi);
+    const wui = qmulUi(gur, gui, gvr, gvi, aur, aui, avr, avi);
+    const wvr = qmulVr(gur, gui, gvr, gvi, aur, aui, avr, avi);
+    const wvi = qmulVi(gur, gui, gvr, gvi, aur, aui, avr, avi);
+    let fig = vadd(vmul(wvr, wvr), vmul(wvi, wvi));
+    if (mode == MODE_GATE) fig = vmad(wui, wui, fig);
+    v128.store(outPtr + (<usize>j << 3), fig);
+    const w = ld(wPtr, j);
+    mean += vsum(vmul(fig, w));
+    // d(1-F)/dI = w (1+eps) c * (-uW_r Tr(dU P) - uW_i Tr(dU P')) = 2 w c (1+eps) (uW_r g.m + uW_i g.m').
+    const wcs2 = vmul(vadd(w, w), cs);
+    const fa = vmul(wcs2, wur);
+    const fb = vmul(wcs2, wui);
+    // m from M_{n-1} = A G; m' from A K G (K = -i sz: A K = (ui, -ur, vi, -vr)).
+    // Vector part of (ur, ui, vr, vi) = m0 - i m.sigma is m = (-vi, vr, -ui).
+    let mx = vneg(qmulVi(aur, aui, avr, avi, gur, gui, gvr, gvi));
+    let my = qmulVr(aur, aui, avr, avi, gur, gui, gvr, gvi);
+    let mz = vneg(qmulUi(aur, aui, avr, avi, gur, gui, gvr, gvi));
+    const kur = aui, kui = vneg(aur), kvr = avi, kvi = vneg(avr);
+    let px = vneg(qmulVi(kur, kui, kvr, kvi, gur, gui, gvr, gvi));
+    let py = qmulVr(kur, kui, kvr, kvi, gur, gui, gvr, gvi);
+    let pz = vneg(qmulUi(kur, kui, kvr, kvi, gur, gui, gvr, gvi));
+
+    for (let k = n - 1; k >= 0; k--) {
+      const slot = workPtr + <usize>k * 48;
+      const co = v128.load(slot), si = v128.load(slot, 16), tt = v128.load(slot, 32);
+      const iS = load<f64>(iPtr + (<usize>k << 3));
+      const qS = load<f64>(qPtr + (<usize>k << 3));
       const bx = vmul(cs, vsplat(iS));
       const by = vmul(cs, vsplat(qS));
-      // P = R L
-      const pur = qmulUr(rur, rui, rvr, rvi, lur, lui, lvr, lvi);
-      const pui = qmulUi(rur, rui, rvr, rvi, lur, lui, lvr, lvi);
-      const pvr = qmulVr(rur, rui, rvr, rvi, lur, lui, lvr, lvi);
-      const pvi = qmulVi(rur, rui, rvr, rvi, lur, lui, lvr, lvi);
-      // Tr(dU/dbx P)/2 = bx g + S pvi,  Tr(dU/dby P)/2 = by g - S pvr, with
-      // g = T (bz pui - by pvr + bx pvi) - S pur  (qtrace of the dU/db components above).
-      const beta = vadd(vsub(vmul(bz, pui), vmul(by, pvr)), vmul(bx, pvi));
-      const gam = vsub(vmul(tt, beta), vmul(si, pur));
-      let gI = vmul(fa, vmad(bx, gam, vmul(si, pvi)));
-      let gQ = vmul(fa, vsub(vmul(by, gam), vmul(si, pvr)));
+      const ss = vmul(si, si);
+      const kap = vmad(co, tt, ss);
+      const csn = vmul(co, si);
+      // g_x . m and g_y . m
+      const bm = vmad(bx, mx, vmad(by, my, vmul(bz, mz)));
+      const kbm = vmul(kap, bm);
+      const gxm = vmad(bx, kbm, vmad(csn, mx, vmul(ss, vsub(vmul(bz, my), vmul(by, mz)))));
+      const gym = vmad(by, kbm, vmad(csn, my, vmul(ss, vsub(vmul(bx, mz), vmul(bz, mx)))));
+      let gI = vmul(fa, gxm);
+      let gQ = vmul(fa, gym);
+      // w = S b; rotation coefficients
+      const wx = vmul(si, bx), wy = vmul(si, by), wz = vmul(si, bz);
+      const c2a = vsub(vmul(co, co), vmul(ss, vmad(bx, bx, vmad(by, by, vmul(bz, bz)))));
+      const c2c = vadd(co, co);
+      {
+        const mw = vmad(mx, wx, vmad(my, wy, vmul(mz, wz)));
+        const mw2 = vadd(mw, mw);
+        const nx = vmad(c2a, mx, vmad(c2c, vsub(vmul(my, wz), vmul(mz, wy)), vmul(mw2, wx)));
+        const ny = vmad(c2a, my, vmad(c2c, vsub(vmul(mz, wx), vmul(mx, wz)), vmul(mw2, wy)));
+        const nz = vmad(c2a, mz, vmad(c2c, vsub(vmul(mx, wy), vmul(my, wx)), vmul(mw2, wz)));
+        mx = nx; my = ny; mz = nz;
+      }
       if (mode == MODE_STATE) {
-        // P' = (R K) L with R K = (ui, -ur, vi, -vr)
-        const kur = rui, kui = vneg(rur), kvr = rvi, kvi = vneg(rvr);
-        const qur = qmulUr(kur, kui, kvr, kvi, lur, lui, lvr, lvi);
-        const qui = qmulUi(kur, kui, kvr, kvi, lur, lui, lvr, lvi);
-        const qvr = qmulVr(kur, kui, kvr, kvi, lur, lui, lvr, lvi);
-        const qvi = qmulVi(kur, kui, kvr, kvi, lur, lui, lvr, lvi);
-        const beta2 = vadd(vsub(vmul(bz, qui), vmul(by, qvr)), vmul(bx, qvi));
-        const gam2 = vsub(vmul(tt, beta2), vmul(si, qur));
-        gI = vmad(fb, vmad(bx, gam2, vmul(si, qvi)), gI);
-        gQ = vmad(fb, vsub(vmul(by, gam2), vmul(si, qvr)), gQ);
+        const pbm = vmul(kap, vmad(bx, px, vmad(by, py, vmul(bz, pz))));
+        gI = vmad(fb, vmad(bx, pbm, vmad(csn, px, vmul(ss, vsub(vmul(bz, py), vmul(by, pz))))), gI);
+        gQ = vmad(fb, vmad(by, pbm, vmad(csn, py, vmul(ss, vsub(vmul(bx, pz), vmul(bz, px))))), gQ);
+        const pw = vmad(px, wx, vmad(py, wy, vmul(pz, wz)));
+        const pw2 = vadd(pw, pw);
+        const nx = vmad(c2a, px, vmad(c2c, vsub(vmul(py, wz), vmul(pz, wy)), vmul(pw2, wx)));
+        const ny = vmad(c2a, py, vmad(c2c, vsub(vmul(pz, wx), vmul(px, wz)), vmul(pw2, wy)));
+        const nz = vmad(c2a, pz, vmad(c2c, vsub(vmul(px, wy), vmul(py, wx)), vmul(pw2, wz)));
+        px = nx; py = ny; pz = nz;
       }
       const gIp = gradIPtr + (<usize>k << 3);
       const gQp = gradQPtr + (<usize>k << 3);
       store<f64>(gIp, load<f64>(gIp) + vsum(gI));
       store<f64>(gQp, load<f64>(gQp) + vsum(gQ));
-      // L = L U_k
-      const sig = vmul(si, cs);
-      const uur = co, uui = vneg(vmul(si, bz)), uvr = vmul(sig, vsplat(qS)), uvi = vneg(vmul(sig, vsplat(iS)));
-      const nur = qmulUr(lur, lui, lvr, lvi, uur, uui, uvr, uvi);
-      const nui = qmulUi(lur, lui, lvr, lvi, uur, uui, uvr, uvi);
-      const nvr = qmulVr(lur, lui, lvr, lvi, uur, uui, uvr, uvi);
-      const nvi = qmulVi(lur, lui, lvr, lvi, uur, uui, uvr, uvi);
-      lur = nur; lui = nui; lvr = nvr; lvi = nvi;
     }
   }
   return mean;

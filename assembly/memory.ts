@@ -17,8 +17,9 @@
 //   +--------------------+
 //   | perMember[m]       |  infidelity of each member (output)
 //   | gradI[n] gradQ[n]  |  d(mean infidelity)/dI_k, /dQ_k (output, gradient jobs)
-//   | forward[8 n]       |  A_k = U_k ... U_1 H of one pair of members: per k the
-//   |                    |  v128 lanes (ur, ui, vr, vi), two members side by side
+//   | series[6 n]        |  cos a, S = sin(a)/a, T of each segment for one pair of
+//   |                    |  members (three v128 per segment), kept by the forward
+//   |                    |  sweep of a gradient for its backward sweep
 //   +--------------------+
 //   | optimiser state    |  x, g, trial x, trial g, direction, S[M][P], Y[M][P], ...
 //   +--------------------+  arena top (grows memory as needed)

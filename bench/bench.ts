@@ -1,0 +1,122 @@
+// The benchmark: speed figures measured in one run, printed as a table (or one JSON
+// object with --json). Never a test: figures vary 10-30 % with the machine's load.
+//   npm run bench            table for people
+//   npm run bench -- --json  {"objectiveGradient": [...], "design": [...], "maps": [...], ...}
+import { readFileSync, readdirSync } from 'node:fs';
+import { design, evaluateMembers, robustnessMap } from '../src/core/api.ts';
+import { prepareGradientJob } from '../src/core/gradient.ts';
+import type { Member, Pulse, Target } from '../src/core/types.ts';
+import { getCore } from '../src/core/wasm.ts';
+import { ensembleGradient as oracleGradient, memberInfidelity } from '../tests/reference/oracle.ts';
+
+const json = process.argv.includes('--json');
+const log = (text: string): void => {
+  if (!json) process.stdout.write(text + '\n');
+};
+
+/** Median of `reps` timings (ms) after `warm` untimed calls. */
+function median(fn: () => void, reps: number, warm = 3): number {
+  for (let k = 0; k < warm; k++) fn();
+  const times: number[] = [];
+  for (let k = 0; k < reps; k++) {
+    const t = performance.now();
+    fn();
+    times.push(performance.now() - t);
+  }
+  times.sort((a, b) => a - b);
+  return times[Math.floor(times.length / 2)];
+}
+
+/** Repetitions so that one figure takes about `budgetMs`. */
+function repsFor(fn: () => void, budgetMs: number): number {
+  const t = performance.now();
+  fn();
+  const once = Math.max(performance.now() - t, 1e-3);
+  return Math.max(5, Math.min(2000, Math.round(budgetMs / once)));
+}
+
+function gridMembers(count: number): Member[] {
+  const side = Math.round(Math.sqrt(count));
+  if (side * side !== count) return Array.from({ length: count }, () => ({ detuning: 0, amplitudeError: 0, weight: 1 }));
+  const out: Member[] = [];
+  for (let a = 0; a < side; a++) {
+    for (let d = 0; d < side; d++) {
+      const fa = side === 1 ? 0 : a / (side - 1) - 0.5, fd = side === 1 ? 0 : d / (side - 1) - 0.5;
+      out.push({ detuning: 2e6 * fd, amplitudeError: 0.2 * fa, weight: 1 });
+    }
+  }
+  return out;
+}
+
+function smoothPulse(n: number, duration: number, rabi: number): Pulse {
+  const i = new Float64Array(n), q = new Float64Array(n);
+  for (let k = 0; k < n; k++) {
+    const t = (k + 0.5) / n;
+    i[k] = 0.7 * rabi * Math.sin(Math.PI * t) * Math.cos(5 * t);
+    q[k] = 0.5 * rabi * Math.sin(3 * Math.PI * t);
+  }
+  return { dt: duration / n, i, q, metadata: {} };
+}
+
+const gate: Target = { kind: 'gate', axis: [1, 0, 0], angleRad: Math.PI / 2 };
+
+// 1. Objective + gradient, wasm against the plain-TS oracle.
+log('objective + exact gradient (mean infidelity over the ensemble), medians');
+log('segments  members   wasm ms    TS ms   TS/wasm   ns per segment-member (wasm)');
+const objectiveGradient: { segments: number; members: number; wasmMs: number; tsMs: number; ratio: number; nsPerSegmentMember: number }[] = [];
+for (const segments of [100, 1000]) {
+  for (const count of [1, 25, 121]) {
+    const members = gridMembers(count);
+    const pulse = smoothPulse(segments, 2e-7 * (segments / 100), 1e7);
+    const job = prepareGradientJob(gate, pulse, members);
+    const wasmMs = median(() => job.run(), repsFor(() => job.run(), 300));
+    const tsRun = (): void => void oracleGradient(gate, pulse, members);
+    const tsMs = median(tsRun, Math.min(30, repsFor(tsRun, 300)), 1);
+    const row = { segments, members: count, wasmMs, tsMs, ratio: tsMs / wasmMs, nsPerSegmentMember: (wasmMs * 1e6) / (segments * count) };
+    objectiveGradient.push(row);
+    log(`${String(segments).padStart(8)}  ${String(count).padStart(7)}  ${wasmMs.toFixed(4).padStart(8)}  ${tsMs.toFixed(3).padStart(7)}  ${row.ratio.toFixed(1).padStart(8)}   ${row.nsPerSegmentMember.toFixed(2)}`);
+  }
+}
+
+// 2. Robustness maps (figure only).
+log('\nrobustness maps (figure only), medians');
+log('grid        segments   ms        ns per member-segment');
+const maps: { detuningPoints: number; amplitudePoints: number; segments: number; ms: number; nsPerMemberSegment: number }[] = [];
+for (const [side, segments, reps] of [[101, 200, 15], [201, 200, 5], [401, 1000, 3]] as const) {
+  const pulse = smoothPulse(segments, 2e-7 * (segments / 100), 1e7);
+  const axisD = { min: -2e6, max: 2e6, points: side }, axisA = { min: -0.2, max: 0.2, points: side };
+  const ms = median(() => void robustnessMap(gate, pulse, axisD, axisA), reps, 1);
+  const row = { detuningPoints: side, amplitudePoints: side, segments, ms, nsPerMemberSegment: (ms * 1e6) / (side * side * segments) };
+  maps.push(row);
+  log(`${`${side} x ${side}`.padEnd(11)} ${String(segments).padStart(8)}   ${ms.toFixed(2).padStart(8)}   ${row.nsPerMemberSegment.toFixed(2)}`);
+}
+
+// 3. Accuracy of the series sine/cosine of the kernels against the exact oracle.
+const accuracyPulse = smoothPulse(200, 4e-7, 1e7);
+const accuracyMembers = gridMembers(121);
+const fast = evaluateMembers(gate, accuracyPulse, accuracyMembers);
+let maxAbs = 0;
+fast.members.forEach((m, j) => {
+  maxAbs = Math.max(maxAbs, Math.abs(m.infidelity - memberInfidelity(gate, accuracyPulse, accuracyMembers[j])));
+});
+log(`\nseries sine/cosine against Math.sin/cos (oracle), 121 members x 200 segments: max |difference in infidelity| = ${maxAbs.toExponential(2)} (series terms used: ${getCore().exports.currentSeriesTerms()})`);
+
+// 4. Designs of the demo specs.
+log('\ndemo designs (whole design(), every start, one thread)');
+log('name                       wall s   mean infidelity   worst infidelity   iterations (best start)');
+const designs: { name: string; wallS: number; meanInfidelity: number; worstInfidelity: number; iterations: number; starts: number }[] = [];
+const exampleDir = new URL('../examples/', import.meta.url);
+for (const file of readdirSync(exampleDir).filter((f) => f.endsWith('.json')).sort()) {
+  const spec = JSON.parse(readFileSync(new URL(file, exampleDir), 'utf8'));
+  await design(spec, { startIndices: [0] }); // warm-up
+  const t = performance.now();
+  const r = await design(spec);
+  const wallS = (performance.now() - t) / 1000;
+  const row = { name: file.replace(/\.json$/, ''), wallS, meanInfidelity: r.evaluation.meanInfidelity, worstInfidelity: r.evaluation.worstInfidelity, iterations: r.best.iterations, starts: r.starts.length };
+  designs.push(row);
+  log(`${row.name.padEnd(26)} ${wallS.toFixed(3).padStart(6)}   ${row.meanInfidelity.toExponential(2).padStart(15)}   ${row.worstInfidelity.toExponential(2).padStart(16)}   ${row.iterations}`);
+}
+
+if (json) {
+  process.stdout.write(JSON.stringify({ objectiveGradient, design: designs, maps, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs } }) + '\n');
+}

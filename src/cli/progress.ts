@@ -1,0 +1,65 @@
+// Progress of a design on stderr: a bar redrawn in place on a terminal, otherwise a plain
+// line now and then (logs and CI keep every line, so they must stay few).
+import type { Progress } from '../core/types.ts';
+import type { CliIO } from './command.ts';
+import { formatInfidelity } from './format.ts';
+
+/** Redraws of the bar are at most this often (ms): a terminal cannot show more. */
+const BAR_EVERY_MS = 100;
+/** Plain lines are at most this often (ms), plus one when a new start begins. */
+const LINE_EVERY_MS = 2000;
+const BAR_WIDTH = 24;
+
+/** Receives the design's progress reports and draws them; `finish` clears the bar. */
+export interface ProgressReporter {
+  update: (progress: Progress) => void;
+  finish: () => void;
+}
+
+/** A reporter for a design of `starts` starts of at most `maxIterations` iterations each. */
+export function progressReporter(io: CliIO, starts: number, maxIterations: number, now = () => performance.now()): ProgressReporter {
+  // Iterations done per start: the fraction stays right whether starts run one after
+  // another or interleaved.
+  const iterations = new Map<number, number>();
+  let best = Infinity;
+  let lastDraw = -Infinity;
+  let lastStart = -1;
+  let drawn = false;
+  const total = starts * maxIterations;
+
+  const describe = (p: Progress): { fraction: number; percent: string; text: string } => {
+    let done = 0;
+    for (const it of iterations.values()) done += Math.min(it, maxIterations);
+    const fraction = Math.min(1, done / total);
+    const percent = `${Math.floor(fraction * 100)}%`.padStart(4);
+    const text = `start ${p.start + 1}/${starts}  iteration ${p.iteration}  infidelity ${formatInfidelity(p.meanInfidelity)}  best ${formatInfidelity(best)}`;
+    return { fraction, percent, text };
+  };
+
+  return {
+    update(p) {
+      iterations.set(p.start, p.iteration);
+      if (p.meanInfidelity < best) best = p.meanInfidelity;
+      const t = now();
+      const newStart = p.start !== lastStart;
+      lastStart = p.start;
+      const info = describe(p);
+      if (io.isTTY) {
+        if (t - lastDraw < BAR_EVERY_MS && !newStart) return;
+        const filled = Math.round(info.fraction * BAR_WIDTH);
+        const bar = '#'.repeat(filled) + '-'.repeat(BAR_WIDTH - filled);
+        // \x1b[K clears what a longer previous line left behind.
+        io.stderr(`\r[${bar}] ${info.percent}  ${info.text}\x1b[K`);
+        drawn = true;
+      } else {
+        if (t - lastDraw < LINE_EVERY_MS && !newStart) return;
+        io.stderr(`design ${info.percent.trim()}  ${info.text}\n`);
+      }
+      lastDraw = t;
+    },
+    finish() {
+      if (drawn) io.stderr('\r\x1b[K');
+      drawn = false;
+    },
+  };
+}

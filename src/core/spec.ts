@@ -1,0 +1,109 @@
+// The design spec: JSON as users write it (camelCase, Hz and seconds) validated into a
+// Problem. Every error is a SpecError naming the dotted field, the value and what is allowed;
+// unknown keys are rejected so that a typo cannot silently fall back to a default.
+// The format is described for users in docs/spec.md.
+import { SpecError } from './errors.ts';
+import { parseEnsemble } from './spec-ensemble.ts';
+import { childPath, readBoolean, readChoice, readNumber, readObject, readText, readUnitVector } from './spec-fields.ts';
+import type { Constraints, OptimizerSettings, Problem, Target } from './types.ts';
+
+/** Most segments a pulse may have. */
+export const MAX_SEGMENTS = 100000;
+
+/** Defaults of the optional `constraints` fields. */
+export const DEFAULT_CONSTRAINTS: Readonly<Constraints> = { zeroEdges: false, smoothness: 0, bound: 'disc' };
+
+/** Defaults of the optional `optimizer` fields. */
+export const DEFAULT_OPTIMIZER: Readonly<OptimizerSettings> = {
+  starts: 4,
+  seed: 1,
+  maxIterations: 500,
+  // Well below what a robust pulse reaches over a real ensemble: runs normally end on the
+  // gradient tolerance or the iteration budget, and stop early only when effectively exact.
+  targetInfidelity: 1e-10,
+  gradientTolerance: 1e-12,
+  timeLimit: Infinity,
+  memory: 12,
+};
+
+const TOP_KEYS = ['name', 'description', 'target', 'duration', 'segments', 'rabiMax', 'ensemble', 'constraints', 'optimizer'];
+
+/** Validates a design spec (parsed JSON) and returns the normalised problem. */
+export function parseSpec(json: unknown): Problem {
+  const spec = readObject(json, '', TOP_KEYS, 'a design spec');
+  readText(spec, 'name', '');
+  readText(spec, 'description', '');
+  const target = parseTarget(spec.target);
+  const duration = readNumber(spec, 'duration', '', { min: 0, minExclusive: true, unit: 's' });
+  const segments = readNumber(spec, 'segments', '', { integer: true, min: 1, max: MAX_SEGMENTS });
+  const rabiMax = readNumber(spec, 'rabiMax', '', { min: 0, minExclusive: true, unit: 'Hz' });
+  const dt = duration / segments;
+  if (!(dt > 0)) throw new SpecError('duration', duration, `long enough that duration / segments (${segments}) is > 0 s`);
+  const members = parseEnsemble(spec.ensemble);
+  const constraints = parseConstraints(spec.constraints, segments);
+  const optimizer = parseOptimizer(spec.optimizer);
+  return { target, duration, segments, dt, rabiMax, members, constraints, optimizer };
+}
+
+/** Parses spec text (a file's contents) as JSON, turning a syntax error into a SpecError. */
+export function specJsonFromText(text: string): unknown {
+  try {
+    return JSON.parse(text);
+  } catch (error) {
+    const reason = error instanceof Error ? error.message : String(error);
+    throw new SpecError('spec', text.trim().slice(0, 30), `the spec must be valid JSON (${reason})`);
+  }
+}
+
+function parseTarget(value: unknown): Target {
+  const path = 'target';
+  const obj = readObject(value, path, ['gate', 'state'], 'the target');
+  if ((obj.gate === undefined) === (obj.state === undefined)) {
+    throw new SpecError(path, value, 'exactly one of {"gate": {"axis", "angleDeg"}} or {"state": {"from", "to"}}');
+  }
+  if (obj.gate !== undefined) {
+    const gatePath = childPath(path, 'gate');
+    const gate = readObject(obj.gate, gatePath, ['axis', 'angleDeg'], 'a gate target');
+    const axis = readUnitVector(gate, 'axis', gatePath);
+    const angleDeg = readNumber(gate, 'angleDeg', gatePath, { unit: 'degrees' });
+    return { kind: 'gate', axis, angleRad: (angleDeg * Math.PI) / 180 };
+  }
+  const statePath = childPath(path, 'state');
+  const state = readObject(obj.state, statePath, ['from', 'to'], 'a state target');
+  return { kind: 'state', from: readUnitVector(state, 'from', statePath), to: readUnitVector(state, 'to', statePath) };
+}
+
+function parseConstraints(value: unknown, segments: number): Constraints {
+  const path = 'constraints';
+  if (value === undefined) return { ...DEFAULT_CONSTRAINTS };
+  const obj = readObject(value, path, ['zeroEdges', 'smoothness', 'amplitudeBound'], 'the constraints');
+  const zeroEdges = readBoolean(obj, 'zeroEdges', path, DEFAULT_CONSTRAINTS.zeroEdges);
+  // With fewer than three samples, zero edges would leave no sample free to drive.
+  if (zeroEdges && segments < 3) {
+    throw new SpecError(childPath(path, 'zeroEdges'), zeroEdges, `false when segments (${segments}) < 3: zero edges need a free sample between them`);
+  }
+  return {
+    zeroEdges,
+    smoothness: readNumber(obj, 'smoothness', path, { min: 0 }, DEFAULT_CONSTRAINTS.smoothness),
+    bound: readChoice(obj, 'amplitudeBound', path, ['disc', 'box'] as const, DEFAULT_CONSTRAINTS.bound),
+  };
+}
+
+function parseOptimizer(value: unknown): OptimizerSettings {
+  const path = 'optimizer';
+  if (value === undefined) return { ...DEFAULT_OPTIMIZER };
+  const keys = ['starts', 'seed', 'maxIterations', 'targetInfidelity', 'gradientTolerance', 'timeLimit', 'memory'];
+  const obj = readObject(value, path, keys, 'the optimizer settings');
+  const d = DEFAULT_OPTIMIZER;
+  return {
+    starts: readNumber(obj, 'starts', path, { integer: true, min: 1, max: 64 }, d.starts),
+    // A 32-bit unsigned seed fits every generator the core may use.
+    seed: readNumber(obj, 'seed', path, { integer: true, min: 0, max: 4294967295 }, d.seed),
+    maxIterations: readNumber(obj, 'maxIterations', path, { integer: true, min: 1, max: 100000 }, d.maxIterations),
+    targetInfidelity: readNumber(obj, 'targetInfidelity', path, { min: 0, max: 1 }, d.targetInfidelity),
+    gradientTolerance: readNumber(obj, 'gradientTolerance', path, { min: 0 }, d.gradientTolerance),
+    // null is accepted as "no limit" because JSON cannot spell Infinity.
+    timeLimit: obj.timeLimit === null ? Infinity : readNumber(obj, 'timeLimit', path, { min: 0, minExclusive: true, unit: 's' }, d.timeLimit),
+    memory: readNumber(obj, 'memory', path, { integer: true, min: 1, max: 100 }, d.memory),
+  };
+}

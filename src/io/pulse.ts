@@ -1,0 +1,112 @@
+// The gatesmith pulse file: JSON with the sample time `dt` (s), the I and Q Rabi
+// frequencies (Hz) of each sample, a format name and version, and free metadata.
+// Reading is lenient about what surrounds dt, i and q (any JSON object carrying them is a
+// pulse) and strict about those three; writing keeps every double exactly.
+import { ArgumentError, PulseFormatError, describeValue } from '../core/errors.ts';
+import type { Pulse, PulseMetadata } from '../core/types.ts';
+
+/** The `format` name written into every pulse file. */
+export const PULSE_FORMAT = 'gatesmith.pulse';
+
+/** The pulse file version this code writes and reads. */
+export const PULSE_VERSION = 1;
+
+/** Reads a pulse from JSON text or from an already parsed value. */
+export function readPulse(input: string | unknown): Pulse {
+  const doc = typeof input === 'string' ? parseJson(input) : input;
+  if (typeof doc !== 'object' || doc === null || Array.isArray(doc)) {
+    throw fieldError('(document)', doc, 'a JSON object with "dt", "i" and "q"');
+  }
+  const obj = doc as Record<string, unknown>;
+  if (obj.format !== undefined && obj.format !== PULSE_FORMAT) {
+    throw fieldError('format', obj.format, `"${PULSE_FORMAT}" (or leave it out)`);
+  }
+  if (obj.version !== undefined && obj.version !== PULSE_VERSION) {
+    throw fieldError('version', obj.version, `${PULSE_VERSION} (this program reads version ${PULSE_VERSION} pulses)`);
+  }
+  const dt = obj.dt;
+  if (typeof dt !== 'number' || !Number.isFinite(dt) || dt <= 0) {
+    throw fieldError('dt', dt, 'a finite number > 0 (the sample time in seconds)');
+  }
+  const i = readSamples(obj.i, 'i');
+  const q = readSamples(obj.q, 'q');
+  if (i.length !== q.length) {
+    throw new PulseFormatError(`pulse fields "i" and "q" have ${i.length} and ${q.length} samples; they must have the same length`);
+  }
+  let metadata: PulseMetadata = {};
+  if (obj.metadata !== undefined) {
+    if (typeof obj.metadata !== 'object' || obj.metadata === null || Array.isArray(obj.metadata)) {
+      throw fieldError('metadata', obj.metadata, 'a JSON object (or leave it out)');
+    }
+    metadata = obj.metadata as PulseMetadata;
+  }
+  return { dt, i, q, metadata };
+}
+
+/** Writes a pulse as JSON text that reads back to the same doubles. */
+export function writePulse(pulse: Pulse): string {
+  if (typeof pulse.dt !== 'number' || !Number.isFinite(pulse.dt) || pulse.dt <= 0) {
+    throw new ArgumentError(`pulse.dt: ${describeValue(pulse.dt)} is not allowed; a finite number > 0 (s)`);
+  }
+  if (pulse.i.length !== pulse.q.length) {
+    throw new ArgumentError(`pulse.i and pulse.q have ${pulse.i.length} and ${pulse.q.length} samples; they must match`);
+  }
+  const lines = [
+    '{',
+    `  "format": ${JSON.stringify(PULSE_FORMAT)},`,
+    `  "version": ${PULSE_VERSION},`,
+    `  "dt": ${formatNumber(pulse.dt)},`,
+    `  "i": ${formatSamples(pulse.i, 'i')},`,
+    `  "q": ${formatSamples(pulse.q, 'q')},`,
+    `  "metadata": ${JSON.stringify(pulse.metadata ?? {}, null, 2).replace(/\n/g, '\n  ')}`,
+    '}',
+  ];
+  return lines.join('\n') + '\n';
+}
+
+function parseJson(text: string): unknown {
+  try {
+    return JSON.parse(text);
+  } catch (error) {
+    const reason = error instanceof Error ? error.message : String(error);
+    throw new PulseFormatError(`pulse: not valid JSON (${reason})`);
+  }
+}
+
+function fieldError(field: string, value: unknown, allowed: string): PulseFormatError {
+  return new PulseFormatError(`pulse field "${field}": ${describeValue(value)} is not allowed; ${allowed}`);
+}
+
+function readSamples(value: unknown, field: 'i' | 'q'): Float64Array {
+  const allowed = `a non-empty array of finite numbers (the ${field === 'i' ? 'in-phase' : 'quadrature'} Rabi frequency of each sample, Hz)`;
+  const isNumeric = Array.isArray(value) || value instanceof Float64Array || value instanceof Float32Array;
+  if (!isNumeric || (value as ArrayLike<unknown>).length === 0) {
+    throw fieldError(field, value, allowed);
+  }
+  const list = value as ArrayLike<unknown>;
+  const samples = new Float64Array(list.length);
+  for (let k = 0; k < list.length; k++) {
+    const x = list[k];
+    if (typeof x !== 'number' || !Number.isFinite(x)) throw fieldError(`${field}[${k}]`, x, 'a finite number (Hz)');
+    samples[k] = x;
+  }
+  return samples;
+}
+
+// JSON.stringify already prints the shortest text that parses back to the same double;
+// only the sign of zero needs help (it prints -0 as "0").
+function formatNumber(x: number): string {
+  return Object.is(x, -0) ? '-0' : JSON.stringify(x);
+}
+
+function formatSamples(samples: ArrayLike<number>, field: string): string {
+  const parts: string[] = new Array(samples.length);
+  for (let k = 0; k < samples.length; k++) {
+    const x = samples[k];
+    if (!Number.isFinite(x)) {
+      throw new ArgumentError(`pulse.${field}[${k}]: ${describeValue(x)} is not allowed; a finite number (Hz)`);
+    }
+    parts[k] = formatNumber(x);
+  }
+  return `[${parts.join(', ')}]`;
+}
