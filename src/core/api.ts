@@ -191,7 +191,7 @@ async function runStart(problem: Problem, start: number, options: DesignOptions,
   const core = getCore();
   const ex = core.exports;
   const { segments: n, dt, rabiMax, constraints, optimizer } = problem;
-  const enc = encodeMembers(problem.members, 2, true);
+  const enc = encodeMembers(problem.members, 4, true);
   const tStart = performance.now();
   const deadline = tStart + Math.max(0, timeLeftS) * 1000;
 
@@ -199,7 +199,7 @@ async function runStart(problem: Problem, start: number, options: DesignOptions,
   const iPtr = core.alloc(n), qPtr = core.alloc(n);
   const sPtr = core.put(enc.scale), dPtr = core.put(enc.detuning), wPtr = core.put(enc.weight);
   const tPtr = core.put(encodeTarget(problem.target));
-  const outPtr = core.alloc(enc.padded), gIPtr = core.alloc(n), gQPtr = core.alloc(n), workPtr = core.alloc(6 * n);
+  const outPtr = core.alloc(enc.padded), gIPtr = core.alloc(n), gQPtr = core.alloc(n), workPtr = core.alloc(12 * n);
   const nVar = ex.problemSet(n, dt, rabiMax, constraints.bound === 'box' ? 1 : 0, constraints.zeroEdges ? 1 : 0,
     constraints.smoothness, targetMode(problem.target), enc.padded, iPtr, qPtr, sPtr, dPtr, wPtr, tPtr, outPtr, gIPtr, gQPtr, workPtr);
   const x0 = core.put(initialVariables(problem, start, nVar));

@@ -23,12 +23,12 @@ export function prepareGradientJob(target: Target, pulse: Pulse, members: Member
   checkPulse(pulse);
   const core = getCore();
   const n = pulse.i.length;
-  const enc = encodeMembers(members, 2, true);
+  const enc = encodeMembers(members, 4, true);
   core.reset();
   const iPtr = core.put(pulse.i), qPtr = core.put(pulse.q);
   const sPtr = core.put(enc.scale), dPtr = core.put(enc.detuning), wPtr = core.put(enc.weight);
   const tPtr = core.put(encodeTarget(target));
-  const outPtr = core.alloc(enc.padded), gIPtr = core.alloc(n), gQPtr = core.alloc(n), workPtr = core.alloc(6 * n);
+  const outPtr = core.alloc(enc.padded), gIPtr = core.alloc(n), gQPtr = core.alloc(n), workPtr = core.alloc(12 * n);
   const mode = targetMode(target);
   const run = (): number => core.exports.ensembleGradient(iPtr, qPtr, n, pulse.dt, sPtr, dPtr, wPtr, enc.padded, tPtr, mode, outPtr, gIPtr, gQPtr, workPtr);
   return {

@@ -106,7 +106,7 @@ function objectiveAt(target: Target, n: number, dt: number, rabiMax: number, mem
   const iPtr = core.alloc(n), qPtr = core.alloc(n);
   const sPtr = core.put(enc.scale), dPtr = core.put(enc.detuning), wPtr = core.put(enc.weight);
   const tPtr = core.put(encodeTarget(target));
-  const outPtr = core.alloc(enc.padded), gI = core.alloc(n), gQ = core.alloc(n), work = core.alloc(6 * n);
+  const outPtr = core.alloc(enc.padded), gI = core.alloc(n), gQ = core.alloc(n), work = core.alloc(12 * n);
   const nVar = core.exports.problemSet(n, dt, rabiMax, opts.box ? 1 : 0, opts.zeroEdges ? 1 : 0, opts.smoothness, targetMode(target),
     enc.padded, iPtr, qPtr, sPtr, dPtr, wPtr, tPtr, outPtr, gI, gQ, work);
   expect(nVar).toBe(x.length);
