@@ -5,7 +5,7 @@ import { optionsHelp, usageLine } from './args.ts';
 import type { ArgSpec } from './args.ts';
 import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
-import { loadPulse, loadSpec } from './files.ts';
+import { loadSpec, loadWaveform } from './files.ts';
 import { formatFrequency, formatInfidelity, formatRelative, formatTarget, formatTime } from './format.ts';
 
 const ARGS: ArgSpec = {
@@ -19,7 +19,9 @@ const HELP = `Evaluate a pulse on the target and ensemble of a spec.
 Usage: ${usageLine(ARGS)}
 
 SPEC is a design spec (JSON; see docs/spec.md); only its target, ensemble and rabiMax
-are used. PULSE is a pulse file (JSON with "dt" in seconds and arrays "i", "q" in Hz).
+are used. PULSE is a pulse file (JSON with "dt" in seconds and arrays "i", "q" in Hz)
+or any waveform that \`gatesmith export\` wrote (csv, npy, raw with its FILE.json
+description, wav), evaluated as the instrument plays it, padding included.
 Prints each member's detuning, amplitude error, weight and infidelity, then the weighted
 mean and the worst member.
 
@@ -35,7 +37,7 @@ export const evaluateCommand: Command = defineCommand({
   help: HELP,
   async body([specPath, pulsePath], flags, io: CliIO): Promise<number> {
     const spec = loadSpec(specPath);
-    const pulse = loadPulse(pulsePath);
+    const pulse = await loadWaveform(pulsePath);
     for (const warning of mismatches(pulse, spec.problem)) io.stderr(`warning: ${warning}\n`);
 
     // Loaded here so that --help and bad input never wait for the wasm core.

@@ -34,6 +34,17 @@ export function loadPulse(path: string): Pulse {
   }
 }
 
+/** Reads a pulse file or any exported waveform (csv, npy, raw + description, wav) as a Pulse. */
+export async function loadWaveform(path: string): Promise<Pulse> {
+  if (!existsSync(path)) readText(path, 'pulse'); // the usual "cannot read" error
+  const { readWaveformFile } = await import('../io/export/read-file.ts');
+  try {
+    return await readWaveformFile(path);
+  } catch (error) {
+    throw withFileName(error, path);
+  }
+}
+
 /** Fails early (before a long design) when a file could not be written to `path`. */
 export function checkWritable(path: string, flag: string): void {
   const dir = dirname(resolve(path));

@@ -5,9 +5,13 @@ import { ArgumentError } from '../core/errors.ts';
 import type { CliIO, Command } from './command.ts';
 import { designCommand } from './design.ts';
 import { evaluateCommand } from './evaluate.ts';
+import { compositeCommand } from './composite.ts';
+import { mapCommand } from './map.ts';
+import { compareCommand } from './compare.ts';
+import { exportCommand } from './export.ts';
 
 /** Every subcommand; a new one is one import and one entry here. */
-export const COMMANDS: Command[] = [designCommand, evaluateCommand];
+export const COMMANDS: Command[] = [designCommand, evaluateCommand, compositeCommand, mapCommand, compareCommand, exportCommand];
 
 // Errors that mean the user's input is wrong (by name, so that errors from a worker count too).
 const BAD_INPUT = new Set(['SpecError', 'PulseFormatError', 'ArgumentError', 'ExportError']);

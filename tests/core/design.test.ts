@@ -2,6 +2,7 @@
 // and designs that beat what the published composite pulses give on the same ensemble.
 import { describe, expect, it } from 'vitest';
 import { design, evaluate } from '../../src/core/api.ts';
+import { designInThreads } from '../../src/core/threads.ts';
 import type { Progress } from '../../src/core/types.ts';
 import * as oracle from '../reference/oracle.ts';
 
@@ -78,7 +79,9 @@ describe('design', () => {
       optimizer: { starts: 1, seed: 1, maxIterations: 1000, targetInfidelity: 1e-6 } });
     expect(easy.best.stopReason).toBe('target-reached');
     expect(easy.evaluation.meanInfidelity).toBeLessThanOrEqual(1e-6);
-    const timed = await design({ ...baseSpec, optimizer: { starts: 4, seed: 1, maxIterations: 1e5, timeLimit: 0.05 } });
+    // A problem far from converging in 50 ms (about 70 gradient evaluations), so the clock decides.
+    const heavy = { ...baseSpec, duration: 8e-7, segments: 400, ensemble: { detuning: { min: -1e6, max: 1e6, points: 11 }, amplitudeError: { min: -0.1, max: 0.1, points: 11 } } };
+    const timed = await design({ ...heavy, optimizer: { starts: 4, seed: 1, maxIterations: 1e5, timeLimit: 0.05 } });
     expect(timed.best.stopReason).toBe('time-limit');
     expect(timed.starts.length).toBe(1);
   });
@@ -87,6 +90,19 @@ describe('design', () => {
     const all = await design(baseSpec);
     const second = await design(baseSpec, { startIndices: [1] });
     expect(Array.from(second.pulse.i)).toEqual(Array.from(all.starts[1].pulse.i));
+  });
+
+  it('worker threads give the same starts, bit for bit, as one thread (starts are independent)', async () => {
+    const one = await design(baseSpec);
+    const seen = new Set<number>();
+    const two = await designInThreads(baseSpec, { threads: 2, onProgress: (p) => seen.add(p.start) });
+    expect(two.starts.map((s) => s.start)).toEqual([0, 1]);
+    expect([...seen].sort()).toEqual([0, 1]);
+    for (let k = 0; k < 2; k++) {
+      expect(Array.from(two.starts[k].pulse.i)).toEqual(Array.from(one.starts[k].pulse.i));
+      expect(two.starts[k].iterations).toBe(one.starts[k].iterations);
+    }
+    expect(two.evaluation.meanInfidelity).toBe(one.evaluation.meanInfidelity);
   });
 
   it('designs a state transfer |0> -> |+x> robust to detuning (Bloch-vector figure, PHYSICS.md section 2)', async () => {
