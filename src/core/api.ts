@@ -173,6 +173,11 @@ export async function design(spec: unknown, options: DesignOptions = {}): Promis
     if (starts.length > 0 && (options.signal?.aborted || remaining <= 0)) break;
     starts.push(await runStart(problem, s, options, t0, remaining));
   }
+  return bestOfStarts(problem, starts, t0);
+}
+
+/** The design result of finished starts: the lowest objective wins and is evaluated. */
+export function bestOfStarts(problem: Problem, starts: StartResult[], t0: number): DesignResult {
   let best = starts[0];
   for (const r of starts) if (r.objective < best.objective) best = r;
   const evaluation = evaluateMembers(problem.target, best.pulse, problem.members);

@@ -5,7 +5,7 @@ import { createRequire } from 'node:module';
 import { availableParallelism } from 'node:os';
 import { pathToFileURL } from 'node:url';
 import { Worker } from 'node:worker_threads';
-import { design, evaluateMembers, toProblem } from './api.ts';
+import { bestOfStarts, design, toProblem } from './api.ts';
 import type { DesignOptions } from './api.ts';
 import type { DesignResult, Progress, StartResult } from './types.ts';
 
@@ -31,17 +31,7 @@ export async function designInThreads(spec: unknown, options: ThreadedDesignOpti
   const shares = Array.from({ length: threads }, (_, t) => indices.filter((_, k) => k % threads === t));
   const runs = shares.map((share) => runThread(problem, share, options));
   const starts = (await Promise.all(runs)).flat().sort((a, b) => a.start - b.start);
-  let best = starts[0];
-  for (const r of starts) if (r.objective < best.objective) best = r;
-  const evaluation = evaluateMembers(problem.target, best.pulse, problem.members);
-  best.pulse.metadata.figures = {
-    meanInfidelity: evaluation.meanInfidelity,
-    worstInfidelity: evaluation.worstInfidelity,
-    iterations: best.iterations,
-    stopReason: best.stopReason,
-    start: best.start,
-  };
-  return { pulse: best.pulse, evaluation, best, starts, elapsedS: (performance.now() - t0) / 1000 };
+  return bestOfStarts(problem, starts, t0);
 }
 
 // Threads do not inherit the TypeScript loader: each registers tsx, then loads the thread module.
