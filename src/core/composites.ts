@@ -392,10 +392,13 @@ interface Plan {
 function rectangularPlan(angle: number, rabiMax: number, dt: number, budget: number): Plan | null {
   const amplitudeFor = (n: number) => angle / (2 * Math.PI * n * dt);
   let n = Math.max(1, Math.ceil(angle / (2 * Math.PI * rabiMax * dt)));
-  // The quotient may round up past an exact whole number of samples; take one fewer if it fits.
-  if (n > 1 && amplitudeFor(n - 1) <= rabiMax) n -= 1;
+  // The quotient may round up past an exact whole number of samples (dt = duration/segments
+  // carries the division's last-bit error: 2e-7/100 = 1.9999999999999997e-9); take one fewer
+  // when that fits to 1e-12, holding the amplitude at rabiMax (the angle then errs by 1e-12
+  // relative at most, an infidelity near 1e-25).
+  if (n > 1 && amplitudeFor(n - 1) <= rabiMax * (1 + 1e-12)) n -= 1;
   if (n > budget) return null;
-  const amplitude = amplitudeFor(n);
+  const amplitude = Math.min(amplitudeFor(n), rabiMax);
   return { samples: n, amplitude: () => amplitude, peak: amplitude };
 }
 

@@ -422,3 +422,16 @@ describe('catalogue and validation', () => {
     expect(() => elementTable('knill', Math.PI / 2)).toThrow(/180 degrees only/);
   });
 });
+
+describe('whole samples when dt carries a rounding error', () => {
+  it('an element that fits exactly is not lengthened by the last bit of duration/segments', () => {
+    // 2e-7 / 100 = 1.9999999999999997e-9 in binary floating point (IEEE 754 division):
+    // a pi pulse at 10 MHz lasts 50 ns, exactly 25 such samples up to 1e-16.
+    const dt = 2e-7 / 100;
+    const pulse = buildComposite('rectangular', { angleDeg: 180, axisDeg: 0, rabiMax: 1e7, dt });
+    expect(pulse.i.length).toBe(25);
+    for (let k = 0; k < pulse.i.length; k++) expect(Math.hypot(pulse.i[k], pulse.q[k])).toBeLessThanOrEqual(1e7);
+    const infidelity = memberInfidelity({ kind: 'gate', axis: [1, 0, 0], angleRad: Math.PI }, pulse, { detuning: 0, amplitudeError: 0, weight: 1 });
+    expect(infidelity).toBeLessThan(1e-20);
+  });
+});

@@ -1,0 +1,109 @@
+// What `map` and `compare` share: the region flags (--detuning, --amplitude as MIN:MAX:N),
+// the default region (the spec's ensemble range), --threshold, and the summary figures in
+// words and as JSON.
+import { basename } from 'node:path';
+import { ArgumentError } from '../core/errors.ts';
+import type { RobustnessSummary } from '../core/robustness.ts';
+import type { GridAxis, Problem, Pulse } from '../core/types.ts';
+import type { FlagSpec, ParsedArgs } from './args.ts';
+import { formatFrequency, formatInfidelity, formatRelative, formatTarget, formatTime } from './format.ts';
+
+/** Points per axis of the default region. */
+export const DEFAULT_POINTS = 101;
+
+/** Largest points per axis the map accepts (as robustnessMap). */
+const MAX_POINTS = 2001;
+
+/** The region and threshold flags, in help order. */
+export const REGION_FLAGS: FlagSpec[] = [
+  { name: 'detuning', value: 'MIN:MAX:N', help: `detuning grid in Hz (default: the spec's ensemble range, ${DEFAULT_POINTS} points)` },
+  { name: 'amplitude', value: 'MIN:MAX:N', help: `relative amplitude-error grid, e.g. -0.1:0.1:101 (default: the spec's range, ${DEFAULT_POINTS} points)` },
+  { name: 'threshold', value: 'X', help: 'infidelity threshold of the area and half-width figures (default 1e-4)' },
+];
+
+/** A finite number from a flag's text, or an ArgumentError naming the flag. */
+export function numberFlag(text: string, flag: string, allowed: string, ok: (x: number) => boolean = Number.isFinite): number {
+  const x = text.trim() === '' ? NaN : Number(text);
+  if (!Number.isFinite(x) || !ok(x)) throw new ArgumentError(`${flag}: "${text}" is not allowed; ${allowed}`);
+  return x;
+}
+
+/** A grid axis from "MIN:MAX:N". */
+export function parseGrid(text: string, flag: string, lowest = -Infinity): GridAxis {
+  const parts = text.split(':');
+  const form = `MIN:MAX:N with MIN <= MAX and N a whole number from 1 to ${MAX_POINTS}`;
+  if (parts.length !== 3) throw new ArgumentError(`${flag}: "${text}" is not allowed; ${form}`);
+  const min = numberFlag(parts[0], flag, form);
+  const max = numberFlag(parts[1], flag, form);
+  const points = numberFlag(parts[2], flag, form, (n) => Number.isInteger(n) && n >= 1 && n <= MAX_POINTS);
+  if (min > max) throw new ArgumentError(`${flag}: "${text}" is not allowed; ${form}`);
+  if (min <= lowest) throw new ArgumentError(`${flag}: "${text}" is not allowed; MIN must be above ${lowest} (the drive would vanish)`);
+  return { min, max, points };
+}
+
+/** The region of a map: the flags' grids, or the ensemble's range on each axis (one point where it has none). */
+export function regionOf(args: ParsedArgs, problem: Problem): { detuning: GridAxis; amplitudeError: GridAxis } {
+  const range = (pick: (m: Problem['members'][number]) => number): GridAxis => {
+    const v = problem.members.map(pick);
+    const min = Math.min(...v);
+    const max = Math.max(...v);
+    return { min, max, points: min === max ? 1 : DEFAULT_POINTS };
+  };
+  const text = (name: string) => (typeof args.flags[name] === 'string' ? (args.flags[name] as string) : undefined);
+  const d = text('detuning');
+  const a = text('amplitude');
+  return {
+    detuning: d !== undefined ? parseGrid(d, '--detuning') : range((m) => m.detuning),
+    amplitudeError: a !== undefined ? parseGrid(a, '--amplitude', -1) : range((m) => m.amplitudeError),
+  };
+}
+
+/** --threshold, or undefined for the default. */
+export function thresholdOf(args: ParsedArgs): number | undefined {
+  const t = args.flags.threshold;
+  if (typeof t !== 'string') return undefined;
+  return numberFlag(t, '--threshold', 'an infidelity between 0 and 1 (exclusive), e.g. 1e-4', (x) => x > 0 && x < 1);
+}
+
+/** A grid axis in words, e.g. "-1 MHz .. 1 MHz, 101 points". */
+export function formatGrid(axis: GridAxis, kind: 'detuning' | 'amplitudeError'): string {
+  const f = kind === 'detuning' ? formatFrequency : formatRelative;
+  if (axis.points === 1) return `${f((axis.min + axis.max) / 2)} only`;
+  return `${f(axis.min)} .. ${f(axis.max)}, ${axis.points} points`;
+}
+
+/** A half-width in words, with "at least" where the search reached its limit. */
+export function formatWidth(value: number, reachedLimit: boolean, kind: 'detuning' | 'amplitudeError'): string {
+  const text = kind === 'detuning' ? formatFrequency(value) : formatRelative(value).replace('+', '');
+  return reachedLimit ? `>= ${text}` : text;
+}
+
+/** The summary as aligned "label  value" lines. */
+export function summaryText(s: RobustnessSummary): string {
+  const rows: [string, string][] = [
+    ['target', formatTarget(s.targetUsed)],
+    ...(s.targetNote ? [['note', s.targetNote] as [string, string]] : []),
+    ['region', `detuning ${formatGrid(s.detuning, 'detuning')}; amplitude error ${formatGrid(s.amplitudeError, 'amplitudeError')}`],
+    ['mean infidelity', `${formatInfidelity(s.meanInfidelity)} (unweighted, over the grid)`],
+    ['worst infidelity', `${formatInfidelity(s.worstInfidelity)} at detuning ${formatFrequency(s.worstAt.detuning)}, amplitude error ${formatRelative(s.worstAt.amplitudeError)}`],
+    ['area below threshold', `${percent(s.areaFraction)} of the grid below ${formatInfidelity(s.threshold)}`],
+    ['detuning half-width', `${formatWidth(s.detuningHalfWidth, s.detuningInterval.reachedLimit, 'detuning')} (below threshold from ${formatFrequency(s.detuningInterval.lower)} to ${formatFrequency(s.detuningInterval.upper)} at zero amplitude error)`],
+    ['amplitude half-width', `${formatWidth(s.amplitudeHalfWidth, s.amplitudeInterval.reachedLimit, 'amplitudeError')} (below threshold from ${formatRelative(s.amplitudeInterval.lower)} to ${formatRelative(s.amplitudeInterval.upper)} at zero detuning)`],
+    ['duration', formatTime(s.durationS)],
+    ['peak amplitude', formatFrequency(s.peakRabiHz)],
+    ['pulse area', `${Number(s.pulseAreaTurns.toPrecision(5))} turns (integral of |Omega| dt; 1 turn = 360 degrees)`],
+    ['energy', `${Number(s.energyHz2S.toPrecision(5))} Hz^2 s (integral of |Omega|^2 dt)`],
+  ];
+  const width = Math.max(...rows.map(([k]) => k.length));
+  return rows.map(([k, v]) => `${k.padEnd(width)}  ${v}`).join('\n') + '\n';
+}
+
+/** A percentage with up to four significant digits. */
+export function percent(fraction: number): string {
+  return `${Number((100 * fraction).toPrecision(4))} %`;
+}
+
+/** The name a pulse goes by in outputs: its metadata name, else its file name. */
+export function pulseName(pulse: Pulse, path: string): string {
+  return typeof pulse.metadata.name === 'string' && pulse.metadata.name !== '' ? pulse.metadata.name : basename(path);
+}
