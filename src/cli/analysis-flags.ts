@@ -42,14 +42,14 @@ export function parseGrid(text: string, flag: string, lowest = -Infinity): GridA
 }
 
 /** The region of a map: the flags' grids, or the ensemble's range on each axis (one point where it has none). */
-export function regionOf(args: ParsedArgs, problem: Problem): { detuning: GridAxis; amplitudeError: GridAxis } {
+export function regionOf(flags: ParsedArgs['flags'], problem: Problem): { detuning: GridAxis; amplitudeError: GridAxis } {
   const range = (pick: (m: Problem['members'][number]) => number): GridAxis => {
     const v = problem.members.map(pick);
     const min = Math.min(...v);
     const max = Math.max(...v);
     return { min, max, points: min === max ? 1 : DEFAULT_POINTS };
   };
-  const text = (name: string) => (typeof args.flags[name] === 'string' ? (args.flags[name] as string) : undefined);
+  const text = (name: string) => (typeof flags[name] === 'string' ? (flags[name] as string) : undefined);
   const d = text('detuning');
   const a = text('amplitude');
   return {
@@ -59,8 +59,8 @@ export function regionOf(args: ParsedArgs, problem: Problem): { detuning: GridAx
 }
 
 /** --threshold, or undefined for the default. */
-export function thresholdOf(args: ParsedArgs): number | undefined {
-  const t = args.flags.threshold;
+export function thresholdOf(flags: ParsedArgs['flags']): number | undefined {
+  const t = flags.threshold;
   if (typeof t !== 'string') return undefined;
   return numberFlag(t, '--threshold', 'an infidelity between 0 and 1 (exclusive), e.g. 1e-4', (x) => x > 0 && x < 1);
 }

@@ -73,8 +73,8 @@ export const compareCommand: Command = {
       throw new ArgumentError(`compare: give at least one PULSE file or --composites LIST; usage: ${usageLine(ARGS)}`);
     }
     const spec = loadSpec(specPath);
-    const region = regionOf(args, spec.problem);
-    const threshold = thresholdOf(args);
+    const region = regionOf(args.flags, spec.problem);
+    const threshold = thresholdOf(args.flags);
     const pulses: { name: string; source: string; pulse: Pulse }[] = pulsePaths.map((path) => {
       const pulse = loadPulse(path);
       return { name: pulseName(pulse, path), source: path, pulse };

@@ -10,7 +10,8 @@ import type { SampleUnits } from '../io/export/playback.ts';
 import { exportReport, type ExportReport, type GateFigures } from '../io/export/report.ts';
 import { parseExportSettings, type ExportSettings } from '../io/export/settings.ts';
 import { exportWaveform } from '../io/export/waveform.ts';
-import { optionsHelp, parseArgs, requirePositionals, usageLine, type ArgSpec } from './args.ts';
+import { optionsHelp, usageLine, type ArgSpec } from './args.ts';
+import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
 import { checkWritable, loadPulse, loadSpec } from './files.ts';
 import { formatFrequency, formatInfidelity, formatRelative, formatTime } from './format.ts';
@@ -78,19 +79,14 @@ ${optionsHelp(ARGS)}
 `;
 
 /** The `export` subcommand. */
-export const exportCommand: Command = {
+export const exportCommand: Command = defineCommand({
   name: 'export',
   summary: 'write the quantised, padded waveform for an AWG (csv, npy, raw, wav, json)',
+  args: ARGS,
   help: HELP,
-  async run(argv: string[], io: CliIO): Promise<number> {
-    const args = parseArgs(argv, ARGS);
-    if (args.help) {
-      io.stdout(HELP);
-      return 0;
-    }
-    const [pulsePath] = requirePositionals(args, ARGS);
+  async body([pulsePath], flags, io: CliIO): Promise<number> {
     const flag = (name: string): string | undefined => {
-      const v = args.flags[name];
+      const v = flags[name];
       return typeof v === 'string' ? v : undefined;
     };
     const required = (name: string): string => {
@@ -102,7 +98,7 @@ export const exportCommand: Command = {
     if (!WAVEFORM_FORMATS.includes(format)) {
       throw new ArgumentError(`export: --format ${format} is not allowed; one of ${WAVEFORM_FORMATS.join(', ')}`);
     }
-    const settings = settingsFromFlags(flag, required, args.flags.marker === true);
+    const settings = settingsFromFlags(flag, required, flags.marker === true);
     const out = required('out');
     const units = flag('units') as SampleUnits | undefined;
     if (units !== undefined && units !== 'codes' && units !== 'hz') {
@@ -122,14 +118,14 @@ export const exportCommand: Command = {
     const sidecar = encoded.sidecar ? `${out}.json` : null;
     if (encoded.sidecar && sidecar) writeBytes(sidecar, encoded.sidecar);
 
-    if (args.flags.json) {
+    if (flags.json) {
       io.stdout(JSON.stringify({ files: { waveform: out, description: sidecar }, format, units: encoded.units, ...report }, null, 2) + '\n');
     } else {
       io.stdout(reportText(report, { out, sidecar, format, units: encoded.units, problem, note }));
     }
     return 0;
   },
-};
+});
 
 /** Export settings from the flags; a bad value is reported under its flag's name. */
 function settingsFromFlags(

@@ -2,8 +2,9 @@
 // error, written as CSV or JSON, and its summary figures.
 import { ArgumentError } from '../core/errors.ts';
 import { writeMapCsv, writeMapJson } from '../io/map-file.ts';
-import { optionsHelp, parseArgs, requirePositionals, usageLine, type ArgSpec } from './args.ts';
+import { optionsHelp, usageLine, type ArgSpec } from './args.ts';
 import { DEFAULT_POINTS, REGION_FLAGS, pulseName, regionOf, summaryText, thresholdOf } from './analysis-flags.ts';
+import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
 import { checkWritable, loadPulse, loadSpec, writeText } from './files.ts';
 
@@ -39,23 +40,18 @@ ${optionsHelp(ARGS)}
 `;
 
 /** The `map` subcommand. */
-export const mapCommand: Command = {
+export const mapCommand: Command = defineCommand({
   name: 'map',
   summary: 'robustness map of a pulse over detuning x amplitude error, with summary figures',
+  args: ARGS,
   help: HELP,
-  async run(argv: string[], io: CliIO): Promise<number> {
-    const args = parseArgs(argv, ARGS);
-    if (args.help) {
-      io.stdout(HELP);
-      return 0;
-    }
-    const [specPath, pulsePath] = requirePositionals(args, ARGS);
-    const out = typeof args.flags.out === 'string' ? args.flags.out : undefined;
+  async body([specPath, pulsePath], flags, io: CliIO): Promise<number> {
+    const out = typeof flags.out === 'string' ? flags.out : undefined;
     const format = out === undefined ? null : mapFormat(out);
     const spec = loadSpec(specPath);
     const pulse = loadPulse(pulsePath);
-    const region = regionOf(args, spec.problem);
-    const threshold = thresholdOf(args);
+    const region = regionOf(flags, spec.problem);
+    const threshold = thresholdOf(flags);
     if (out !== undefined) checkWritable(out, '--out');
 
     // Loaded here so that --help and bad input never wait for the wasm core.
@@ -65,13 +61,13 @@ export const mapCommand: Command = {
       const context = { pulseName: pulseName(pulse, pulsePath), target: summary.targetUsed, targetNote: summary.targetNote };
       writeText(out, format === 'csv' ? writeMapCsv(map, context) : writeMapJson(map, context, summary), '--out');
     }
-    if (args.flags.json) io.stdout(JSON.stringify({ pulse: pulseName(pulse, pulsePath), ...summary, out: out ?? null }, null, 2) + '\n');
+    if (flags.json) io.stdout(JSON.stringify({ pulse: pulseName(pulse, pulsePath), ...summary, out: out ?? null }, null, 2) + '\n');
     else {
       io.stdout(`pulse: ${pulseName(pulse, pulsePath)}\n` + summaryText(summary) + (out !== undefined ? `map written to ${out}\n` : ''));
     }
     return 0;
   },
-};
+});
 
 /** The file format from the --out name's extension. */
 function mapFormat(out: string): 'csv' | 'json' {
