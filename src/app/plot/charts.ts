@@ -1,0 +1,182 @@
+// chart.js set up once for the page: only the parts the views use, no animation (charts
+// redraw live), colours from the page's theme, and a colour-blind-safe series palette.
+import {
+  Chart,
+  Decimation,
+  Legend,
+  LinearScale,
+  LineController,
+  LineElement,
+  LogarithmicScale,
+  PointElement,
+  Tooltip,
+} from 'chart.js';
+import { engineeringUnit, type Quantity } from '../units.ts';
+
+Chart.register(LineController, LineElement, PointElement, LinearScale, LogarithmicScale, Tooltip, Legend, Decimation);
+Chart.defaults.animation = false;
+Chart.defaults.responsive = true;
+Chart.defaults.maintainAspectRatio = false;
+
+/** Okabe and Ito's palette (Color Universal Design, 2002), distinguishable with common colour-vision deficiencies. */
+export const PALETTE = ['#0072b2', '#e69f00', '#009e73', '#cc79a7', '#56b4e9', '#d55e00', '#f0e442', '#999999'];
+
+/** A series colour by index. */
+export function seriesColour(k: number): string {
+  return PALETTE[k % PALETTE.length];
+}
+
+/** Colours of the page's theme. */
+export interface ThemeColours {
+  text: string;
+  muted: string;
+  grid: string;
+  i: string;
+  q: string;
+  limit: string;
+}
+
+let cached: ThemeColours | null = null;
+// Reading computed styles forces a style pass: read them once per colour scheme, not per redraw.
+if (typeof matchMedia === 'function') matchMedia('(prefers-color-scheme: dark)').addEventListener('change', () => (cached = null));
+
+/** The page's theme colours as chart.js wants them. */
+export function theme(): ThemeColours {
+  if (cached) return cached;
+  cached = readTheme();
+  return cached;
+}
+
+function readTheme(): ThemeColours {
+  const css = getComputedStyle(document.documentElement);
+  const read = (name: string, fallback: string) => css.getPropertyValue(name).trim() || fallback;
+  return {
+    text: read('--text', '#222'),
+    muted: read('--muted', '#666'),
+    grid: read('--grid', 'rgba(0,0,0,0.1)'),
+    i: read('--series-i', '#0072b2'),
+    q: read('--series-q', '#d55e00'),
+    limit: read('--limit', '#777'),
+  };
+}
+
+/** The unit a set of values is best printed in ("ns", "MHz"), from its largest magnitude. */
+export function displayUnit(largest: number, quantity: Quantity): { symbol: string; scale: number } {
+  const unit = engineeringUnit(Math.abs(largest) || 1, quantity);
+  return unit ? { symbol: unit.symbol, scale: 10 ** unit.exponent } : { symbol: '', scale: 1 };
+}
+
+/**
+ * Replaces the datasets' points, keeping the dataset objects (and so chart.js's controllers
+ * and element caches) when the set of curves is unchanged: rebuilding them on every redraw
+ * costs tens of milliseconds on a software-rendered page.
+ */
+export function setDatasets(chart: Chart<'line'>, next: Array<{ label: string; data: { x: number; y: number }[] } & Record<string, unknown>>): void {
+  const current = chart.data.datasets;
+  const same = current.length === next.length && current.every((d, k) => d.label === next[k].label);
+  if (!same) {
+    chart.data.datasets = next as never;
+    return;
+  }
+  next.forEach((d, k) => Object.assign(current[k], d));
+}
+
+const queue: Array<() => void> = [];
+let frameRequested = false;
+
+function runOne(): void {
+  frameRequested = false;
+  const job = queue.shift();
+  job?.();
+  if (queue.length) {
+    frameRequested = true;
+    requestAnimationFrame(runOne);
+  }
+}
+
+/**
+ * Runs `draw` in an animation frame of its own: two charts redrawing in the same frame
+ * would add up to one long task, so the page draws at most one chart per frame.
+ */
+export function drawInFrame(draw: () => void): void {
+  if (!queue.includes(draw)) queue.push(draw);
+  if (!frameRequested) {
+    frameRequested = true;
+    requestAnimationFrame(runOne);
+  }
+}
+
+/** Tick and grid colours of the theme for one axis. */
+export function axisStyle(colours = theme()): { ticks: { color: string }; grid: { color: string } } {
+  return { ticks: { color: colours.muted }, grid: { color: colours.grid } };
+}
+
+/** An axis title in the theme's colour. */
+export function axisTitle(text: string, colours = theme()): { display: true; text: string; color: string } {
+  return { display: true, text, color: colours.text };
+}
+
+/** Legend labels in the theme's colour, drawn as short lines. */
+export function legendLabels(colours = theme()): { color: string; boxWidth: number; boxHeight: number } {
+  return { color: colours.text, boxWidth: 14, boxHeight: 2 };
+}
+
+/** What differs between the page's line charts. */
+export interface LineChartSpec {
+  xTitle: string;
+  yTitle: string;
+  yType?: 'linear' | 'logarithmic';
+  /** Extra y-axis settings (limits, tick callback). */
+  y?: Record<string, unknown>;
+  /** Further axes by id (a second y axis). */
+  scales?: Record<string, unknown>;
+  interaction: { mode: 'index' | 'nearest'; intersect: boolean; axis?: 'x' };
+  /** Hides legend entries by their text. */
+  legendFilter?: (text: string) => boolean;
+  tooltip?: Record<string, unknown>;
+  /** Thins long curves to a few points per pixel column. */
+  decimate?: boolean;
+}
+
+/** A themed line chart over x/y points (no parsing, no animation), empty until datasets are set. */
+export function lineChart(canvas: HTMLCanvasElement, spec: LineChartSpec): Chart<'line'> {
+  const colours = theme();
+  const filter = spec.legendFilter;
+  return new Chart(canvas, {
+    type: 'line',
+    data: { datasets: [] },
+    options: {
+      color: colours.text,
+      parsing: false,
+      normalized: true,
+      interaction: spec.interaction,
+      scales: {
+        x: { type: 'linear', ...axisStyle(colours), title: axisTitle(spec.xTitle, colours) },
+        y: { type: spec.yType ?? 'linear', ...axisStyle(colours), title: axisTitle(spec.yTitle, colours), ...spec.y },
+        ...spec.scales,
+      },
+      plugins: {
+        legend: { labels: { ...legendLabels(colours), ...(filter ? { filter: (item: { text: string }) => filter(item.text) } : {}) } },
+        tooltip: spec.tooltip ?? {},
+        ...(spec.decimate ? { decimation: { enabled: true, algorithm: 'min-max' as const } } : {}),
+      },
+    } as never,
+  });
+}
+
+/** Decade ticks of a log axis, printed as 1e-4 rather than 0.0001. */
+export function logTick(value: number | string): string {
+  const v = Number(value);
+  const exponent = Math.log10(v);
+  return Math.abs(exponent - Math.round(exponent)) < 1e-9 ? `1e${Math.round(exponent)}` : '';
+}
+
+/** One curve of a cut chart: values along an error axis (Hz or relative) and their infidelities. */
+export interface CutSeries {
+  label: string;
+  colour: string;
+  x: ArrayLike<number>;
+  y: ArrayLike<number>;
+}
+
+export { Chart };

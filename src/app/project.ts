@@ -1,0 +1,198 @@
+// The project file (and the autosaved session): the spec, the pulses with their figures,
+// and the view settings. Read strictly, whole or not at all, so that a malformed file
+// changes nothing; pulses are checked again by the library's pulse reader on opening.
+import type { Evaluation } from '../core/types.ts';
+
+/** The `format` name of a project file. */
+export const PROJECT_FORMAT = 'gatesmith.project';
+/** The project file version written and read. */
+export const PROJECT_VERSION = 1;
+
+/** A project file cannot be read (the message says where and why). */
+export class ProjectFormatError extends Error {
+  override name = 'ProjectFormatError';
+}
+
+/** A pulse as stored in a project: the pulse file's fields, plus how the page labels it. */
+export interface StoredPulse {
+  id: string;
+  label: string;
+  dt: number;
+  i: number[];
+  q: number[];
+  metadata: Record<string, unknown>;
+  evaluation?: Pick<Evaluation, 'meanInfidelity' | 'worstInfidelity'>;
+}
+
+/** Settings of the analysis views, kept with the project. */
+export interface ViewSettings {
+  view: string;
+  selectedPulse: string | null;
+  map: { detuning: { min: number; max: number; points: number }; amplitudeError: { min: number; max: number; points: number }; threshold: number };
+  compare: { composites: string[] };
+  bloch: { from: string; member: number };
+}
+
+/** Everything a project file holds. */
+export interface Project {
+  format: typeof PROJECT_FORMAT;
+  version: typeof PROJECT_VERSION;
+  savedAt: string;
+  spec: Record<string, unknown>;
+  pulses: StoredPulse[];
+  settings: ViewSettings;
+}
+
+/** View settings of a new session. */
+export function defaultSettings(): ViewSettings {
+  return {
+    view: 'design',
+    selectedPulse: null,
+    map: { detuning: { min: -2e6, max: 2e6, points: 101 }, amplitudeError: { min: -0.2, max: 0.2, points: 101 }, threshold: 1e-4 },
+    compare: { composites: ['rectangular', 'bb1', 'sk1', 'corpse'] },
+    bloch: { from: '+z', member: -1 },
+  };
+}
+
+function fail(where: string, value: unknown, allowed: string): never {
+  let shown: string;
+  try {
+    shown = value === undefined ? 'missing' : JSON.stringify(value).slice(0, 40);
+  } catch {
+    shown = String(value);
+  }
+  throw new ProjectFormatError(`project file: "${where}" is ${shown}; ${allowed}`);
+}
+
+function record(value: unknown, where: string): Record<string, unknown> {
+  if (typeof value !== 'object' || value === null || Array.isArray(value)) fail(where, value, 'expected a JSON object');
+  return value as Record<string, unknown>;
+}
+
+function finite(value: unknown, where: string, check: (x: number) => boolean = () => true, allowed = 'a finite number'): number {
+  if (typeof value !== 'number' || !Number.isFinite(value) || !check(value)) fail(where, value, `expected ${allowed}`);
+  return value;
+}
+
+function samples(value: unknown, where: string): number[] {
+  if (!Array.isArray(value) || value.length === 0) fail(where, value, 'expected a non-empty array of numbers (Hz)');
+  value.forEach((x, k) => finite(x, `${where}[${k}]`));
+  return value as number[];
+}
+
+function axis(value: unknown, where: string): { min: number; max: number; points: number } {
+  const obj = record(value, where);
+  const min = finite(obj.min, `${where}.min`);
+  const max = finite(obj.max, `${where}.max`, (x) => x >= min, 'a number >= min');
+  const points = finite(obj.points, `${where}.points`, (x) => Number.isInteger(x) && x >= 1 && x <= 2001, 'a whole number from 1 to 2001');
+  return { min, max, points };
+}
+
+function readPulseEntry(value: unknown, k: number): StoredPulse {
+  const where = `pulses[${k}]`;
+  const obj = record(value, where);
+  if (typeof obj.id !== 'string' || obj.id === '') fail(`${where}.id`, obj.id, 'expected a non-empty string');
+  if (typeof obj.label !== 'string') fail(`${where}.label`, obj.label, 'expected a string');
+  const dt = finite(obj.dt, `${where}.dt`, (x) => x > 0, 'a sample time > 0 (s)');
+  const i = samples(obj.i, `${where}.i`);
+  const q = samples(obj.q, `${where}.q`);
+  if (i.length !== q.length) fail(`${where}.q`, `${q.length} samples`, `expected as many samples as i (${i.length})`);
+  const metadata = obj.metadata === undefined ? {} : record(obj.metadata, `${where}.metadata`);
+  let evaluation: StoredPulse['evaluation'];
+  if (obj.evaluation !== undefined) {
+    const e = record(obj.evaluation, `${where}.evaluation`);
+    evaluation = { meanInfidelity: finite(e.meanInfidelity, `${where}.evaluation.meanInfidelity`), worstInfidelity: finite(e.worstInfidelity, `${where}.evaluation.worstInfidelity`) };
+  }
+  return { id: obj.id, label: obj.label, dt, i, q, metadata, ...(evaluation ? { evaluation } : {}) };
+}
+
+function readSettings(value: unknown): ViewSettings {
+  const defaults = defaultSettings();
+  if (value === undefined) return defaults;
+  const obj = record(value, 'settings');
+  const map = obj.map === undefined ? defaults.map : record(obj.map, 'settings.map');
+  const compare = obj.compare === undefined ? defaults.compare : record(obj.compare, 'settings.compare');
+  const bloch = obj.bloch === undefined ? defaults.bloch : record(obj.bloch, 'settings.bloch');
+  const composites = compare.composites;
+  if (!Array.isArray(composites) || !composites.every((c) => typeof c === 'string')) {
+    fail('settings.compare.composites', composites, 'expected a list of sequence names');
+  }
+  if (obj.view !== undefined && typeof obj.view !== 'string') fail('settings.view', obj.view, 'expected a view name');
+  if (obj.selectedPulse !== undefined && obj.selectedPulse !== null && typeof obj.selectedPulse !== 'string') {
+    fail('settings.selectedPulse', obj.selectedPulse, 'expected a pulse id or null');
+  }
+  if (typeof bloch.from !== 'string') fail('settings.bloch.from', bloch.from, 'expected a Bloch vector such as "+z"');
+  return {
+    view: (obj.view as string | undefined) ?? defaults.view,
+    selectedPulse: (obj.selectedPulse as string | null | undefined) ?? null,
+    map: {
+      detuning: axis(map.detuning, 'settings.map.detuning'),
+      amplitudeError: axis(map.amplitudeError, 'settings.map.amplitudeError'),
+      threshold: finite(map.threshold, 'settings.map.threshold', (x) => x > 0 && x < 1, 'a threshold between 0 and 1'),
+    },
+    compare: { composites: composites as string[] },
+    bloch: { from: bloch.from as string, member: finite(bloch.member, 'settings.bloch.member', Number.isInteger, 'a member index (-1: no error)') },
+  };
+}
+
+/** Reads a project from file text or a stored object; throws ProjectFormatError naming the first fault. */
+export function parseProject(input: string | unknown): Project {
+  let doc = input;
+  if (typeof input === 'string') {
+    try {
+      doc = JSON.parse(input);
+    } catch (error) {
+      throw new ProjectFormatError(`project file: not valid JSON (${error instanceof Error ? error.message : String(error)})`);
+    }
+  }
+  const obj = record(doc, '(document)');
+  if (obj.format !== PROJECT_FORMAT) fail('format', obj.format, `expected "${PROJECT_FORMAT}" (is this a gatesmith project file?)`);
+  if (obj.version !== PROJECT_VERSION) fail('version', obj.version, `expected ${PROJECT_VERSION}`);
+  const spec = record(obj.spec, 'spec');
+  if (!Array.isArray(obj.pulses)) fail('pulses', obj.pulses, 'expected a list of pulses');
+  const pulses = obj.pulses.map(readPulseEntry);
+  const ids = new Set<string>();
+  for (const p of pulses) {
+    if (ids.has(p.id)) fail('pulses', p.id, 'expected each pulse id once');
+    ids.add(p.id);
+  }
+  const settings = readSettings(obj.settings);
+  if (settings.selectedPulse !== null && !ids.has(settings.selectedPulse)) settings.selectedPulse = pulses[0]?.id ?? null;
+  return {
+    format: PROJECT_FORMAT,
+    version: PROJECT_VERSION,
+    savedAt: typeof obj.savedAt === 'string' ? obj.savedAt : '',
+    spec,
+    pulses,
+    settings,
+  };
+}
+
+/** A project as written to a file (pretty JSON; numbers print as the shortest exact text). */
+export function projectText(project: Project): string {
+  return JSON.stringify(project, null, 1) + '\n';
+}
+
+/** The location hash that carries a spec ("#spec=..."), readable enough to edit by hand. */
+export function specHash(spec: unknown): string {
+  return `#spec=${encodeURIComponent(JSON.stringify(spec))}`;
+}
+
+/** The spec carried by a location hash, null when there is none; throws ProjectFormatError when malformed. */
+export function specFromHash(hash: string): Record<string, unknown> | null {
+  const match = /^#?spec=(.*)$/s.exec(hash);
+  if (!match) return null;
+  let text: string;
+  try {
+    text = decodeURIComponent(match[1]);
+  } catch {
+    throw new ProjectFormatError('link: the spec in the address is not valid percent-encoding');
+  }
+  let value: unknown;
+  try {
+    value = JSON.parse(text);
+  } catch (error) {
+    throw new ProjectFormatError(`link: the spec in the address is not valid JSON (${error instanceof Error ? error.message : String(error)})`);
+  }
+  return record(value, 'link spec');
+}

@@ -1,0 +1,206 @@
+// The page's one door to the core: a small pool of workers behind coarse async calls.
+// Designs spread their starts over the pool and keep the best pulse; maps come back coarse
+// first, then at full resolution in bands computed in parallel. The only `wrap`.
+import { proxy, releaseProxy, wrap, type Endpoint, type Remote } from 'comlink';
+import type { DesignResult, Evaluation, GridAxis, Member, Pulse, Target, Vec3 } from '../core/types.ts';
+import type { CompareRequest, CompareRow, CoreInfo, CoreService, Cuts, MapResult, ProgressBatch, SpecCheck } from './protocol.ts';
+
+/** A merged design: the best start over every worker, and whether Stop ended it. */
+export interface DesignOutcome extends DesignResult {
+  stopped: boolean;
+}
+
+/** A map as it fills in: `infidelity` holds NaN where the full-resolution value is still to come. */
+export interface MapUpdate {
+  /** The coarse map (always present once the first image is drawn). */
+  coarse: MapResult;
+  /** The full-resolution grid, NaN where not yet computed; absent until the first band arrives. */
+  fine?: MapResult;
+  complete: boolean;
+}
+
+/** The last axis index of each band when `rows` rows are shared among `bands` workers. */
+export function bandRows(rows: number, bands: number): Array<[number, number]> {
+  const count = Math.max(1, Math.min(bands, rows));
+  const out: Array<[number, number]> = [];
+  for (let b = 0; b < count; b++) {
+    const first = Math.floor((b * rows) / count);
+    const last = Math.floor(((b + 1) * rows) / count) - 1;
+    if (last >= first) out.push([first, last]);
+  }
+  return out;
+}
+
+/** The grid value of index k of a uniform axis, as the library places it. */
+export function axisValue(axis: GridAxis, k: number): number {
+  return axis.points === 1 ? (axis.min + axis.max) / 2 : axis.min + ((axis.max - axis.min) * k) / (axis.points - 1);
+}
+
+/** A coarser axis over the same range: about a quarter of the points, never fewer than 2 (or 1). */
+export function coarseAxis(axis: GridAxis, factor = 4): GridAxis {
+  if (axis.points <= 2) return { ...axis };
+  return { min: axis.min, max: axis.max, points: Math.max(2, Math.ceil((axis.points - 1) / factor) + 1) };
+}
+
+/** Split starts 0..starts-1 round-robin over `workers` workers (none left empty). */
+export function shareStarts(starts: number, workers: number): number[][] {
+  const count = Math.max(1, Math.min(starts, workers));
+  const groups: number[][] = Array.from({ length: count }, () => []);
+  for (let s = 0; s < starts; s++) groups[s % count].push(s);
+  return groups;
+}
+
+/** One design from the shares of several workers: the best start by objective, every start listed. */
+export function mergeShares(shares: DesignResult[], elapsedS: number, stopped: boolean): DesignOutcome {
+  if (shares.length === 0) throw new Error('mergeShares: no worker returned a result');
+  let best = shares[0];
+  for (const share of shares) if (share.best.objective < best.best.objective) best = share;
+  const starts = shares.flatMap((s) => s.starts).sort((a, b) => a.start - b.start);
+  return { pulse: best.pulse, evaluation: best.evaluation, best: best.best, starts, elapsedS, stopped };
+}
+
+/** The client over a pool: one worker for analysis, the others for designs. */
+export class CoreClient {
+  private readonly analysis: Remote<CoreService>;
+  private readonly designers: Remote<CoreService>[];
+  private readyPromise: Promise<CoreInfo> | null = null;
+  private designing = false;
+  private stopRequested = false;
+
+  /** Wraps one endpoint for analysis jobs and one or more for design starts. */
+  constructor(
+    analysis: Endpoint,
+    designers: Endpoint[],
+    private readonly onDispose: () => void = () => undefined,
+  ) {
+    this.analysis = wrap<CoreService>(analysis);
+    this.designers = designers.map((endpoint) => wrap<CoreService>(endpoint));
+    if (this.designers.length === 0) this.designers.push(this.analysis);
+  }
+
+  /** Number of workers that run design starts. */
+  get designWorkers(): number {
+    return this.designers.length;
+  }
+
+  /** Loads the core in every worker; resolves with what it can build. */
+  ready(): Promise<CoreInfo> {
+    this.readyPromise ??= Promise.all([this.analysis.ready(), ...this.designers.map((d) => d.ready())]).then(([info]) => info);
+    return this.readyPromise;
+  }
+
+  /** Validates a spec with the library's rules (first error, with its field). */
+  checkSpec(spec: unknown): Promise<SpecCheck> {
+    return this.analysis.checkSpec(spec);
+  }
+
+  /** Runs a design over the pool; `onProgress` gets batches from every worker. */
+  async design(spec: unknown, starts: number, onProgress?: (batch: ProgressBatch) => void, livePulseEveryMs = 200): Promise<DesignOutcome> {
+    if (this.designing) throw new Error('a design is already running; stop it first');
+    await this.ready();
+    this.designing = true;
+    this.stopRequested = false;
+    const t0 = performance.now();
+    const groups = shareStarts(starts, this.designers.length);
+    const sink = onProgress ? proxy(onProgress) : undefined;
+    try {
+      const shares = await Promise.all(groups.map((group, w) => this.designers[w].design(spec, group, sink, livePulseEveryMs)));
+      return mergeShares(shares, (performance.now() - t0) / 1000, this.stopRequested);
+    } catch (error) {
+      await this.stop();
+      throw error;
+    } finally {
+      this.designing = false;
+    }
+  }
+
+  /** True while a design runs. */
+  get running(): boolean {
+    return this.designing;
+  }
+
+  /** Ends the running design within one iteration of each worker; the best pulse so far is returned by design(). */
+  async stop(): Promise<void> {
+    if (!this.designing) return;
+    this.stopRequested = true;
+    await Promise.all(this.designers.map((d) => d.stop()));
+  }
+
+  /** Figures of a pulse on the spec's ensemble. */
+  evaluate(spec: unknown, pulse: Pulse): Promise<Evaluation> {
+    return this.analysis.evaluate(spec, pulse);
+  }
+
+  /** A map, coarse first, then full resolution in bands spread over the idle workers. */
+  async map(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, onUpdate?: (update: MapUpdate) => void): Promise<MapUpdate> {
+    const coarse = await this.analysis.map(target, pulse, coarseAxis(detuning), coarseAxis(amplitudeError));
+    const update: MapUpdate = { coarse, complete: false };
+    onUpdate?.({ ...update });
+    const workers = this.designing ? [this.analysis] : [this.analysis, ...this.designers.filter((d) => d !== this.analysis)];
+    const infidelity = new Float64Array(detuning.points * amplitudeError.points).fill(NaN);
+    const fine: MapResult = { detuning: { ...detuning }, amplitudeError: { ...amplitudeError }, infidelity };
+    const bands = bandRows(amplitudeError.points, workers.length);
+    await Promise.all(
+      bands.map(async ([first, last], b) => {
+        const rows: GridAxis = { min: axisValue(amplitudeError, first), max: axisValue(amplitudeError, last), points: last - first + 1 };
+        if (amplitudeError.points === 1) Object.assign(rows, amplitudeError);
+        const part = await workers[b].map(target, pulse, detuning, rows);
+        infidelity.set(part.infidelity, first * detuning.points);
+        update.fine = fine;
+        onUpdate?.({ ...update });
+      }),
+    );
+    update.complete = true;
+    onUpdate?.({ ...update });
+    return update;
+  }
+
+  /** Cuts through zero error over the grid's ranges. */
+  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): Promise<Cuts> {
+    return this.analysis.cuts(target, pulse, detuning, amplitudeError);
+  }
+
+  /** The comparison table and cuts. */
+  compare(request: CompareRequest): Promise<CompareRow[]> {
+    return this.analysis.compare(request);
+  }
+
+  /** Bloch vectors after each sample for one member. */
+  trajectory(pulse: Pulse, member: Member, from: Vec3): Promise<Float64Array> {
+    return this.analysis.trajectory(pulse, member, from);
+  }
+
+  /** Reads a pulse file (rejects with a PulseFormatError named error when malformed). */
+  readPulse(text: string): Promise<Pulse> {
+    return this.analysis.readPulse(text);
+  }
+
+  /** Pulse file text of a pulse. */
+  writePulse(pulse: Pulse): Promise<string> {
+    return this.analysis.writePulse(pulse);
+  }
+
+  /** Releases the workers. */
+  dispose(): void {
+    for (const remote of new Set([this.analysis, ...this.designers])) remote[releaseProxy]();
+    this.onDispose();
+  }
+}
+
+/** Design workers to start: one per core up to four, leaving the analysis worker its own. */
+export function designWorkerCount(hardwareConcurrency: number | undefined): number {
+  return Math.max(1, Math.min(4, hardwareConcurrency || 2));
+}
+
+/** The client over real Web Workers (browser only). */
+export function createBrowserClient(): CoreClient {
+  const workers: Worker[] = [];
+  const start = () => {
+    const worker = new Worker(new URL('./worker.ts', import.meta.url), { type: 'module', name: 'gatesmith-core' });
+    workers.push(worker);
+    return worker;
+  };
+  const analysis = start();
+  const designers = Array.from({ length: designWorkerCount(navigator.hardwareConcurrency) }, start);
+  return new CoreClient(analysis, designers, () => workers.forEach((w) => w.terminate()));
+}

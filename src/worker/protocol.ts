@@ -1,0 +1,146 @@
+// What crosses the worker boundary: plain data (typed arrays moved, not copied) and one
+// coarse call per job. The worker implements CoreService (service.ts); the page reaches it
+// only through the client (client.ts).
+import type { DesignResult, Evaluation, GridAxis, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
+
+/** An error as it survives the boundary: its class name, message and, for a SpecError, the field. */
+export interface ErrorInfo {
+  name: string;
+  message: string;
+  field?: string;
+}
+
+/** The outcome of validating a spec: the normalised problem, or the library's first complaint. */
+export type SpecCheck = { ok: true; problem: Problem } | { ok: false; error: ErrorInfo };
+
+/** A progress report without samples (the convergence chart's point). */
+export type ProgressPoint = Omit<Progress, 'pulse'>;
+
+/** The latest samples of a running start. */
+export interface LivePulse {
+  start: number;
+  iteration: number;
+  i: Float64Array;
+  q: Float64Array;
+}
+
+/** Progress reports gathered over a short interval, so that messages stay few. */
+export interface ProgressBatch {
+  points: ProgressPoint[];
+  /** The newest samples of each start that reported some since the last batch. */
+  live: LivePulse[];
+}
+
+/** Called with each batch while a design runs. */
+export type ProgressSink = (batch: ProgressBatch) => void;
+
+/** A sequence the library can build, for the comparison view's choices. */
+export interface CompositeChoice {
+  name: string;
+  title: string;
+  corrects: string;
+  source: string;
+  angles: string;
+}
+
+/** What the worker reports once the core is loaded. */
+export interface CoreInfo {
+  composites: CompositeChoice[];
+}
+
+/** A design result as returned by one worker for its share of the starts. */
+export type DesignShare = DesignResult;
+
+/** Infidelity on a detuning x amplitude-error grid, row-major by amplitude error. */
+export interface MapResult {
+  detuning: GridAxis;
+  amplitudeError: GridAxis;
+  infidelity: Float64Array;
+}
+
+/** One-dimensional cuts through zero error: along detuning (no amplitude error) and along amplitude error (no detuning). */
+export interface Cuts {
+  detuning: Float64Array;
+  detuningInfidelity: Float64Array;
+  amplitudeError: Float64Array;
+  amplitudeErrorInfidelity: Float64Array;
+}
+
+/** Figures of a pulse: on the spec's ensemble, over a region of errors (issue 3's summary), and of its samples. */
+export interface PulseFigures {
+  /** Weighted mean over the spec's ensemble. */
+  meanInfidelity: number;
+  /** Worst member of the spec's ensemble. */
+  worstInfidelity: number;
+  /** Unweighted mean over the region's grid (the command line's `compare` figure). */
+  regionMeanInfidelity: number;
+  /** Fraction of the grid whose infidelity stays below the threshold. */
+  robustArea: number;
+  /** Largest detuning half-width around zero below the threshold (Hz). */
+  detuningHalfWidth: number;
+  /** Largest amplitude-error half-width around zero below the threshold (relative). */
+  amplitudeHalfWidth: number;
+  duration: number;
+  /** Largest sqrt(I^2 + Q^2) over the samples (Hz). */
+  peak: number;
+  /** Integral of |Omega| dt, in turns. */
+  pulseArea: number;
+  /** Integral of |Omega|^2 dt (Hz^2 s). */
+  energy: number;
+}
+
+/** A pulse to compare, given by the page (designed or opened). */
+export interface NamedPulse {
+  name: string;
+  pulse: Pulse;
+}
+
+/** What the comparison computes: the same grid, threshold and ensemble for every row. */
+export interface CompareRequest {
+  spec: unknown;
+  pulses: NamedPulse[];
+  composites: string[];
+  detuning: GridAxis;
+  amplitudeError: GridAxis;
+  threshold: number;
+}
+
+/** One row of the comparison: a pulse, the target it is judged against, its figures and cuts. */
+export interface CompareRow {
+  name: string;
+  origin: string;
+  /** Absent when the sequence cannot be built for this target (the error says why). */
+  pulse?: Pulse;
+  target?: Target;
+  /** Set when the pulse is judged against its own ideal rather than the spec's target. */
+  note?: string;
+  figures?: PulseFigures;
+  cuts?: Cuts;
+  error?: ErrorInfo;
+}
+
+/** The API the worker exposes; every method is one job. */
+export interface CoreService {
+  /** Loads the core (once) and lists what it can build. */
+  ready(): Promise<CoreInfo>;
+  /** Validates a spec with the library's own rules. */
+  checkSpec(spec: unknown): SpecCheck;
+  /** Designs with the given starts; progress is batched; `stop` ends it early keeping the best pulse. */
+  design(spec: unknown, startIndices: number[], onProgress?: ProgressSink, livePulseEveryMs?: number): Promise<DesignShare>;
+  /** Ends every running design of this worker within one iteration. */
+  stop(): number;
+  /** Figures of a pulse on the spec's ensemble and target. */
+  evaluate(spec: unknown, pulse: Pulse): Promise<Evaluation>;
+  /** Infidelity of a pulse on a grid. */
+  map(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): Promise<MapResult>;
+  /** Cuts through zero error with the grid's ranges and point counts. */
+  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): Promise<Cuts>;
+  /** Summary figures and cuts of the given pulses and composite sequences under the spec's limits. */
+  compare(request: CompareRequest): Promise<CompareRow[]>;
+  /** Bloch vector after each sample for one member, 3 (N + 1) values. */
+  trajectory(pulse: Pulse, member: Member, from: Vec3): Promise<Float64Array>;
+  /** Reads a pulse file's text (PulseFormatError when malformed). */
+  readPulse(text: string): Pulse;
+  /** Writes a pulse file's text. */
+  writePulse(pulse: Pulse): string;
+}

@@ -1,0 +1,262 @@
+// The object the worker exposes: each method is one job over the library (the same code
+// the command line runs). Built over an injected library so that tests can expose it on a
+// MessageChannel in one realm, exactly as the worker does across threads.
+import type { DesignOptions, RobustnessMap } from '../core/api.ts';
+import type { Cut, ErrorAxis, RobustnessSummary, SummaryOptions } from '../core/robustness.ts';
+import type { DesignResult, Evaluation, GridAxis, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
+import type {
+  CompareRequest,
+  CompareRow,
+  CoreInfo,
+  CoreService,
+  CompositeChoice,
+  Cuts,
+  ErrorInfo,
+  LivePulse,
+  MapResult,
+  ProgressPoint,
+  ProgressSink,
+  PulseFigures,
+  SpecCheck,
+} from './protocol.ts';
+import { releaseProxy } from 'comlink';
+import { moved } from './transfer.ts';
+
+/** The library functions the worker serves (bound to the real ones in library.ts). */
+export interface CoreLibrary {
+  parseSpec(json: unknown): Problem;
+  design(spec: unknown, options?: DesignOptions): Promise<DesignResult>;
+  evaluate(spec: unknown, pulse: Pulse): Evaluation;
+  evaluateMembers(target: Target, pulse: Pulse, members: Member[]): Evaluation;
+  robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): RobustnessMap;
+  blochTrajectory(pulse: Pulse, member: Member, from: Vec3): Float64Array;
+  /** Summary figures of a pulse over a region (against its own ideal when it names one). */
+  summarise(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, options?: SummaryOptions): { summary: RobustnessSummary; map: RobustnessMap };
+  /** Infidelity along one error axis, the other held at zero. */
+  cut(target: Target, pulse: Pulse, axis: ErrorAxis, grid: GridAxis): Cut;
+  buildComposite(name: string, options: { angleDeg: number; axisDeg: number; rabiMax: number; dt: number }): Pulse;
+  composites: readonly CompositeChoice[];
+  readPulse(text: string): Pulse;
+  writePulse(pulse: Pulse): string;
+}
+
+/** Gap between two progress messages to the page: often enough for a smooth chart, few enough to stay cheap. */
+export const PROGRESS_BATCH_MS = 50;
+
+/** An error as plain data (class name, message, SpecError field). */
+export function errorInfo(error: unknown): ErrorInfo {
+  if (error instanceof Error) {
+    const field = (error as { field?: unknown }).field;
+    return { name: error.name, message: error.message, ...(typeof field === 'string' ? { field } : {}) };
+  }
+  return { name: 'Error', message: String(error) };
+}
+
+// Gathers progress reports and sends them in batches, each with the newest samples of
+// every start that reported some.
+class ProgressBatcher {
+  private points: ProgressPoint[] = [];
+  private live = new Map<number, LivePulse>();
+  private lastSent = 0;
+  constructor(private readonly sink: ProgressSink | undefined) {}
+
+  add(progress: Progress): void {
+    if (!this.sink) return;
+    const { pulse, ...point } = progress;
+    this.points.push(point);
+    if (pulse) this.live.set(point.start, { start: point.start, iteration: point.iteration, i: pulse.i, q: pulse.q });
+    if (performance.now() - this.lastSent >= PROGRESS_BATCH_MS) void this.flush();
+  }
+
+  /** Sends what has gathered; the promise settles once the page has taken it. */
+  flush(): Promise<void> {
+    if (!this.sink || (this.points.length === 0 && this.live.size === 0)) return Promise.resolve();
+    const batch = moved({ points: this.points, live: [...this.live.values()] });
+    this.points = [];
+    this.live.clear();
+    this.lastSent = performance.now();
+    // Not awaited while designing; a page that has gone away must not fail the design.
+    return Promise.resolve(this.sink(batch)).catch(() => undefined);
+  }
+}
+
+/** Axis phase (degrees) and angle of a gate target whose axis lies in the xy-plane, else null. */
+export function planarGate(target: Target): { angleDeg: number; axisDeg: number } | null {
+  if (target.kind !== 'gate' || Math.abs(target.axis[2]) > 1e-9) return null;
+  return { angleDeg: (target.angleRad * 180) / Math.PI, axisDeg: (Math.atan2(target.axis[1], target.axis[0]) * 180) / Math.PI };
+}
+
+/** Runs jobs on the core one after another. */
+export type CoreLock = <T>(job: () => T | Promise<T>) => Promise<T>;
+
+/**
+ * A lock over one core. The core has one arena, reset by every call: a map run while a
+ * design waits on the event loop would overwrite the optimiser's state, so jobs that touch
+ * the core run one after another. Services sharing a core (in one realm) share a lock.
+ */
+export function createCoreLock(): CoreLock {
+  let queue: Promise<unknown> = Promise.resolve();
+  return <T>(job: () => T | Promise<T>): Promise<T> => {
+    const run = queue.then(job);
+    queue = run.catch(() => undefined);
+    return run;
+  };
+}
+
+/** How a service reaches its core. */
+export interface ServiceOptions {
+  /** Prepares the core (fetching the wasm) once, before the first job. */
+  load?: () => Promise<void>;
+  /** The lock of the core this service uses (default: a lock of its own). */
+  lock?: CoreLock;
+}
+
+/** The worker's API over a library. */
+export function createCoreService(library: CoreLibrary, options: ServiceOptions = {}): CoreService {
+  let loading: Promise<void> | null = null;
+  const running = new Set<AbortController>();
+  const ensureLoaded = () => (loading ??= (options.load ?? (async () => undefined))());
+  const lock = options.lock ?? createCoreLock();
+  // stop and checkSpec do not touch the core and stay immediate.
+  const exclusive = <T>(job: () => T | Promise<T>): Promise<T> => ensureLoaded().then(() => lock(job));
+
+  const cuts = (target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): Cuts => {
+    const alongDetuning = library.cut(target, pulse, 'detuning', detuning);
+    const alongAmplitude = library.cut(target, pulse, 'amplitudeError', amplitudeError);
+    return {
+      detuning: alongDetuning.values,
+      detuningInfidelity: alongDetuning.infidelity,
+      amplitudeError: alongAmplitude.values,
+      amplitudeErrorInfidelity: alongAmplitude.infidelity,
+    };
+  };
+
+  const compareRow = (name: string, origin: string, pulse: Pulse, problem: Problem, request: CompareRequest): CompareRow => {
+    const { summary } = library.summarise(problem.target, pulse, request.detuning, request.amplitudeError, { threshold: request.threshold });
+    const target = summary.targetUsed;
+    // Mean and worst are over the spec's own ensemble (what the design minimised); the
+    // area and half-widths over the region of the request.
+    const evaluation = library.evaluateMembers(target, pulse, problem.members);
+    const figures: PulseFigures = {
+      meanInfidelity: evaluation.meanInfidelity,
+      worstInfidelity: evaluation.worstInfidelity,
+      regionMeanInfidelity: summary.meanInfidelity,
+      robustArea: summary.areaFraction,
+      detuningHalfWidth: summary.detuningHalfWidth,
+      amplitudeHalfWidth: summary.amplitudeHalfWidth,
+      duration: summary.durationS,
+      peak: summary.peakRabiHz,
+      pulseArea: summary.pulseAreaTurns,
+      energy: summary.energyHz2S,
+    };
+    return {
+      name,
+      origin,
+      pulse,
+      target,
+      ...(summary.targetNote ? { note: summary.targetNote } : {}),
+      figures,
+      cuts: cuts(target, pulse, request.detuning, request.amplitudeError),
+    };
+  };
+
+  const compareAll = (request: CompareRequest): CompareRow[] => {
+    const problem = library.parseSpec(request.spec);
+    const rows: CompareRow[] = request.pulses.map((p) =>
+      compareRow(p.name, String(p.pulse.metadata.origin ?? 'design'), p.pulse, problem, request),
+    );
+    const gate = planarGate(problem.target);
+    for (const name of request.composites) {
+      const title = library.composites.find((c) => c.name === name)?.title ?? name;
+      if (!gate) {
+        rows.push({
+          name: title,
+          origin: 'composite',
+          error: { name: 'ArgumentError', message: 'composite sequences are built for a gate target whose axis lies in the xy-plane' },
+        });
+        continue;
+      }
+      try {
+        const pulse = library.buildComposite(name, { ...gate, rabiMax: problem.rabiMax, dt: problem.dt });
+        rows.push(compareRow(title, 'composite', pulse, problem, request));
+      } catch (error) {
+        rows.push({ name: title, origin: 'composite', error: errorInfo(error) });
+      }
+    }
+    return moved(rows);
+  };
+
+  return {
+    async ready(): Promise<CoreInfo> {
+      await ensureLoaded();
+      return { composites: library.composites.map((c) => ({ ...c })) };
+    },
+
+    checkSpec(spec: unknown): SpecCheck {
+      try {
+        return { ok: true, problem: library.parseSpec(spec) };
+      } catch (error) {
+        return { ok: false, error: errorInfo(error) };
+      }
+    },
+
+    design(spec, startIndices, onProgress, livePulseEveryMs = 200) {
+      // Registered before queueing, so that a stop sent while the job waits still ends it.
+      const controller = new AbortController();
+      running.add(controller);
+      const batcher = new ProgressBatcher(onProgress);
+      return exclusive(async () => {
+        const result = await library.design(spec, {
+          signal: controller.signal,
+          startIndices,
+          progressPulseEveryMs: onProgress ? livePulseEveryMs : undefined,
+          onProgress: (progress) => batcher.add(progress),
+        });
+        // The last batch is taken before the result arrives (one channel keeps the order).
+        await batcher.flush();
+        return moved(result);
+      }).finally(() => {
+        running.delete(controller);
+        // A callback proxied from the page holds a message port open until released.
+        (onProgress as { [releaseProxy]?: () => void } | undefined)?.[releaseProxy]?.();
+      });
+    },
+
+    stop(): number {
+      const count = running.size;
+      for (const controller of running) controller.abort();
+      return count;
+    },
+
+    evaluate(spec, pulse) {
+      return exclusive(() => library.evaluate(spec, pulse));
+    },
+
+    map(target, pulse, detuning, amplitudeError) {
+      return exclusive((): MapResult => {
+        const map = library.robustnessMap(target, pulse, detuning, amplitudeError);
+        return moved({ detuning: map.detuning, amplitudeError: map.amplitudeError, infidelity: map.infidelity });
+      });
+    },
+
+    cuts(target, pulse, detuning, amplitudeError) {
+      return exclusive(() => moved(cuts(target, pulse, detuning, amplitudeError)));
+    },
+
+    compare(request) {
+      return exclusive(() => compareAll(request));
+    },
+
+    trajectory(pulse, member, from) {
+      return exclusive(() => moved(library.blochTrajectory(pulse, member, from)));
+    },
+
+    readPulse(text) {
+      return moved(library.readPulse(text));
+    },
+
+    writePulse(pulse) {
+      return library.writePulse(pulse);
+    },
+  };
+}

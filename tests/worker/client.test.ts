@@ -1,0 +1,92 @@
+// The page's client over a pool of services on MessageChannels (no Worker): starts shared
+// among designers and merged, maps coarse first and then in bands, Stop reaching every worker.
+import { afterAll, describe, expect, it } from 'vitest';
+import { design as libraryDesign, robustnessMap } from '../../src/core/api.ts';
+import type { Pulse, Target } from '../../src/core/types.ts';
+import { demoSpec } from '../../src/app/demo.ts';
+import { bandRows, coarseAxis, designWorkerCount, shareStarts, type MapUpdate } from '../../src/worker/client.ts';
+import type { ProgressBatch } from '../../src/worker/protocol.ts';
+import { closePorts, inRealmClient } from './in-realm.ts';
+
+const client = inRealmClient();
+afterAll(() => {
+  client.dispose();
+  closePorts();
+});
+
+describe('sharing work', () => {
+  it('deals starts round-robin and leaves no worker empty', () => {
+    expect(shareStarts(5, 2)).toEqual([[0, 2, 4], [1, 3]]);
+    expect(shareStarts(1, 4)).toEqual([[0]]);
+    expect(shareStarts(3, 3)).toEqual([[0], [1], [2]]);
+  });
+  it('covers every row exactly once with contiguous bands', () => {
+    for (const [rows, bands] of [[201, 3], [5, 8], [1, 2], [100, 1]]) {
+      const covered = bandRows(rows, bands).flatMap(([a, b]) => Array.from({ length: b - a + 1 }, (_, k) => a + k));
+      expect(covered).toEqual(Array.from({ length: rows }, (_, k) => k));
+    }
+  });
+  it('keeps the range of a coarse axis and about a quarter of its points', () => {
+    expect(coarseAxis({ min: -1, max: 1, points: 201 })).toEqual({ min: -1, max: 1, points: 51 });
+    expect(coarseAxis({ min: -1, max: 1, points: 2 })).toEqual({ min: -1, max: 1, points: 2 });
+  });
+  it('starts one design worker per core, at most four', () => {
+    expect(designWorkerCount(2)).toBe(2);
+    expect(designWorkerCount(16)).toBe(4);
+    expect(designWorkerCount(undefined)).toBe(2);
+  });
+});
+
+describe('CoreClient over MessageChannels', () => {
+  it('spreads the starts over the designers and keeps the same best pulse as one library call', async () => {
+    const spec = demoSpec();
+    spec.optimizer = { starts: 4, seed: 5, maxIterations: 80 };
+    const seen = new Set<number>();
+    const outcome = await client.design(spec, 4, (batch: ProgressBatch) => batch.points.forEach((p) => seen.add(p.start)));
+    const direct = await libraryDesign(spec);
+    expect(seen).toEqual(new Set([0, 1, 2, 3]));
+    expect(outcome.starts.map((s) => s.start)).toEqual([0, 1, 2, 3]);
+    expect(outcome.stopped).toBe(false);
+    // Each start is deterministic for its seed and index (issue 2), so the pool must agree with one call.
+    expect(outcome.best.start).toBe(direct.best.start);
+    expect(Array.from(outcome.pulse.i)).toEqual(Array.from(direct.pulse.i));
+    expect(outcome.evaluation.meanInfidelity).toBe(direct.evaluation.meanInfidelity);
+    for (const start of outcome.starts) expect(start.objective).toBeGreaterThanOrEqual(outcome.best.objective);
+  });
+
+  it('stops every worker and returns the best pulse so far', async () => {
+    const spec = demoSpec();
+    spec.segments = 1000;
+    spec.ensemble = { detuning: { min: -1e6, max: 1e6, points: 15 }, amplitudeError: { min: -0.1, max: 0.1, points: 15 } };
+    spec.optimizer = { starts: 2, seed: 1, maxIterations: 100000 };
+    let asked = false;
+    const outcome = await client.design(spec, 2, (batch) => {
+      if (!asked && batch.points.some((p) => p.iteration >= 1)) {
+        asked = true;
+        void client.stop();
+      }
+    });
+    expect(outcome.stopped).toBe(true);
+    expect(outcome.starts.map((s) => s.stopReason)).toEqual(['stopped', 'stopped']);
+    expect(outcome.pulse.i).toHaveLength(1000);
+    expect(client.running).toBe(false);
+  });
+
+  it('draws a map coarse first, then fills the full grid to the library\'s values', async () => {
+    const target: Target = { kind: 'gate', axis: [1, 0, 0], angleRad: Math.PI / 2 };
+    const pulse: Pulse = { dt: 1e-9, i: new Float64Array(25).fill(1e7), q: new Float64Array(25), metadata: {} };
+    const detuning = { min: -2e6, max: 2e6, points: 41 };
+    const amplitudeError = { min: -0.2, max: 0.2, points: 33 };
+    const updates: MapUpdate[] = [];
+    const done = await client.map(target, pulse, detuning, amplitudeError, (u) => updates.push(u));
+    expect(updates[0].fine).toBeUndefined();
+    expect(updates[0].coarse.detuning.points).toBe(11);
+    expect(updates[0].coarse.amplitudeError.points).toBe(9);
+    expect(done.complete).toBe(true);
+    const direct = robustnessMap(target, pulse, detuning, amplitudeError);
+    const fine = done.fine!.infidelity;
+    expect(fine.some(Number.isNaN)).toBe(false);
+    // Bands place their rows by their own end points: equal to rounding of the axis values.
+    for (let k = 0; k < fine.length; k++) expect(Math.abs(fine[k] - direct.infidelity[k])).toBeLessThanOrEqual(1e-13 + 1e-9 * direct.infidelity[k]);
+  });
+});
