@@ -1,7 +1,7 @@
 // The only file of the core that exports to JavaScript: thin (pointer, length, ...)
 // wrappers. Validation happens in TypeScript (src/core); kernels trust their inputs.
 
-export { arenaReset, arenaAlloc, arenaUsed } from './memory';
+export { arenaReset, arenaAlloc, arenaRelease, arenaUsed } from './memory';
 export { ensembleFigure, ensembleGradient, blochPath, currentSeriesTerms, currentHalvings } from './ensemble';
 export { problemSet, problemVariables, problemInfidelity, controlsFromVariables, objective } from './control';
 export {

@@ -70,6 +70,7 @@ for (const segments of [100, 1000]) {
     const pulse = smoothPulse(segments, 2e-7 * (segments / 100), 1e7);
     const job = prepareGradientJob(gate, pulse, members);
     const wasmMs = median(() => job.run(), repsFor(() => job.run(), 300));
+    job.dispose();
     const tsRun = (): void => void oracleGradient(gate, pulse, members);
     const tsMs = median(tsRun, Math.min(30, repsFor(tsRun, 300)), 1);
     const row = { segments, members: count, wasmMs, tsMs, ratio: tsMs / wasmMs, nsPerSegmentMember: (wasmMs * 1e6) / (segments * count) };

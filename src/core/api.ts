@@ -72,13 +72,14 @@ function figures(target: Target, pulse: Pulse, scale: Float64Array, detuning: Fl
   const core = getCore();
   const n = pulse.i.length;
   const m = scale.length;
-  core.reset();
-  const iPtr = core.put(pulse.i), qPtr = core.put(pulse.q);
-  const sPtr = core.put(scale), dPtr = core.put(detuning), wPtr = core.put(weight);
-  const tPtr = core.put(encodeTarget(target));
-  const outPtr = core.alloc(m);
-  core.exports.ensembleFigure(iPtr, qPtr, n, pulse.dt, sPtr, dPtr, wPtr, m, tPtr, targetMode(target), outPtr);
-  return core.read(outPtr, m);
+  return core.job(() => {
+    const iPtr = core.put(pulse.i), qPtr = core.put(pulse.q);
+    const sPtr = core.put(scale), dPtr = core.put(detuning), wPtr = core.put(weight);
+    const tPtr = core.put(encodeTarget(target));
+    const outPtr = core.alloc(m);
+    core.exports.ensembleFigure(iPtr, qPtr, n, pulse.dt, sPtr, dPtr, wPtr, m, tPtr, targetMode(target), outPtr);
+    return core.read(outPtr, m);
+  });
 }
 
 /** Values of a uniform grid axis (a single point sits at the midpoint). */
@@ -132,13 +133,14 @@ export function blochTrajectory(pulse: Pulse, member: Member, from: [number, num
   if (!(norm > 0)) throw new ArgumentError(`from: ${describeValue(from)} is not allowed; give a non-zero Bloch vector`);
   const core = getCore();
   const n = pulse.i.length;
-  core.reset();
-  const iPtr = core.put(pulse.i), qPtr = core.put(pulse.q);
-  // H rotates |0> onto `from`; G is unused by the path.
-  const tPtr = core.put(encodeTarget({ kind: 'state', from, to: from }));
-  const outPtr = core.alloc(3 * (n + 1));
-  core.exports.blochPath(iPtr, qPtr, n, pulse.dt, 1 + member.amplitudeError, member.detuning, tPtr, outPtr);
-  return core.read(outPtr, 3 * (n + 1));
+  return core.job(() => {
+    const iPtr = core.put(pulse.i), qPtr = core.put(pulse.q);
+    // H rotates |0> onto `from`; G is unused by the path.
+    const tPtr = core.put(encodeTarget({ kind: 'state', from, to: from }));
+    const outPtr = core.alloc(3 * (n + 1));
+    core.exports.blochPath(iPtr, qPtr, n, pulse.dt, 1 + member.amplitudeError, member.detuning, tPtr, outPtr);
+    return core.read(outPtr, 3 * (n + 1));
+  });
 }
 
 /** Let the event loop run (abort requests, progress messages) between iterations. */
@@ -157,9 +159,19 @@ function yieldToEventLoop(): Promise<void> {
 
 const YIELD_EVERY_MS = 15;
 
+// The optimiser's state lives in the core's globals: designs on one core run one after
+// another (short jobs such as maps may still run while a design waits between iterations).
+let designQueue: Promise<unknown> = Promise.resolve();
+
 /** Design a pulse by ensemble GRAPE with L-BFGS. */
-export async function design(spec: unknown, options: DesignOptions = {}): Promise<DesignResult> {
+export function design(spec: unknown, options: DesignOptions = {}): Promise<DesignResult> {
   const problem = toProblem(spec);
+  const run = designQueue.then(() => designNow(problem, options));
+  designQueue = run.catch(() => undefined);
+  return run;
+}
+
+async function designNow(problem: Problem, options: DesignOptions): Promise<DesignResult> {
   const t0 = performance.now();
   const indices = options.startIndices ?? Array.from({ length: problem.optimizer.starts }, (_, k) => k);
   if (indices.length === 0) throw new ArgumentError('startIndices: the list is empty; give at least one start');
@@ -200,63 +212,69 @@ async function runStart(problem: Problem, start: number, options: DesignOptions,
   const tStart = performance.now();
   const deadline = tStart + Math.max(0, timeLeftS) * 1000;
 
-  core.reset();
-  const iPtr = core.alloc(n), qPtr = core.alloc(n);
-  const sPtr = core.put(enc.scale), dPtr = core.put(enc.detuning), wPtr = core.put(enc.weight);
-  const tPtr = core.put(encodeTarget(problem.target));
-  const outPtr = core.alloc(enc.padded), gIPtr = core.alloc(n), gQPtr = core.alloc(n), workPtr = core.alloc(12 * n);
-  const nVar = ex.problemSet(n, dt, rabiMax, constraints.bound === 'box' ? 1 : 0, constraints.zeroEdges ? 1 : 0,
-    constraints.smoothness, targetMode(problem.target), enc.padded, iPtr, qPtr, sPtr, dPtr, wPtr, tPtr, outPtr, gIPtr, gQPtr, workPtr);
-  const x0 = core.put(initialVariables(problem, start, nVar));
-  const f0 = ex.optInit(x0, nVar, optimizer.memory, optimizer.gradientTolerance);
-  if (Number.isNaN(f0)) throw new RangeError(`the core ran out of memory for ${n} segments x ${enc.padded} members`);
+  // The start's buffers live above this mark until it ends; short jobs run during its
+  // waits nest above them (see Core.job).
+  const mark = core.mark();
+  try {
+    const iPtr = core.alloc(n), qPtr = core.alloc(n);
+    const sPtr = core.put(enc.scale), dPtr = core.put(enc.detuning), wPtr = core.put(enc.weight);
+    const tPtr = core.put(encodeTarget(problem.target));
+    const outPtr = core.alloc(enc.padded), gIPtr = core.alloc(n), gQPtr = core.alloc(n), workPtr = core.alloc(12 * n);
+    const nVar = ex.problemSet(n, dt, rabiMax, constraints.bound === 'box' ? 1 : 0, constraints.zeroEdges ? 1 : 0,
+      constraints.smoothness, targetMode(problem.target), enc.padded, iPtr, qPtr, sPtr, dPtr, wPtr, tPtr, outPtr, gIPtr, gQPtr, workPtr);
+    const x0 = core.put(initialVariables(problem, start, nVar));
+    const f0 = ex.optInit(x0, nVar, optimizer.memory, optimizer.gradientTolerance);
+    if (Number.isNaN(f0)) throw new RangeError(`the core ran out of memory for ${n} segments x ${enc.padded} members`);
 
-  let iteration = 0;
-  let stopReason: StopReason = 'max-iterations';
-  let lastYield = performance.now();
-  let lastPulse = -Infinity;
-  const report = (): void => {
-    if (!options.onProgress) return;
-    const now = performance.now();
-    const progress: Progress = {
-      start, iteration, meanInfidelity: ex.problemInfidelity(), objective: ex.optObjective(),
-      gradientNorm: ex.optGradientNorm(), elapsedS: (now - t0) / 1000,
+    let iteration = 0;
+    let stopReason: StopReason = 'max-iterations';
+    let lastYield = performance.now();
+    let lastPulse = -Infinity;
+    const report = (): void => {
+      if (!options.onProgress) return;
+      const now = performance.now();
+      const progress: Progress = {
+        start, iteration, meanInfidelity: ex.problemInfidelity(), objective: ex.optObjective(),
+        gradientNorm: ex.optGradientNorm(), elapsedS: (now - t0) / 1000,
+      };
+      if (options.progressPulseEveryMs !== undefined && now - lastPulse >= options.progressPulseEveryMs) {
+        lastPulse = now;
+        progress.pulse = { i: core.read(iPtr, n), q: core.read(qPtr, n) };
+      }
+      options.onProgress(progress);
     };
-    if (options.progressPulseEveryMs !== undefined && now - lastPulse >= options.progressPulseEveryMs) {
-      lastPulse = now;
-      progress.pulse = { i: core.read(iPtr, n), q: core.read(qPtr, n) };
-    }
-    options.onProgress(progress);
-  };
-  report();
-  for (;;) {
-    if (ex.problemInfidelity() <= optimizer.targetInfidelity) { stopReason = 'target-reached'; break; }
-    if (options.signal?.aborted) { stopReason = 'stopped'; break; }
-    if (iteration >= optimizer.maxIterations) { stopReason = 'max-iterations'; break; }
-    if (performance.now() >= deadline) { stopReason = 'time-limit'; break; }
-    const status = ex.optStep();
-    if (status === STEP_GRADIENT_TOLERANCE) { stopReason = 'gradient-tolerance'; break; }
-    if (status === STEP_LINE_SEARCH_FAILED) { stopReason = 'line-search-failed'; break; }
-    iteration++;
     report();
-    if (performance.now() - lastYield > YIELD_EVERY_MS) {
-      await yieldToEventLoop();
-      lastYield = performance.now();
+    for (;;) {
+      if (ex.problemInfidelity() <= optimizer.targetInfidelity) { stopReason = 'target-reached'; break; }
+      if (options.signal?.aborted) { stopReason = 'stopped'; break; }
+      if (iteration >= optimizer.maxIterations) { stopReason = 'max-iterations'; break; }
+      if (performance.now() >= deadline) { stopReason = 'time-limit'; break; }
+      const status = ex.optStep();
+      if (status === STEP_GRADIENT_TOLERANCE) { stopReason = 'gradient-tolerance'; break; }
+      if (status === STEP_LINE_SEARCH_FAILED) { stopReason = 'line-search-failed'; break; }
+      iteration++;
+      report();
+      if (performance.now() - lastYield > YIELD_EVERY_MS) {
+        await yieldToEventLoop();
+        lastYield = performance.now();
+      }
     }
+    // Samples of the accepted point (the last trial of a line search may differ).
+    ex.controlsFromVariables(ex.optVariables());
+    const pulse: Pulse = {
+      dt,
+      i: core.read(iPtr, n),
+      q: core.read(qPtr, n),
+      metadata: { origin: 'design', name: `design start ${start}` },
+    };
+    holdBound(pulse, rabiMax, constraints.bound);
+    return {
+      start, pulse, meanInfidelity: ex.problemInfidelity(), objective: ex.optObjective(),
+      iterations: iteration, evaluations: ex.optEvaluations(), stopReason, elapsedS: (performance.now() - tStart) / 1000,
+    };
+  } finally {
+    core.release(mark);
   }
-  // Samples of the accepted point (the last trial of a line search may differ).
-  ex.controlsFromVariables(ex.optVariables());
-  const pulse: Pulse = {
-    dt,
-    i: core.read(iPtr, n),
-    q: core.read(qPtr, n),
-    metadata: { origin: 'design', name: `design start ${start}` },
-  };
-  holdBound(pulse, rabiMax, constraints.bound);
-  return {
-    start, pulse, meanInfidelity: ex.problemInfidelity(), objective: ex.optObjective(),
-    iterations: iteration, evaluations: ex.optEvaluations(), stopReason, elapsedS: (performance.now() - tStart) / 1000,
-  };
 }
 
 /** Guarantee the amplitude bound on the returned samples, whatever rounding did. */

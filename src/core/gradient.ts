@@ -12,10 +12,11 @@ export interface FigureGradient {
   gradQ: Float64Array;
 }
 
-/** A job placed in wasm memory once; `run` recomputes it (valid until the next core job). */
+/** A job placed in wasm memory once; `run` recomputes it until `dispose` frees its buffers. */
 export interface GradientJob {
   run(): number;
   result(): FigureGradient;
+  dispose(): void;
 }
 
 /** Place pulse, members and target in the core for repeated gradient evaluations. */
@@ -24,7 +25,7 @@ export function prepareGradientJob(target: Target, pulse: Pulse, members: Member
   const core = getCore();
   const n = pulse.i.length;
   const enc = encodeMembers(members, 4, true);
-  core.reset();
+  const mark = core.mark();
   const iPtr = core.put(pulse.i), qPtr = core.put(pulse.q);
   const sPtr = core.put(enc.scale), dPtr = core.put(enc.detuning), wPtr = core.put(enc.weight);
   const tPtr = core.put(encodeTarget(target));
@@ -34,10 +35,16 @@ export function prepareGradientJob(target: Target, pulse: Pulse, members: Member
   return {
     run,
     result: () => ({ mean: run(), perMember: core.read(outPtr, enc.count), gradI: core.read(gIPtr, n), gradQ: core.read(gQPtr, n) }),
+    dispose: () => core.release(mark),
   };
 }
 
 /** Figure and exact gradient of a pulse on an ensemble (weights normalised). */
 export function figureAndGradient(target: Target, pulse: Pulse, members: Member[]): FigureGradient {
-  return prepareGradientJob(target, pulse, members).result();
+  const job = prepareGradientJob(target, pulse, members);
+  try {
+    return job.result();
+  } finally {
+    job.dispose();
+  }
 }

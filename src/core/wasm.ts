@@ -7,6 +7,7 @@ export interface CoreExports {
   arenaReset(): void;
   arenaAlloc(bytes: number): number;
   arenaUsed(): number;
+  arenaRelease(used: number): void;
   ensembleFigure(iPtr: number, qPtr: number, n: number, dt: number, scalePtr: number, detPtr: number,
     wPtr: number, m: number, targetPtr: number, mode: number, outPtr: number): number;
   ensembleGradient(iPtr: number, qPtr: number, n: number, dt: number, scalePtr: number, detPtr: number,
@@ -43,9 +44,25 @@ export class Core {
   constructor(instance: WebAssembly.Instance) {
     this.exports = instance.exports as unknown as CoreExports;
   }
-  /** Start a job: forget every earlier buffer. */
-  reset(): void {
-    this.exports.arenaReset();
+  /**
+   * Run a job whose buffers live only while `fn` runs: they are carved above the
+   * arena's current top and released when it returns (or throws), so jobs nest.
+   */
+  job<T>(fn: () => T): T {
+    const mark = this.exports.arenaUsed();
+    try {
+      return fn();
+    } finally {
+      this.exports.arenaRelease(mark);
+    }
+  }
+  /** The arena's current top, to release back to with `release` (for jobs that span awaits). */
+  mark(): number {
+    return this.exports.arenaUsed();
+  }
+  /** Free every buffer allocated since `mark`. */
+  release(mark: number): void {
+    this.exports.arenaRelease(mark);
   }
   /** Room for `count` f64 values; throws when memory cannot grow. */
   alloc(count: number): number {

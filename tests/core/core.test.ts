@@ -102,17 +102,18 @@ function objectiveAt(target: Target, n: number, dt: number, rabiMax: number, mem
   opts: { box: boolean; zeroEdges: boolean; smoothness: number }, x: Float64Array): { f: number; g: Float64Array; i: Float64Array; q: Float64Array } {
   const core = getCore();
   const enc = encodeMembers(members, 4, true);
-  core.reset();
-  const iPtr = core.alloc(n), qPtr = core.alloc(n);
-  const sPtr = core.put(enc.scale), dPtr = core.put(enc.detuning), wPtr = core.put(enc.weight);
-  const tPtr = core.put(encodeTarget(target));
-  const outPtr = core.alloc(enc.padded), gI = core.alloc(n), gQ = core.alloc(n), work = core.alloc(12 * n);
-  const nVar = core.exports.problemSet(n, dt, rabiMax, opts.box ? 1 : 0, opts.zeroEdges ? 1 : 0, opts.smoothness, targetMode(target),
-    enc.padded, iPtr, qPtr, sPtr, dPtr, wPtr, tPtr, outPtr, gI, gQ, work);
-  expect(nVar).toBe(x.length);
-  const xPtr = core.put(x), gPtr = core.alloc(nVar);
-  const f = core.exports.objective(xPtr, gPtr);
-  return { f, g: core.read(gPtr, nVar), i: core.read(iPtr, n), q: core.read(qPtr, n) };
+  return core.job(() => {
+    const iPtr = core.alloc(n), qPtr = core.alloc(n);
+    const sPtr = core.put(enc.scale), dPtr = core.put(enc.detuning), wPtr = core.put(enc.weight);
+    const tPtr = core.put(encodeTarget(target));
+    const outPtr = core.alloc(enc.padded), gI = core.alloc(n), gQ = core.alloc(n), work = core.alloc(12 * n);
+    const nVar = core.exports.problemSet(n, dt, rabiMax, opts.box ? 1 : 0, opts.zeroEdges ? 1 : 0, opts.smoothness, targetMode(target),
+      enc.padded, iPtr, qPtr, sPtr, dPtr, wPtr, tPtr, outPtr, gI, gQ, work);
+    expect(nVar).toBe(x.length);
+    const xPtr = core.put(x), gPtr = core.alloc(nVar);
+    const f = core.exports.objective(xPtr, gPtr);
+    return { f, g: core.read(gPtr, nVar), i: core.read(iPtr, n), q: core.read(qPtr, n) };
+  });
 }
 
 describe('design objective: bounded variables, penalty, chain rule', () => {

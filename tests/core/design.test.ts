@@ -1,7 +1,7 @@
 // The optimiser end to end through the library API: determinism, stopping, bounds,
 // and designs that beat what the published composite pulses give on the same ensemble.
 import { describe, expect, it } from 'vitest';
-import { design, evaluate } from '../../src/core/api.ts';
+import { design, evaluate, robustnessMap } from '../../src/core/api.ts';
 import { designInThreads } from '../../src/core/threads.ts';
 import type { Progress } from '../../src/core/types.ts';
 import * as oracle from '../reference/oracle.ts';
@@ -103,6 +103,31 @@ describe('design', () => {
       expect(two.starts[k].iterations).toBe(one.starts[k].iterations);
     }
     expect(two.evaluation.meanInfidelity).toBe(one.evaluation.meanInfidelity);
+  });
+
+  it('maps and evaluations run while a design waits, and two designs at once, change nothing', async () => {
+    // The core has one arena and one optimiser state: short jobs nest above a running
+    // start's buffers, and designs queue (src/core/api.ts); both leave the result as alone.
+    const alone = await design(baseSpec);
+    const probe = { kind: 'gate' as const, axis: [1, 0, 0] as [number, number, number], angleRad: Math.PI / 2 };
+    let maps = 0;
+    const [busy, second] = await Promise.all([
+      design(baseSpec, {
+        onProgress: (p) => {
+          if (p.iteration % 25 !== 0) return;
+          const pulse = { dt: 2e-9, i: new Float64Array(100).fill(1e6), q: new Float64Array(100), metadata: {} };
+          robustnessMap(probe, pulse, { min: -1e6, max: 1e6, points: 9 }, { min: -0.1, max: 0.1, points: 9 });
+          evaluate(baseSpec, pulse);
+          maps++;
+        },
+      }),
+      design(baseSpec),
+    ]);
+    expect(maps).toBeGreaterThan(5);
+    for (const r of [busy, second]) {
+      expect(Array.from(r.pulse.i)).toEqual(Array.from(alone.pulse.i));
+      expect(r.evaluation.meanInfidelity).toBe(alone.evaluation.meanInfidelity);
+    }
   });
 
   it('designs a state transfer |0> -> |+x> robust to detuning (Bloch-vector figure, PHYSICS.md section 2)', async () => {
