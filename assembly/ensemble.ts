@@ -85,6 +85,8 @@ export function ensembleFigure(
     const csA = vmul(sA, vsplat(c)), csB = vmul(sB, vsplat(c));
     const bzA = vmul(ld(detPtr, j), vsplat(c)), bzB = vmul(ld(detPtr, j + 2), vsplat(c));
     const bz2A = vmul(bzA, bzA), bz2B = vmul(bzB, bzB);
+    // Negated once per member so that the segment's ui = -S bz costs one multiply.
+    const nbzA = vneg(bzA), nbzB = vneg(bzB);
     let aurA = vsplat(hur), auiA = vsplat(hui), avrA = vsplat(hvr), aviA = vsplat(hvi);
     let aurB = aurA, auiB = auiA, avrB = avrA, aviB = aviA;
 
@@ -92,7 +94,7 @@ export function ensembleFigure(
       const iS = load<f64>(iPtr + (<usize>k << 3));
       const qS = load<f64>(qPtr + (<usize>k << 3));
       const r2 = vsplat(c2 * (iS * iS + qS * qS));
-      const vi = vsplat(iS), vq = vsplat(qS);
+      const vni = vsplat(-iS), vq = vsplat(qS);
       let xA = vmad(s2A, r2, bz2A), xB = vmad(s2B, r2, bz2B);
       if (halv > 0) { xA = vmul(xA, reduce); xB = vmul(xB, reduce); }
       let cosA = seriesCos(xA, terms), cosB = seriesCos(xB, terms);
@@ -105,8 +107,8 @@ export function ensembleFigure(
         xA = vmul(xA, four); xB = vmul(xB, four);
       }
       const sigA = vmul(sA_, csA), sigB = vmul(sB_, csB);
-      const uurA = cosA, uuiA = vneg(vmul(sA_, bzA)), uvrA = vmul(sigA, vq), uviA = vneg(vmul(sigA, vi));
-      const uurB = cosB, uuiB = vneg(vmul(sB_, bzB)), uvrB = vmul(sigB, vq), uviB = vneg(vmul(sigB, vi));
+      const uurA = cosA, uuiA = vmul(sA_, nbzA), uvrA = vmul(sigA, vq), uviA = vmul(sigA, vni);
+      const uurB = cosB, uuiB = vmul(sB_, nbzB), uvrB = vmul(sigB, vq), uviB = vmul(sigB, vni);
       const nurA = qmulUr(uurA, uuiA, uvrA, uviA, aurA, auiA, avrA, aviA);
       const nuiA = qmulUi(uurA, uuiA, uvrA, uviA, aurA, auiA, avrA, aviA);
       const nvrA = qmulVr(uurA, uuiA, uvrA, uviA, aurA, auiA, avrA, aviA);
@@ -184,6 +186,8 @@ export function ensembleGradient(
     const bzB = vmul(ld(detPtr, j + 2), vsplat(c));
     const bz2A = vmul(bzA, bzA);
     const bz2B = vmul(bzB, bzB);
+    const nbzA = vneg(bzA);
+    const nbzB = vneg(bzB);
 
     // Forward sweep: the product A = U_n ... U_1 H; cos a, S and T kept per segment.
     let aurA = hur, auiA = hui, avrA = hvr, aviA = hvi;
@@ -191,6 +195,7 @@ export function ensembleGradient(
     for (let k = 0; k < n; k++) {
       const iS = load<f64>(iPtr + (<usize>k << 3));
       const qS = load<f64>(qPtr + (<usize>k << 3));
+      const vni = vsplat(-iS), vq = vsplat(qS);
       const fullA = vmad(s2A, vsplat(c2 * (iS * iS + qS * qS)), bz2A);
       const fullB = vmad(s2B, vsplat(c2 * (iS * iS + qS * qS)), bz2B);
       let xA = fullA;
@@ -226,8 +231,8 @@ export function ensembleGradient(
       v128.store(slotB, coB); v128.store(slotB, siB, 16); v128.store(slotB, ttB, 32);
       const sigA = vmul(siA, csA);
       const sigB = vmul(siB, csB);
-      const uurA = coA, uuiA = vneg(vmul(siA, bzA)), uvrA = vmul(sigA, vsplat(qS)), uviA = vneg(vmul(sigA, vsplat(iS)));
-      const uurB = coB, uuiB = vneg(vmul(siB, bzB)), uvrB = vmul(sigB, vsplat(qS)), uviB = vneg(vmul(sigB, vsplat(iS)));
+      const uurA = coA, uuiA = vmul(siA, nbzA), uvrA = vmul(sigA, vq), uviA = vmul(sigA, vni);
+      const uurB = coB, uuiB = vmul(siB, nbzB), uvrB = vmul(sigB, vq), uviB = vmul(sigB, vni);
       const nurA = qmulUr(uurA, uuiA, uvrA, uviA, aurA, auiA, avrA, aviA);
       const nurB = qmulUr(uurB, uuiB, uvrB, uviB, aurB, auiB, avrB, aviB);
       const nuiA = qmulUi(uurA, uuiA, uvrA, uviA, aurA, auiA, avrA, aviA);

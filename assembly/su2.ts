@@ -156,53 +156,53 @@ export function halvings(amax: f64): i32 {
   return k;
 }
 
-/** cos a from x = a^2 with `terms` terms (2..10), by Horner. */
+/** cos a from x = a^2 with `terms` terms (2..10), by Horner from the top coefficient. */
 @inline export function seriesCos(x: v128, terms: i32): v128 {
-  let p = vsplat(0.0);
+  let p = v128.load(TABLE + K_C1 + (<usize>(terms - 1) << 4));
   switch (terms) {
-    case 10: p = vmad(p, x, k(K_C10));
-    case 9: p = vmad(p, x, k(K_C9));
-    case 8: p = vmad(p, x, k(K_C8));
-    case 7: p = vmad(p, x, k(K_C7));
-    case 6: p = vmad(p, x, k(K_C6));
-    case 5: p = vmad(p, x, k(K_C5));
-    case 4: p = vmad(p, x, k(K_C4));
-    case 3: p = vmad(p, x, k(K_C3));
-    default: p = vmad(vmad(p, x, k(K_C2)), x, k(K_C1));
+    case 10: p = vmad(p, x, k(K_C9));
+    case 9: p = vmad(p, x, k(K_C8));
+    case 8: p = vmad(p, x, k(K_C7));
+    case 7: p = vmad(p, x, k(K_C6));
+    case 6: p = vmad(p, x, k(K_C5));
+    case 5: p = vmad(p, x, k(K_C4));
+    case 4: p = vmad(p, x, k(K_C3));
+    case 3: p = vmad(p, x, k(K_C2));
+    default: p = vmad(p, x, k(K_C1));
   }
   return vmad(p, x, k(K_ONE));
 }
 
 /** S = sin(a)/a from x = a^2. */
 @inline export function seriesSinc(x: v128, terms: i32): v128 {
-  let p = vsplat(0.0);
+  let p = v128.load(TABLE + K_S1 + (<usize>(terms - 1) << 4));
   switch (terms) {
-    case 10: p = vmad(p, x, k(K_S10));
-    case 9: p = vmad(p, x, k(K_S9));
-    case 8: p = vmad(p, x, k(K_S8));
-    case 7: p = vmad(p, x, k(K_S7));
-    case 6: p = vmad(p, x, k(K_S6));
-    case 5: p = vmad(p, x, k(K_S5));
-    case 4: p = vmad(p, x, k(K_S4));
-    case 3: p = vmad(p, x, k(K_S3));
-    default: p = vmad(vmad(p, x, k(K_S2)), x, k(K_S1));
+    case 10: p = vmad(p, x, k(K_S9));
+    case 9: p = vmad(p, x, k(K_S8));
+    case 8: p = vmad(p, x, k(K_S7));
+    case 7: p = vmad(p, x, k(K_S6));
+    case 6: p = vmad(p, x, k(K_S5));
+    case 5: p = vmad(p, x, k(K_S4));
+    case 4: p = vmad(p, x, k(K_S3));
+    case 3: p = vmad(p, x, k(K_S2));
+    default: p = vmad(p, x, k(K_S1));
   }
   return vmad(p, x, k(K_ONE));
 }
 
 /** T = (cos a - S)/a^2 from x = a^2 (its series converges like that of cos). */
 @inline export function seriesT(x: v128, terms: i32): v128 {
-  let p = vsplat(0.0);
+  let p = v128.load(TABLE + K_T0 + (<usize>(terms - 1) << 4));
   switch (terms) {
-    case 10: p = vmad(p, x, k(K_T9));
-    case 9: p = vmad(p, x, k(K_T8));
-    case 8: p = vmad(p, x, k(K_T7));
-    case 7: p = vmad(p, x, k(K_T6));
-    case 6: p = vmad(p, x, k(K_T5));
-    case 5: p = vmad(p, x, k(K_T4));
-    case 4: p = vmad(p, x, k(K_T3));
-    case 3: p = vmad(p, x, k(K_T2));
-    default: p = vmad(vmad(p, x, k(K_T1)), x, k(K_T0));
+    case 10: p = vmad(p, x, k(K_T8));
+    case 9: p = vmad(p, x, k(K_T7));
+    case 8: p = vmad(p, x, k(K_T6));
+    case 7: p = vmad(p, x, k(K_T5));
+    case 6: p = vmad(p, x, k(K_T4));
+    case 5: p = vmad(p, x, k(K_T3));
+    case 4: p = vmad(p, x, k(K_T2));
+    case 3: p = vmad(p, x, k(K_T1));
+    default: p = vmad(p, x, k(K_T0));
   }
   return p;
 }
