@@ -4,9 +4,11 @@
 //   Run to the first convergence point, the design's wall time, main-thread long tasks
 //   during a design (PerformanceObserver 'longtask': tasks over 50 ms), Stop latency,
 //   and a 201 x 201 map's time to the first coarse image and to full resolution.
-// Usage: npm run bench:app  (needs /usr/bin/chromium).
+// Usage: npm run bench:app (needs /usr/bin/chromium); `npm run bench` runs it too and
+// puts its figures under the key "app".
 import type { Page } from 'playwright-core';
-import { skipReason, startHarness, visit } from '../tests/e2e/harness.ts';
+import { existsSync } from 'node:fs';
+import { CHROMIUM, skipReason, startHarness, visit } from '../tests/e2e/harness.ts';
 
 const REPEATS = 5;
 
@@ -50,11 +52,24 @@ async function setField(page: Page, selector: string, text: string): Promise<voi
   await page.locator(selector).fill(text);
 }
 
-async function main(): Promise<void> {
-  const reason = skipReason();
+/** Medians of the app's figures (ms), and every long task seen during the designs. */
+export interface AppFigures {
+  loadToInteractiveMs: number;
+  firstConvergencePointMs: number;
+  demoDesignMs: number;
+  stopMs: number;
+  map201CoarseMs: number;
+  map201FullMs: number;
+  longTasksMs: number[];
+  longTasksOver50: number;
+}
+
+/** Runs the browser benchmark; `log` receives the table. Null (with the reason logged) without Chromium. */
+export async function appBenchmark(log: (line: string) => void = console.log): Promise<AppFigures | null> {
+  const reason = existsSync(CHROMIUM) ? null : (skipReason() ?? `${CHROMIUM} is missing`);
   if (reason) {
-    console.log(`app benchmark not run: ${reason}`);
-    return;
+    log(`app benchmark not run: ${reason}`);
+    return null;
   }
   const harness = await startHarness();
   try {
@@ -109,8 +124,8 @@ async function main(): Promise<void> {
       );
       await context.close();
     }
-    const row = (name: string, values: number[], unit = 'ms') => console.log(`${name.padEnd(44)} ${median(values).toFixed(1).padStart(9)} ${unit}   (runs: ${values.map((v) => v.toFixed(1)).join(', ')})`);
-    console.log(`gatesmith app benchmark, Chromium headless, ${REPEATS} fresh page loads, medians`);
+    const row = (name: string, values: number[], unit = 'ms') => log(`${name.padEnd(44)} ${median(values).toFixed(1).padStart(9)} ${unit}   (runs: ${values.map((v) => v.toFixed(1)).join(', ')})`);
+    log(`gatesmith app benchmark, Chromium headless, ${REPEATS} fresh page loads, medians`);
     row('page load to first interactive form', loads);
     row('Run to first convergence point', firstPoints);
     row('demo design, Run to figures shown', designs);
@@ -118,12 +133,16 @@ async function main(): Promise<void> {
     row('201 x 201 map: first coarse image', coarse);
     row('201 x 201 map: full resolution', full);
     const over = longTasks.filter((t) => t > 50);
-    console.log(
+    log(
       `${'main-thread long tasks during designs'.padEnd(44)} ${String(longTasks.length).padStart(9)}      (over 50 ms: ${over.length}; longest ${longTasks.length ? Math.max(...longTasks).toFixed(0) : 0} ms)`,
     );
+    return {
+      loadToInteractiveMs: median(loads), firstConvergencePointMs: median(firstPoints), demoDesignMs: median(designs),
+      stopMs: median(stops), map201CoarseMs: median(coarse), map201FullMs: median(full), longTasksMs: longTasks, longTasksOver50: over.length,
+    };
   } finally {
     await harness.close();
   }
 }
 
-await main();
+if (process.argv[1]?.endsWith('app-bench.ts')) await appBenchmark();

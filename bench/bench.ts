@@ -1,13 +1,15 @@
 // The benchmark: speed figures measured in one run, printed as a table (or one JSON
 // object with --json). Never a test: figures vary 10-30 % with the machine's load.
 //   npm run bench            table for people
-//   npm run bench -- --json  {"objectiveGradient": [...], "design": [...], "maps": [...], ...}
+//   npm run bench -- --json  {"objectiveGradient": [...], "design": [...], "maps": [...], "app": {...}}
+//   npm run bench -- --no-app  without the browser figures (bench/app-bench.ts)
 import { readFileSync, readdirSync } from 'node:fs';
 import { design, evaluateMembers, robustnessMap } from '../src/core/api.ts';
 import { prepareGradientJob } from '../src/core/gradient.ts';
 import type { Member, Pulse, Target } from '../src/core/types.ts';
 import { getCore } from '../src/core/wasm.ts';
 import { ensembleGradient as oracleGradient, memberInfidelity } from '../tests/reference/oracle.ts';
+import { appBenchmark, type AppFigures } from './app-bench.ts';
 
 const json = process.argv.includes('--json');
 const log = (text: string): void => {
@@ -118,6 +120,13 @@ for (const file of readdirSync(exampleDir).filter((f) => f.endsWith('.json')).so
   log(`${row.name.padEnd(26)} ${wallS.toFixed(3).padStart(6)}   ${row.meanInfidelity.toExponential(2).padStart(15)}   ${row.worstInfidelity.toExponential(2).padStart(16)}   ${row.iterations}`);
 }
 
+// 5. The app in headless Chromium (skipped without /usr/bin/chromium).
+let app: AppFigures | null = null;
+if (!process.argv.includes('--no-app')) {
+  log('');
+  app = await appBenchmark(log);
+}
+
 if (json) {
-  process.stdout.write(JSON.stringify({ objectiveGradient, design: designs, maps, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs } }) + '\n');
+  process.stdout.write(JSON.stringify({ objectiveGradient, design: designs, maps, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs }, app }) + '\n');
 }
