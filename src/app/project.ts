@@ -2,6 +2,8 @@
 // and the view settings. Read strictly, whole or not at all, so that a malformed file
 // changes nothing; pulses are checked again by the library's pulse reader on opening.
 import type { Evaluation } from '../core/types.ts';
+import { RESAMPLE_METHODS, WAVEFORM_FORMATS } from '../io/export/index.ts';
+import type { ExportForm } from './export-form.ts';
 
 /** The `format` name of a project file. */
 export const PROJECT_FORMAT = 'gatesmith.project';
@@ -31,6 +33,8 @@ export interface ViewSettings {
   map: { detuning: { min: number; max: number; points: number }; amplitudeError: { min: number; max: number; points: number }; threshold: number };
   compare: { composites: string[] };
   bloch: { from: string; member: number };
+  /** The export panel's form, once edited (until then it follows the spec and the pulse). */
+  export?: ExportForm;
 }
 
 /** Everything a project file holds. */
@@ -106,6 +110,39 @@ function readPulseEntry(value: unknown, k: number): StoredPulse {
   return { id: obj.id, label: obj.label, dt, i, q, metadata, ...(evaluation ? { evaluation } : {}) };
 }
 
+function oneOf<T>(value: unknown, where: string, allowed: readonly T[]): T {
+  if (!allowed.includes(value as T)) fail(where, value, `expected one of ${allowed.map((a) => JSON.stringify(a)).join(', ')}`);
+  return value as T;
+}
+
+// Types only: whether the library accepts the values is for the form to show, as when typed.
+function readExportForm(value: unknown): ExportForm {
+  const where = 'settings.export';
+  const obj = record(value, where);
+  const count = (key: string) => finite(obj[key], `${where}.${key}`, (x) => Number.isSafeInteger(x), 'a whole number of samples');
+  const positive = (key: string) => finite(obj[key], `${where}.${key}`, (x) => x > 0, 'a number > 0 (Hz)');
+  const maxLength = obj.maxLength === null ? null : count('maxLength');
+  if (typeof obj.marker !== 'boolean') fail(`${where}.marker`, obj.marker, 'expected true or false');
+  return {
+    sampleRate: positive('sampleRate'),
+    resample: oneOf(obj.resample, `${where}.resample`, RESAMPLE_METHODS),
+    bits: oneOf(obj.bits, `${where}.bits`, [12, 14, 16] as const),
+    fullScale: positive('fullScale'),
+    peakLimit: oneOf(obj.peakLimit, `${where}.peakLimit`, ['amplitude', 'per-channel'] as const),
+    granularity: count('granularity'),
+    minLength: count('minLength'),
+    maxLength,
+    pad: oneOf(obj.pad, `${where}.pad`, ['before', 'after', 'split'] as const),
+    channels: oneOf(obj.channels, `${where}.channels`, ['iq', 'ssb'] as const),
+    intermediateFrequency: finite(obj.intermediateFrequency, `${where}.intermediateFrequency`),
+    sideband: oneOf(obj.sideband, `${where}.sideband`, ['upper', 'lower'] as const),
+    mixerSign: oneOf(obj.mixerSign, `${where}.mixerSign`, [1, -1] as const),
+    marker: obj.marker as boolean,
+    format: oneOf(obj.format, `${where}.format`, WAVEFORM_FORMATS),
+    units: oneOf(obj.units, `${where}.units`, ['codes', 'hz'] as const),
+  };
+}
+
 function readSettings(value: unknown): ViewSettings {
   const defaults = defaultSettings();
   if (value === undefined) return defaults;
@@ -132,6 +169,7 @@ function readSettings(value: unknown): ViewSettings {
     },
     compare: { composites: composites as string[] },
     bloch: { from: bloch.from as string, member: finite(bloch.member, 'settings.bloch.member', Number.isInteger, 'a member index (-1: no error)') },
+    ...(obj.export !== undefined ? { export: readExportForm(obj.export) } : {}),
   };
 }
 

@@ -3,7 +3,20 @@
 // first, then at full resolution in bands computed in parallel. The only `wrap`.
 import { proxy, releaseProxy, wrap, type Endpoint, type Remote } from 'comlink';
 import type { DesignResult, Evaluation, GridAxis, Member, Pulse, Target, Vec3 } from '../core/types.ts';
-import type { CompareRequest, CompareRow, CoreInfo, CoreService, Cuts, MapResult, ProgressBatch, SpecCheck } from './protocol.ts';
+import type { EncodedWaveform } from '../io/export/index.ts';
+import type {
+  CompareRequest,
+  CompareRow,
+  CoreInfo,
+  CoreService,
+  Cuts,
+  ExportFileOptions,
+  ExportJudge,
+  ExportPreview,
+  MapResult,
+  ProgressBatch,
+  SpecCheck,
+} from './protocol.ts';
 
 /** A merged design: the best start over every worker, and whether Stop ended it. */
 export interface DesignOutcome extends DesignResult {
@@ -178,6 +191,16 @@ export class CoreClient {
   /** Pulse file text of a pulse. */
   writePulse(pulse: Pulse): Promise<string> {
     return this.analysis.writePulse(pulse);
+  }
+
+  /** The instrument waveform of a pulse as played, and its report on the judge's members (rejects with ExportError when refused). */
+  exportPreview(pulse: Pulse, settings: unknown, judge: ExportJudge | null): Promise<ExportPreview> {
+    return this.analysis.exportPreview(pulse, settings, judge);
+  }
+
+  /** The exported waveform's file bytes (and description), exactly as the command line writes them. */
+  exportFile(pulse: Pulse, settings: unknown, options: ExportFileOptions): Promise<EncodedWaveform> {
+    return this.analysis.exportFile(pulse, settings, options);
   }
 
   /** Releases the workers. */

@@ -4,6 +4,7 @@ import { buildComposite, compositeNames, type CompositeName } from '../core/comp
 import { cut, summarise } from '../core/robustness.ts';
 import { parseSpec } from '../core/spec.ts';
 import { readPulse, writePulse } from '../io/pulse.ts';
+import { encodeWaveform, exportReport, exportWaveform, samplesToPulse, waveformSamples } from '../io/export/index.ts';
 import type { CoreLibrary } from './service.ts';
 
 /** The library bound for the worker's service. */
@@ -20,4 +21,8 @@ export const library: CoreLibrary = {
   composites: compositeNames,
   readPulse,
   writePulse,
+  exportWaveform,
+  exportReport,
+  encodeWaveform,
+  playedPulse: (waveform) => samplesToPulse(waveformSamples(waveform, 'codes')),
 };

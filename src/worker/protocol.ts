@@ -2,6 +2,7 @@
 // coarse call per job. The worker implements CoreService (service.ts); the page reaches it
 // only through the client (client.ts).
 import type { DesignResult, Evaluation, GridAxis, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
+import type { EncodedWaveform, ExportReport, SampleUnits, WaveformFormat } from '../io/export/index.ts';
 
 /** An error as it survives the boundary: its class name, message and, for a SpecError, the field. */
 export interface ErrorInfo {
@@ -119,6 +120,27 @@ export interface CompareRow {
   error?: ErrorInfo;
 }
 
+/** What an exported waveform is judged against: a target and the ensemble's members (the spec's, normally). */
+export interface ExportJudge {
+  target: Target;
+  members: Member[];
+}
+
+/** The instrument export of a pulse as the export panel shows it. */
+export interface ExportPreview {
+  /** The library's export report (gate figures null without a judge). */
+  report: ExportReport;
+  /** The waveform as played: I/Q in Hz at the instrument sample period, SSB demodulated, padding kept. */
+  played: Pulse;
+}
+
+/** How an exported waveform is written: the container, its units, and metadata for the pulse JSON. */
+export interface ExportFileOptions {
+  format: WaveformFormat;
+  units?: SampleUnits;
+  metadata?: Record<string, unknown>;
+}
+
 /** The API the worker exposes; every method is one job. */
 export interface CoreService {
   /** Loads the core (once) and lists what it can build. */
@@ -143,4 +165,8 @@ export interface CoreService {
   readPulse(text: string): Pulse;
   /** Writes a pulse file's text. */
   writePulse(pulse: Pulse): string;
+  /** The waveform as the instrument plays it and its report, judged on the members when given (ExportError when refused). */
+  exportPreview(pulse: Pulse, settings: unknown, judge: ExportJudge | null): Promise<ExportPreview>;
+  /** The bytes of the exported waveform in a format (and its description for npy and raw), as the command line writes them. */
+  exportFile(pulse: Pulse, settings: unknown, options: ExportFileOptions): Promise<EncodedWaveform>;
 }

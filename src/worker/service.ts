@@ -4,11 +4,13 @@
 import type { DesignOptions, RobustnessMap } from '../core/api.ts';
 import type { Cut, ErrorAxis, RobustnessSummary, SummaryOptions } from '../core/robustness.ts';
 import type { DesignResult, Evaluation, GridAxis, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
+import type { EncodedWaveform, EncodeOptions, ExportedWaveform, ExportReport, PulseEvaluator, WaveformFormat } from '../io/export/index.ts';
 import type {
   CompareRequest,
   CompareRow,
   CoreInfo,
   CoreService,
+  ExportPreview,
   CompositeChoice,
   Cuts,
   ErrorInfo,
@@ -38,6 +40,14 @@ export interface CoreLibrary {
   composites: readonly CompositeChoice[];
   readPulse(text: string): Pulse;
   writePulse(pulse: Pulse): string;
+  /** The instrument waveform of a pulse (ExportError when it is refused). */
+  exportWaveform(pulse: Pulse, settings: unknown): ExportedWaveform;
+  /** The export report; gate figures by `against` (null: the sample figures only). */
+  exportReport(against: PulseEvaluator | null, design: Pulse, waveform: ExportedWaveform): Promise<ExportReport>;
+  /** A waveform's file bytes, identical to what the command line writes. */
+  encodeWaveform(waveform: ExportedWaveform, format: WaveformFormat, options?: EncodeOptions): Promise<EncodedWaveform>;
+  /** The waveform as played: I/Q in Hz at the instrument sample period, SSB demodulated, padding kept. */
+  playedPulse(waveform: ExportedWaveform): Pulse;
 }
 
 /** Gap between two progress messages to the page: often enough for a smooth chart, few enough to stay cheap. */
@@ -257,6 +267,23 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
 
     writePulse(pulse) {
       return library.writePulse(pulse);
+    },
+
+    exportPreview(pulse, settings, judge) {
+      // The evaluation runs on the core, so the whole job waits its turn like any other.
+      return exclusive(async (): Promise<ExportPreview> => {
+        const waveform = library.exportWaveform(pulse, settings);
+        const evaluate = judge ? (p: Pulse) => library.evaluateMembers(judge.target, p, judge.members) : null;
+        const report = await library.exportReport(evaluate, pulse, waveform);
+        return moved({ report, played: library.playedPulse(waveform) });
+      });
+    },
+
+    async exportFile(pulse, settings, options) {
+      // Sampling, quantising and encoding do not touch the core: no need to queue.
+      const waveform = library.exportWaveform(pulse, settings);
+      const { units, metadata } = options;
+      return moved(await library.encodeWaveform(waveform, options.format, { units, metadata }));
     },
   };
 }

@@ -3,7 +3,7 @@
 // Run locally: apt-get install chromium, then npx vitest run tests/e2e.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
-import { screenshot, skipReason, startHarness, visit, type Harness, type Visit } from './harness.ts';
+import { runToEnd, screenshot, skipReason, startHarness, typeInto, visit, type Harness, type Visit } from './harness.ts';
 
 const reason = skipReason();
 if (reason) console.warn(`browser tests skipped: ${reason}`);
@@ -23,19 +23,6 @@ async function open(harness: Harness, hash = ''): Promise<Visit> {
 async function recordViolations(page: Page): Promise<void> {
   const found = await page.evaluate(() => (window as unknown as { __violations?: string[] }).__violations ?? []);
   violations.push(...found);
-}
-
-/** Waits until the run status says the run ended, and returns it. */
-async function runToEnd(page: Page, timeout = 90_000): Promise<string> {
-  const status = page.getByTestId('run-status');
-  await page.waitForFunction(() => /^(done|stopped)/.test(document.querySelector('[data-testid=run-status]')?.textContent ?? ''), undefined, { timeout });
-  return (await status.textContent()) ?? '';
-}
-
-async function typeInto(page: Page, selector: string, text: string): Promise<void> {
-  const input = page.locator(selector);
-  await input.fill(text);
-  await input.dispatchEvent('input');
 }
 
 const figure = async (page: Page, testid: string) => Number((await page.getByTestId(testid).textContent())?.trim());

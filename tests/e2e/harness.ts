@@ -87,3 +87,16 @@ export async function visit(harness: Harness, hash = '', context?: BrowserContex
 export async function screenshot(page: Page, name: string): Promise<void> {
   await page.screenshot({ path: join(SCREENSHOTS, `${name}.png`), fullPage: true });
 }
+
+/** Types into a text field as a user does (the field reads its text on every input). */
+export async function typeInto(page: Page, selector: string, text: string): Promise<void> {
+  const input = page.locator(selector);
+  await input.fill(text);
+  await input.dispatchEvent('input');
+}
+
+/** Waits until the run status says the run ended, and returns it. */
+export async function runToEnd(page: Page, timeout = 90_000): Promise<string> {
+  await page.waitForFunction(() => /^(done|stopped)/.test(document.querySelector('[data-testid=run-status]')?.textContent ?? ''), undefined, { timeout });
+  return (await page.getByTestId('run-status').textContent()) ?? '';
+}

@@ -43,7 +43,9 @@ export function exportWaveform(pulse: Pulse, settingsInput: unknown): ExportedWa
 
   let signal: Float64Array[];
   if (settings.channels === 'ssb') {
-    checkSsb(pulse, resampled.ratio, settings, warnings);
+    // A ratio within rounding of a whole number counts as that number (dt = duration/segments
+    // carries the division's last bit), as it does for holding.
+    checkSsb(pulse, resampled.holdSamples ?? resampled.ratio, settings, warnings);
     signal = [modulateSsb(i, q, settings)];
   } else {
     signal = [i, q];

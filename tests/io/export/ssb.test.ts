@@ -127,4 +127,11 @@ describe('SSB spectrum (a plain DFT)', () => {
       expect(wrap(Math.atan2(ii, ir) + phi)).toBeCloseTo(0, 12);
     }
   });
+
+  it('accepts 2 samples per design sample when dt carries a rounding error (2e-7/100 at 1 GS/s)', () => {
+    // 2e-7 / 100 * 1e9 = 1.9999999999999998 in IEEE 754 arithmetic; holding counts it as 2,
+    // and so must the single-sideband check.
+    const w = exportWaveform(shapedPulse(5e6, 100, 2e-7 / 100), { sampleRate: 1e9, bits: 14, fullScale: 1e7, channels: 'ssb', intermediateFrequency: 1e8 });
+    expect(w.description.length).toBe(200);
+  });
 });
