@@ -319,10 +319,10 @@ export function ensembleGradient(
       // w = S b; rotation coefficients
       const wxA = vmul(siA, bxA), wyA = vmul(siA, byA), wzA = vmul(siA, bzA);
       const wxB = vmul(siB, bxB), wyB = vmul(siB, byB), wzB = vmul(siB, bzB);
-      const c2aA = vsub(vmul(coA, coA), vmul(ssA, vmad(bxA, bxA, vmad(byA, byA, vmul(bzA, bzA)))));
-      const c2aB = vsub(vmul(coB, coB), vmul(ssB, vmad(bxB, bxB, vmad(byB, byB, vmul(bzB, bzB)))));
       const c2cA = vadd(coA, coA);
+      const c2aA = vsub(vmul(c2cA, coA), one); // cos 2a = 2 cos^2 a - 1
       const c2cB = vadd(coB, coB);
+      const c2aB = vsub(vmul(c2cB, coB), one); // cos 2a = 2 cos^2 a - 1
       {
         const mwA = vmad(mxA, wxA, vmad(myA, wyA, vmul(mzA, wzA)));
         const mwB = vmad(mxB, wxB, vmad(myB, wyB, vmul(mzB, wzB)));
