@@ -30,6 +30,8 @@ export interface CommandDefinition {
   summary: string;
   args: ArgSpec;
   help: string;
+  /** 'exact' (default): the positionals of `args`, checked; 'any': as given, for the body to check. */
+  positionals?: 'exact' | 'any';
   /** Runs with the required positionals checked and --help already answered. */
   body(positionals: string[], flags: ParsedArgs['flags'], io: CliIO): Promise<number>;
 }
@@ -46,7 +48,8 @@ export function defineCommand(def: CommandDefinition): Command {
         io.stdout(def.help);
         return 0;
       }
-      return def.body(requirePositionals(parsed, def.args), parsed.flags, io);
+      const positionals = def.positionals === 'any' ? parsed.positionals : requirePositionals(parsed, def.args);
+      return def.body(positionals, parsed.flags, io);
     },
   };
 }

@@ -4,8 +4,9 @@ import { ArgumentError } from '../core/errors.ts';
 import type { CompositeName } from '../core/composites.ts';
 import type { RobustnessSummary, SortFigure } from '../core/robustness.ts';
 import type { Problem, Pulse, Target } from '../core/types.ts';
-import { optionsHelp, parseArgs, usageLine, type ArgSpec } from './args.ts';
+import { optionsHelp, usageLine, type ArgSpec } from './args.ts';
 import { REGION_FLAGS, formatGrid, formatWidth, percent, pulseName, regionOf, thresholdOf } from './analysis-flags.ts';
+import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
 import { loadPulse, loadSpec } from './files.ts';
 import { formatFrequency, formatInfidelity, formatTarget, formatTime } from './format.ts';
@@ -54,27 +55,24 @@ ${optionsHelp(ARGS)}
 type Row = RobustnessSummary & { name: string; source: string };
 
 /** The `compare` subcommand. */
-export const compareCommand: Command = {
+export const compareCommand: Command = defineCommand({
   name: 'compare',
   summary: 'table of summary figures of several pulses and composites, best first',
+  args: ARGS,
   help: HELP,
-  async run(argv: string[], io: CliIO): Promise<number> {
-    const args = parseArgs(argv, ARGS);
-    if (args.help) {
-      io.stdout(HELP);
-      return 0;
-    }
-    const [specPath, ...pulsePaths] = args.positionals;
+  positionals: 'any',
+  async body(positionals, flags, io: CliIO): Promise<number> {
+    const [specPath, ...pulsePaths] = positionals;
     if (specPath === undefined) throw new ArgumentError(`compare: missing SPEC; usage: ${usageLine(ARGS)}`);
-    const sortBy = (typeof args.flags.sort === 'string' ? args.flags.sort : 'mean') as SortFigure;
+    const sortBy = (typeof flags.sort === 'string' ? flags.sort : 'mean') as SortFigure;
     if (!SORTS.includes(sortBy)) throw new ArgumentError(`--sort: "${sortBy}" is not allowed; one of ${SORTS.join(', ')}`);
-    const compositeList = typeof args.flags.composites === 'string' ? splitList(args.flags.composites) : [];
+    const compositeList = typeof flags.composites === 'string' ? splitList(flags.composites) : [];
     if (pulsePaths.length === 0 && compositeList.length === 0) {
       throw new ArgumentError(`compare: give at least one PULSE file or --composites LIST; usage: ${usageLine(ARGS)}`);
     }
     const spec = loadSpec(specPath);
-    const region = regionOf(args.flags, spec.problem);
-    const threshold = thresholdOf(args.flags);
+    const region = regionOf(flags, spec.problem);
+    const threshold = thresholdOf(flags);
     const pulses: { name: string; source: string; pulse: Pulse }[] = pulsePaths.map((path) => {
       const pulse = loadPulse(path);
       return { name: pulseName(pulse, path), source: path, pulse };
@@ -102,13 +100,13 @@ export const compareCommand: Command = {
       ...summarise(spec.problem.target, pulse, region.detuning, region.amplitudeError, { threshold }).summary,
     }));
     const sorted = compareSummaries(rows, sortBy);
-    if (args.flags.json) {
+    if (flags.json) {
       const json = { target: spec.problem.target, ...region, threshold: sorted[0].threshold, sortBy, rows: sorted };
       io.stdout(JSON.stringify(json, null, 2) + '\n');
     } else io.stdout(compareTable(sorted, spec.problem, sortBy));
     return 0;
   },
-};
+});
 
 /** The rotation the composites are built for: the spec's gate (axis in the xy-plane) or an inversion. */
 export function compositeRotation(target: Target): { angleDeg: number; axisDeg: number } {

@@ -6,8 +6,9 @@ import { ArgumentError } from '../core/errors.ts';
 import { buildComposite, compositeNames, type Bb1Placement, type CompositeMetadata, type CompositeName } from '../core/composites.ts';
 import type { Pulse } from '../core/types.ts';
 import { writePulse } from '../io/pulse.ts';
-import { optionsHelp, parseArgs, usageLine, type ArgSpec } from './args.ts';
+import { optionsHelp, usageLine, type ArgSpec } from './args.ts';
 import { numberFlag } from './analysis-flags.ts';
+import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
 import { checkWritable, writeText } from './files.ts';
 import { formatFrequency, formatTarget, formatTime } from './format.ts';
@@ -51,29 +52,26 @@ ${optionsHelp(ARGS)}
 `;
 
 /** The `composite` subcommand. */
-export const compositeCommand: Command = {
+export const compositeCommand: Command = defineCommand({
   name: 'composite',
   summary: 'build a published composite pulse (BB1, SK1, CORPSE, ...) or list them',
+  args: ARGS,
   help: HELP,
-  async run(argv: string[], io: CliIO): Promise<number> {
-    const args = parseArgs(argv, ARGS);
-    if (args.help) {
-      io.stdout(HELP);
+  positionals: 'any',
+  async body(positionals, flags, io: CliIO): Promise<number> {
+    if (flags.list) {
+      if (positionals.length > 0) throw new ArgumentError(`composite: --list takes no NAME (got "${positionals[0]}")`);
+      io.stdout(flags.json ? JSON.stringify(compositeNames, null, 2) + '\n' : listText());
       return 0;
     }
-    if (args.flags.list) {
-      if (args.positionals.length > 0) throw new ArgumentError(`composite: --list takes no NAME (got "${args.positionals[0]}")`);
-      io.stdout(args.flags.json ? JSON.stringify(compositeNames, null, 2) + '\n' : listText());
-      return 0;
-    }
-    if (args.positionals.length !== 1) {
+    if (positionals.length !== 1) {
       throw new ArgumentError(`composite: give one NAME (${compositeNames.map((c) => c.name).join(', ')}) or --list; usage: ${usageLine(ARGS)}`);
     }
-    const name = args.positionals[0].toLowerCase();
+    const name = positionals[0].toLowerCase();
     if (!compositeNames.some((c) => c.name === name)) {
-      throw new ArgumentError(`composite: "${args.positionals[0]}" is not a known sequence; one of ${compositeNames.map((c) => c.name).join(', ')}`);
+      throw new ArgumentError(`composite: "${positionals[0]}" is not a known sequence; one of ${compositeNames.map((c) => c.name).join(', ')}`);
     }
-    const text = (flag: string): string | undefined => (typeof args.flags[flag] === 'string' ? (args.flags[flag] as string) : undefined);
+    const text = (flag: string): string | undefined => (typeof flags[flag] === 'string' ? (flags[flag] as string) : undefined);
     const required = (flag: string): string => {
       const v = text(flag);
       if (v === undefined) throw new ArgumentError(`composite: --${flag} is required; usage: ${usageLine(ARGS)}`);
@@ -101,12 +99,12 @@ export const compositeCommand: Command = {
       throw error;
     }
     if (out !== undefined) writeText(out, writePulse(pulse), '--out');
-    if (args.flags.json) {
+    if (flags.json) {
       io.stdout(JSON.stringify({ samples: pulse.i.length, dt: pulse.dt, durationS: pulse.i.length * pulse.dt, metadata: pulse.metadata, out: out ?? null }, null, 2) + '\n');
     } else io.stdout(elementsText(pulse, out));
     return 0;
   },
-};
+});
 
 /** "angleDeg: 90 is not allowed; ..." -> "--angle-deg: 90 is not allowed; ...". */
 function flagNames(message: string): string {

@@ -10,9 +10,8 @@ import { join } from 'node:path';
 import { robustnessMap } from '../../src/core/api.ts';
 import { buildComposite, compositeNames } from '../../src/core/composites.ts';
 import { SORT_FIGURES } from '../../src/core/robustness.ts';
-import type { CliIO } from '../../src/cli/command.ts';
 import type { Target } from '../../src/core/types.ts';
-import { main } from '../../src/cli/main.ts';
+import { run } from './run.ts';
 import { readPulse } from '../../src/io/pulse.ts';
 import { MAP_COLUMNS } from '../../src/io/map-file.ts';
 
@@ -20,13 +19,6 @@ const ROOT = new URL('../../', import.meta.url).pathname;
 const TRANSMON = join(ROOT, 'examples/transmon-x90.json');
 const TRANSMON_SPEC = JSON.parse(readFileSync(TRANSMON, 'utf8'));
 const X90: Target = { kind: 'gate', axis: [1, 0, 0], angleRad: Math.PI / 2 };
-
-async function run(argv: string[]): Promise<{ code: number; stdout: string; stderr: string }> {
-  const out = { stdout: '', stderr: '' };
-  const io: CliIO = { stdout: (t) => void (out.stdout += t), stderr: (t) => void (out.stderr += t), isTTY: false };
-  const code = await main(argv, io);
-  return { code, ...out };
-}
 
 let dir: string;
 let x180Spec: string;

@@ -5,15 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import type { CliIO } from '../../src/cli/command.ts';
-import { main } from '../../src/cli/main.ts';
-
-async function run(argv: string[]): Promise<{ code: number; stdout: string; stderr: string }> {
-  const out = { stdout: '', stderr: '' };
-  const io: CliIO = { stdout: (t) => void (out.stdout += t), stderr: (t) => void (out.stderr += t), isTTY: false };
-  const code = await main(argv, io);
-  return { code, ...out };
-}
+import { run } from './run.ts';
 
 let dir: string;
 let spec: string;
