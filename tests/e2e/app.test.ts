@@ -167,6 +167,41 @@ describe.skipIf(reason !== null)('the app in Chromium', () => {
     await recordViolations(page);
   }, 120_000);
 
+  it('draws the waveform as I/Q and as amplitude and phase, and turns the Bloch sphere on a drag', async () => {
+    const { page } = await fresh();
+    await page.getByTestId('run').click();
+    await runToEnd(page);
+    await page.keyboard.press('Alt+2');
+    await page.getByRole('heading', { name: 'Waveform' }).waitFor();
+    await page.getByLabel('amplitude and phase').check();
+    await page.waitForTimeout(800); // charts redraw a few times a second, not at once
+    await screenshot(page, 'e2e-12-waveform-polar');
+    await page.keyboard.press('Alt+5');
+    const canvas = page.getByTestId('bloch');
+    await canvas.waitFor();
+    const pixels = () => page.evaluate(() => {
+      const c = document.querySelector('[data-testid=bloch]') as HTMLCanvasElement;
+      return Array.from(c.getContext('2d')!.getImageData(0, 0, c.width, c.height).data);
+    });
+    const before = await pixels();
+    // Not blank: the sphere, its axes and the trajectory give many distinct colours.
+    const colours = new Set<number>();
+    for (let k = 0; k < before.length; k += 4) colours.add((before[k] << 16) | (before[k + 1] << 8) | before[k + 2]);
+    expect(colours.size).toBeGreaterThan(20);
+    const box = (await canvas.boundingBox())!;
+    await page.mouse.move(box.x + box.width / 2, box.y + box.height / 2);
+    await page.mouse.down();
+    await page.mouse.move(box.x + box.width / 2 + 80, box.y + box.height / 2 + 30, { steps: 8 });
+    await page.mouse.up();
+    await page.waitForTimeout(100);
+    const after = await pixels();
+    let changed = 0;
+    for (let k = 0; k < after.length; k++) if (after[k] !== before[k]) changed++;
+    expect(changed).toBeGreaterThan(1000);
+    await screenshot(page, 'e2e-13-bloch');
+    await recordViolations(page);
+  }, 120_000);
+
   it('shows an invalid field\'s message under it and blocks running until it is fixed', async () => {
     const { page } = await fresh();
     await typeInto(page, '#f-segments', '0');
