@@ -9,7 +9,7 @@
 // Variables are interleaved (x_k, y_k) over the free samples; with zero edges the first
 // and last samples are held at zero and carry no variable.
 
-import { ensembleGradient } from './ensemble';
+import { ensembleGradient } from './gradient';
 
 const TANH_CAP: f64 = 1.0 - 8.881784197001252e-16;
 

@@ -2,7 +2,8 @@
 // wrappers. Validation happens in TypeScript (src/core); kernels trust their inputs.
 
 export { arenaReset, arenaAlloc, arenaRelease, arenaUsed } from './memory';
-export { ensembleFigure, ensembleGradient, blochPath, currentSeriesTerms, currentHalvings } from './ensemble';
+export { ensembleFigure, blochPath, currentSeriesTerms, currentHalvings } from './ensemble';
+export { ensembleGradient } from './gradient';
 export { problemSet, problemVariables, problemInfidelity, controlsFromVariables, objective } from './control';
 export {
   optInit, optStep, optObjective, optGradientNorm, optVariables, optEvaluations, optIterations,

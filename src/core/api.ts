@@ -208,7 +208,8 @@ async function runStart(problem: Problem, start: number, options: DesignOptions,
   const core = getCore();
   const ex = core.exports;
   const { segments: n, dt, rabiMax, constraints, optimizer } = problem;
-  const enc = encodeMembers(problem.members, 4, true);
+  // Pairs of members; the gradient kernel takes a last pair alone (assembly/gradient.ts).
+  const enc = encodeMembers(problem.members, 2, true);
   const tStart = performance.now();
   const deadline = tStart + Math.max(0, timeLeftS) * 1000;
 

@@ -24,7 +24,7 @@ export function prepareGradientJob(target: Target, pulse: Pulse, members: Member
   checkPulse(pulse);
   const core = getCore();
   const n = pulse.i.length;
-  const enc = encodeMembers(members, 4, true);
+  const enc = encodeMembers(members, 2, true);
   const mark = core.mark();
   const iPtr = core.put(pulse.i), qPtr = core.put(pulse.q);
   const sPtr = core.put(enc.scale), dPtr = core.put(enc.detuning), wPtr = core.put(enc.weight);
