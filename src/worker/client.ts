@@ -210,9 +210,13 @@ export class CoreClient {
   }
 }
 
-/** Design workers to start: one per core up to four, leaving the analysis worker its own. */
+/**
+ * Design workers to start: one per core but one, up to four. The spare core keeps the page
+ * responsive: on a 2-core machine two design workers left main-thread tasks of 50-73 ms
+ * (chart redraws preempted), one leaves none and the demo design takes 0.57 s instead of 0.5 s.
+ */
 export function designWorkerCount(hardwareConcurrency: number | undefined): number {
-  return Math.max(1, Math.min(4, hardwareConcurrency || 2));
+  return Math.max(1, Math.min(4, (hardwareConcurrency || 2) - 1));
 }
 
 /** The client over real Web Workers (browser only). */

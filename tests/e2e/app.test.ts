@@ -179,24 +179,27 @@ describe.skipIf(reason !== null)('the app in Chromium', () => {
     await page.keyboard.press('Alt+5');
     const canvas = page.getByTestId('bloch');
     await canvas.waitFor();
-    const pixels = () => page.evaluate(() => {
+    // Pixels stay in the page: the first picture is kept there, the second compared with it.
+    const snapshot = () => page.evaluate(() => {
       const c = document.querySelector('[data-testid=bloch]') as HTMLCanvasElement;
-      return Array.from(c.getContext('2d')!.getImageData(0, 0, c.width, c.height).data);
+      const data = c.getContext('2d')!.getImageData(0, 0, c.width, c.height).data;
+      const w = window as unknown as { __bloch?: Uint8ClampedArray };
+      let changed = 0;
+      if (w.__bloch) for (let k = 0; k < data.length; k++) if (data[k] !== w.__bloch[k]) changed++;
+      w.__bloch = data;
+      const colours = new Set<number>();
+      for (let k = 0; k < data.length; k += 4) colours.add((data[k] << 16) | (data[k + 1] << 8) | data[k + 2]);
+      return { colours: colours.size, changed };
     });
-    const before = await pixels();
     // Not blank: the sphere, its axes and the trajectory give many distinct colours.
-    const colours = new Set<number>();
-    for (let k = 0; k < before.length; k += 4) colours.add((before[k] << 16) | (before[k + 1] << 8) | before[k + 2]);
-    expect(colours.size).toBeGreaterThan(20);
+    expect((await snapshot()).colours).toBeGreaterThan(20);
     const box = (await canvas.boundingBox())!;
     await page.mouse.move(box.x + box.width / 2, box.y + box.height / 2);
     await page.mouse.down();
     await page.mouse.move(box.x + box.width / 2 + 80, box.y + box.height / 2 + 30, { steps: 8 });
     await page.mouse.up();
     await page.waitForTimeout(100);
-    const after = await pixels();
-    let changed = 0;
-    for (let k = 0; k < after.length; k++) if (after[k] !== before[k]) changed++;
+    const { changed } = await snapshot();
     expect(changed).toBeGreaterThan(1000);
     await screenshot(page, 'e2e-13-bloch');
     await recordViolations(page);

@@ -30,10 +30,11 @@ describe('sharing work', () => {
     expect(coarseAxis({ min: -1, max: 1, points: 201 })).toEqual({ min: -1, max: 1, points: 51 });
     expect(coarseAxis({ min: -1, max: 1, points: 2 })).toEqual({ min: -1, max: 1, points: 2 });
   });
-  it('starts one design worker per core, at most four', () => {
-    expect(designWorkerCount(2)).toBe(2);
+  it('starts one design worker per core but one (at least one, at most four)', () => {
+    expect(designWorkerCount(2)).toBe(1);
     expect(designWorkerCount(16)).toBe(4);
-    expect(designWorkerCount(undefined)).toBe(2);
+    expect(designWorkerCount(undefined)).toBe(1);
+    expect(designWorkerCount(4)).toBe(3);
   });
 });
 
