@@ -5,7 +5,7 @@ import { basename } from 'node:path';
 import { ArgumentError } from '../core/errors.ts';
 import type { RobustnessSummary } from '../core/robustness.ts';
 import type { GridAxis, Problem, Pulse } from '../core/types.ts';
-import type { FlagSpec, ParsedArgs } from './args.ts';
+import { flagValue, type FlagSpec, type ParsedArgs } from './args.ts';
 import { formatFrequency, formatInfidelity, formatRelative, formatTarget, formatTime } from './format.ts';
 
 /** Points per axis of the default region. */
@@ -49,7 +49,7 @@ export function regionOf(flags: ParsedArgs['flags'], problem: Problem): { detuni
     const max = Math.max(...v);
     return { min, max, points: min === max ? 1 : DEFAULT_POINTS };
   };
-  const text = (name: string) => (typeof flags[name] === 'string' ? (flags[name] as string) : undefined);
+  const text = (name: string) => flagValue(flags, name);
   const d = text('detuning');
   const a = text('amplitude');
   return {
@@ -60,8 +60,8 @@ export function regionOf(flags: ParsedArgs['flags'], problem: Problem): { detuni
 
 /** --threshold, or undefined for the default. */
 export function thresholdOf(flags: ParsedArgs['flags']): number | undefined {
-  const t = flags.threshold;
-  if (typeof t !== 'string') return undefined;
+  const t = flagValue(flags, 'threshold');
+  if (t === undefined) return undefined;
   return numberFlag(t, '--threshold', 'an infidelity between 0 and 1 (exclusive), e.g. 1e-4', (x) => x > 0 && x < 1);
 }
 

@@ -25,6 +25,19 @@ export interface ParsedArgs {
   help: boolean;
 }
 
+/** The value given to a flag that takes one, or undefined when it was not given. */
+export function flagValue(flags: ParsedArgs['flags'], name: string): string | undefined {
+  const v = flags[name];
+  return typeof v === 'string' ? v : undefined;
+}
+
+/** The value of a flag the command cannot do without; a missing one is an ArgumentError with the usage. */
+export function requiredFlag(flags: ParsedArgs['flags'], name: string, spec: ArgSpec): string {
+  const v = flagValue(flags, name);
+  if (v === undefined) throw new ArgumentError(`${spec.command}: --${name} is required; usage: ${usageLine(spec)}`);
+  return v;
+}
+
 /** Parses a command's arguments (without the command name itself). */
 export function parseArgs(argv: string[], spec: ArgSpec): ParsedArgs {
   const parsed: ParsedArgs = { positionals: [], flags: {}, help: false };

@@ -4,7 +4,7 @@ import { ArgumentError } from '../core/errors.ts';
 import type { CompositeName } from '../core/composites.ts';
 import type { RobustnessSummary, SortFigure } from '../core/robustness.ts';
 import type { Problem, Pulse, Target } from '../core/types.ts';
-import { optionsHelp, usageLine, type ArgSpec } from './args.ts';
+import { flagValue, optionsHelp, usageLine, type ArgSpec } from './args.ts';
 import { REGION_FLAGS, formatGrid, formatWidth, percent, pulseName, regionOf, thresholdOf } from './analysis-flags.ts';
 import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
@@ -64,9 +64,10 @@ export const compareCommand: Command = defineCommand({
   async body(positionals, flags, io: CliIO): Promise<number> {
     const [specPath, ...pulsePaths] = positionals;
     if (specPath === undefined) throw new ArgumentError(`compare: missing SPEC; usage: ${usageLine(ARGS)}`);
-    const sortBy = (typeof flags.sort === 'string' ? flags.sort : 'mean') as SortFigure;
+    const sortBy = (flagValue(flags, 'sort') ?? 'mean') as SortFigure;
     if (!SORTS.includes(sortBy)) throw new ArgumentError(`--sort: "${sortBy}" is not allowed; one of ${SORTS.join(', ')}`);
-    const compositeList = typeof flags.composites === 'string' ? splitList(flags.composites) : [];
+    const composites = flagValue(flags, 'composites');
+    const compositeList = composites === undefined ? [] : splitList(composites);
     if (pulsePaths.length === 0 && compositeList.length === 0) {
       throw new ArgumentError(`compare: give at least one PULSE file or --composites LIST; usage: ${usageLine(ARGS)}`);
     }

@@ -6,7 +6,7 @@ import { ArgumentError } from '../core/errors.ts';
 import { buildComposite, compositeNames, type Bb1Placement, type CompositeMetadata, type CompositeName } from '../core/composites.ts';
 import type { Pulse } from '../core/types.ts';
 import { writePulse } from '../io/pulse.ts';
-import { optionsHelp, usageLine, type ArgSpec } from './args.ts';
+import { flagValue, optionsHelp, requiredFlag, usageLine, type ArgSpec } from './args.ts';
 import { numberFlag } from './analysis-flags.ts';
 import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
@@ -71,12 +71,8 @@ export const compositeCommand: Command = defineCommand({
     if (!compositeNames.some((c) => c.name === name)) {
       throw new ArgumentError(`composite: "${positionals[0]}" is not a known sequence; one of ${compositeNames.map((c) => c.name).join(', ')}`);
     }
-    const text = (flag: string): string | undefined => (typeof flags[flag] === 'string' ? (flags[flag] as string) : undefined);
-    const required = (flag: string): string => {
-      const v = text(flag);
-      if (v === undefined) throw new ArgumentError(`composite: --${flag} is required; usage: ${usageLine(ARGS)}`);
-      return v;
-    };
+    const text = (flag: string): string | undefined => flagValue(flags, flag);
+    const required = (flag: string): string => requiredFlag(flags, flag, ARGS);
     const positive = (x: number) => x > 0;
     const angleDeg = numberFlag(required('angle-deg'), '--angle-deg', 'a finite angle in degrees');
     const axisText = text('axis-deg');

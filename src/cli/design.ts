@@ -4,7 +4,7 @@ import { availableParallelism } from 'node:os';
 import { ArgumentError } from '../core/errors.ts';
 import type { DesignResult, MemberFigure, Problem, Pulse } from '../core/types.ts';
 import { writePulse } from '../io/pulse.ts';
-import { optionsHelp, usageLine } from './args.ts';
+import { flagValue, optionsHelp, usageLine } from './args.ts';
 import type { ArgSpec } from './args.ts';
 import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
@@ -44,7 +44,7 @@ export const designCommand: Command = defineCommand({
   args: ARGS,
   help: HELP,
   async body([specPath], flags, io: CliIO): Promise<number> {
-    const out = flags.out as string | undefined;
+    const out = flagValue(flags, 'out');
     const spec = loadSpec(specPath);
     if (out !== undefined) checkWritable(out, '--out');
 
@@ -62,7 +62,7 @@ export const designCommand: Command = defineCommand({
     const reporter = progressReporter(io, starts, maxIterations);
     let result: DesignResult;
     try {
-      const threads = threadCount(flags.threads as string | undefined, spec.problem);
+      const threads = threadCount(flagValue(flags, 'threads'), spec.problem);
       const options = { onProgress: reporter.update, signal: controller.signal };
       result = threads > 1
         ? await (await import('../core/threads.ts')).designInThreads(spec.problem, { ...options, threads })

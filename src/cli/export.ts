@@ -10,7 +10,7 @@ import type { SampleUnits } from '../io/export/playback.ts';
 import { exportReport, type ExportReport, type GateFigures } from '../io/export/report.ts';
 import { parseExportSettings, type ExportSettings } from '../io/export/settings.ts';
 import { exportWaveform } from '../io/export/waveform.ts';
-import { optionsHelp, usageLine, type ArgSpec } from './args.ts';
+import { flagValue, optionsHelp, requiredFlag, usageLine, type ArgSpec } from './args.ts';
 import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
 import { checkWritable, loadPulse, loadSpec } from './files.ts';
@@ -85,15 +85,8 @@ export const exportCommand: Command = defineCommand({
   args: ARGS,
   help: HELP,
   async body([pulsePath], flags, io: CliIO): Promise<number> {
-    const flag = (name: string): string | undefined => {
-      const v = flags[name];
-      return typeof v === 'string' ? v : undefined;
-    };
-    const required = (name: string): string => {
-      const v = flag(name);
-      if (v === undefined) throw new ArgumentError(`export: --${name} is required; usage: ${usageLine(ARGS)}`);
-      return v;
-    };
+    const flag = (name: string): string | undefined => flagValue(flags, name);
+    const required = (name: string): string => requiredFlag(flags, name, ARGS);
     const format = required('format') as WaveformFormat;
     if (!WAVEFORM_FORMATS.includes(format)) {
       throw new ArgumentError(`export: --format ${format} is not allowed; one of ${WAVEFORM_FORMATS.join(', ')}`);

@@ -2,7 +2,7 @@
 // error, written as CSV or JSON, and its summary figures.
 import { ArgumentError } from '../core/errors.ts';
 import { writeMapCsv, writeMapJson } from '../io/map-file.ts';
-import { optionsHelp, usageLine, type ArgSpec } from './args.ts';
+import { flagValue, optionsHelp, usageLine, type ArgSpec } from './args.ts';
 import { DEFAULT_POINTS, REGION_FLAGS, pulseName, regionOf, summaryText, thresholdOf } from './analysis-flags.ts';
 import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
@@ -46,7 +46,7 @@ export const mapCommand: Command = defineCommand({
   args: ARGS,
   help: HELP,
   async body([specPath, pulsePath], flags, io: CliIO): Promise<number> {
-    const out = typeof flags.out === 'string' ? flags.out : undefined;
+    const out = flagValue(flags, 'out');
     const format = out === undefined ? null : mapFormat(out);
     const spec = loadSpec(specPath);
     const pulse = loadPulse(pulsePath);
