@@ -96,29 +96,10 @@ export function planarGate(target: Target): { angleDeg: number; axisDeg: number 
   return { angleDeg: (target.angleRad * 180) / Math.PI, axisDeg: (Math.atan2(target.axis[1], target.axis[0]) * 180) / Math.PI };
 }
 
-/** Runs jobs on the core one after another. */
-export type CoreLock = <T>(job: () => T | Promise<T>) => Promise<T>;
-
-/**
- * A lock over one core. The core has one arena, reset by every call: a map run while a
- * design waits on the event loop would overwrite the optimiser's state, so jobs that touch
- * the core run one after another. Services sharing a core (in one realm) share a lock.
- */
-export function createCoreLock(): CoreLock {
-  let queue: Promise<unknown> = Promise.resolve();
-  return <T>(job: () => T | Promise<T>): Promise<T> => {
-    const run = queue.then(job);
-    queue = run.catch(() => undefined);
-    return run;
-  };
-}
-
 /** How a service reaches its core. */
 export interface ServiceOptions {
   /** Prepares the core (fetching the wasm) once, before the first job. */
   load?: () => Promise<void>;
-  /** The lock of the core this service uses (default: a lock of its own). */
-  lock?: CoreLock;
 }
 
 /** The worker's API over a library. */
@@ -126,9 +107,9 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
   let loading: Promise<void> | null = null;
   const running = new Set<AbortController>();
   const ensureLoaded = () => (loading ??= (options.load ?? (async () => undefined))());
-  const lock = options.lock ?? createCoreLock();
-  // stop and checkSpec do not touch the core and stay immediate.
-  const exclusive = <T>(job: () => T | Promise<T>): Promise<T> => ensureLoaded().then(() => lock(job));
+  // Jobs need the loaded core; stop and checkSpec do not and stay immediate. Jobs may
+  // overlap: the library nests short jobs above a waiting design and queues designs.
+  const withCore = <T>(job: () => T | Promise<T>): Promise<T> => ensureLoaded().then(job);
 
   const cuts = (target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): Cuts => {
     const alongDetuning = library.cut(target, pulse, 'detuning', detuning);
@@ -215,7 +196,7 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
       const controller = new AbortController();
       running.add(controller);
       const batcher = new ProgressBatcher(onProgress);
-      return exclusive(async () => {
+      return withCore(async () => {
         const result = await library.design(spec, {
           signal: controller.signal,
           startIndices,
@@ -239,26 +220,26 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
     },
 
     evaluate(spec, pulse) {
-      return exclusive(() => library.evaluate(spec, pulse));
+      return withCore(() => library.evaluate(spec, pulse));
     },
 
     map(target, pulse, detuning, amplitudeError) {
-      return exclusive((): MapResult => {
+      return withCore((): MapResult => {
         const map = library.robustnessMap(target, pulse, detuning, amplitudeError);
         return moved({ detuning: map.detuning, amplitudeError: map.amplitudeError, infidelity: map.infidelity });
       });
     },
 
     cuts(target, pulse, detuning, amplitudeError) {
-      return exclusive(() => moved(cuts(target, pulse, detuning, amplitudeError)));
+      return withCore(() => moved(cuts(target, pulse, detuning, amplitudeError)));
     },
 
     compare(request) {
-      return exclusive(() => compareAll(request));
+      return withCore(() => compareAll(request));
     },
 
     trajectory(pulse, member, from) {
-      return exclusive(() => moved(library.blochTrajectory(pulse, member, from)));
+      return withCore(() => moved(library.blochTrajectory(pulse, member, from)));
     },
 
     readPulse(text) {
@@ -271,7 +252,7 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
 
     exportPreview(pulse, settings, judge) {
       // The evaluation runs on the core, so the whole job waits its turn like any other.
-      return exclusive(async (): Promise<ExportPreview> => {
+      return withCore(async (): Promise<ExportPreview> => {
         const waveform = library.exportWaveform(pulse, settings);
         const evaluate = judge ? (p: Pulse) => library.evaluateMembers(judge.target, p, judge.members) : null;
         const report = await library.exportReport(evaluate, pulse, waveform);

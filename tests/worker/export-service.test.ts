@@ -91,7 +91,7 @@ describe('exportPreview and exportFile over a MessageChannel', () => {
     await expect(core.exportPreview(rectangularX90(), { sampleRate: 1e9, bits: 13, fullScale: 1e7 }, null)).rejects.toMatchObject({ name: 'SpecError' });
   });
 
-  it('gives the same report with a design running on the same core as alone (the core lock)', async () => {
+  it('gives the same report with a design running on the same core as alone (jobs nest in the core arena)', async () => {
     const problem = parseSpec(demoSpec());
     const judge: ExportJudge = { target: problem.target, members: problem.members };
     const pulse: Pulse = { dt: problem.dt, i: new Float64Array(problem.segments).fill(1.25e6), q: new Float64Array(problem.segments).fill(5e5), metadata: {} };

@@ -3,17 +3,16 @@
 import { expose } from 'comlink';
 import { CoreClient } from '../../src/worker/client.ts';
 import { library } from '../../src/worker/library.ts';
-import { createCoreLock, createCoreService } from '../../src/worker/service.ts';
+import { createCoreService } from '../../src/worker/service.ts';
 
-// Every service in one realm drives the same wasm core, hence one lock (a worker has its own).
-const lock = createCoreLock();
+// Every service in one realm drives the same wasm core, as jobs of one worker do.
 const ports: MessagePort[] = [];
 
 /** A port whose other end has a service exposed on it. */
 export function serviceEndpoint(): MessagePort {
   const channel = new MessageChannel();
   ports.push(channel.port1, channel.port2);
-  expose(createCoreService(library, { lock }), channel.port1);
+  expose(createCoreService(library), channel.port1);
   return channel.port2;
 }
 

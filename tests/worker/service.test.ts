@@ -127,7 +127,7 @@ describe('worker service over a MessageChannel', () => {
     expect(result.pulse.i).toHaveLength(1000);
   });
 
-  it('gives the same pulse with analysis jobs interleaved as alone (the core lock)', async () => {
+  it('gives the same pulse with analysis jobs interleaved as alone (jobs nest in the core arena)', async () => {
     const spec = smallSpec(40, 1);
     const alone = await core.design(spec, [0]);
     const pulse = rectangular(Math.PI / 2, 1e7, 50);
