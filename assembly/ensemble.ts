@@ -78,7 +78,7 @@ export function ensembleFigure(
     const sA = ld(scalePtr, j), sB = ld(scalePtr, j + 2);
     const s2A = vmul(sA, sA), s2B = vmul(sB, sB);
     const csA = vmul(sA, vsplat(c)), csB = vmul(sB, vsplat(c));
-    const bzA = vmul(ld(detPtr, j), vsplat(c)), bzB = vmul(ld(detPtr, j + 2), vsplat(c));
+    const bzA = vmul(ld(detPtr, j), vsplat(-c)), bzB = vmul(ld(detPtr, j + 2), vsplat(-c));
     const bz2A = vmul(bzA, bzA), bz2B = vmul(bzB, bzB);
     // Negated once per member so that the segment's ui = -S bz costs one multiply.
     const nbzA = vneg(bzA), nbzB = vneg(bzB);
@@ -152,7 +152,7 @@ export function blochPath(
     if (k == n) break;
     const bx = c * scale * load<f64>(iPtr + (<usize>k << 3));
     const by = c * scale * load<f64>(qPtr + (<usize>k << 3));
-    const bz = c * detuning;
+    const bz = -c * detuning;
     const a = Math.sqrt(bx * bx + by * by + bz * bz);
     const co = Math.cos(a);
     const si = a < 1e-8 ? 1.0 - a * a / 6.0 : Math.sin(a) / a;

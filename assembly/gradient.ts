@@ -40,7 +40,7 @@ function gradientPair(
   const s = ld(scalePtr, j);
   const s2 = vmul(s, s);
   const cs = vmul(s, vsplat(c));
-  const bz = vmul(ld(detPtr, j), vsplat(c));
+  const bz = vmul(ld(detPtr, j), vsplat(-c));
   const bz2 = vmul(bz, bz);
   const nbz = vneg(bz);
 
@@ -195,8 +195,8 @@ export function ensembleGradient(
     const s2B = vmul(sB, sB);
     const csA = vmul(sA, vsplat(c));
     const csB = vmul(sB, vsplat(c));
-    const bzA = vmul(ld(detPtr, j), vsplat(c));
-    const bzB = vmul(ld(detPtr, j + 2), vsplat(c));
+    const bzA = vmul(ld(detPtr, j), vsplat(-c));
+    const bzB = vmul(ld(detPtr, j + 2), vsplat(-c));
     const bz2A = vmul(bzA, bzA);
     const bz2B = vmul(bzB, bzB);
     const nbzA = vneg(bzA);

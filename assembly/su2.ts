@@ -3,7 +3,7 @@
 // linear combination, such as a derivative) is [[u, -conj v], [v, conj u]], kept as
 // the four reals (ur, ui, vr, vi).
 //
-// Segment propagator (PHYSICS.md section 1), with b = pi dt ((1+eps) I, (1+eps) Q, Delta)
+// Segment propagator (docs/physics.md section 1), with b = pi dt ((1+eps) I, (1+eps) Q, -Delta)
 // and a = |b|:   U = cos(a) 1 - i (sin(a)/a) (b . sigma)
 //   ur = cos a,  ui = -S bz,  vr = S by,  vi = -S bx,      S = sin(a)/a.
 // Its exact derivative, with T = (cos a - S)/a^2 = (dS/da)/a:

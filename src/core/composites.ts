@@ -1,4 +1,4 @@
-// Published composite pulses and shaped single pulses (PHYSICS.md section 4), built as
+// Published composite pulses and shaped single pulses (docs/physics.md section 4), built as
 // ordinary pulses under a peak Rabi frequency and a sample period, so that a designed
 // pulse can be compared with what a lab already uses. Each element is a rectangular
 // rotation; its duration is rounded up to whole samples and its amplitude lowered so
@@ -45,7 +45,7 @@ export interface CompositeOptions {
   axisDeg?: number;
   rabiMax: number;
   dt: number;
-  /** BB1 only: where the correction block goes (default 'after', the order of PHYSICS.md). */
+  /** BB1 only: where the correction block goes (default 'after', the order of docs/physics.md). */
   placement?: Bb1Placement;
   /** Gaussian only: the envelope is cut at +-sigmas standard deviations (default 3). */
   sigmas?: number;

@@ -1,6 +1,6 @@
 // The largest interval around zero error, along one error axis, where a pulse's
 // infidelity stays below a threshold. Found without a grid: sqrt(infidelity) is the
-// length |w| of the error quaternion (PHYSICS.md section 2), and it cannot change faster
+// length |w| of the error quaternion (docs/physics.md section 2), and it cannot change faster
 // than the propagator does, so
 //   |d sqrt(1 - F) / d Delta| <= pi T          (dH/dDelta = pi sz, over the duration T)
 //   |d sqrt(1 - F) / d eps|   <= pi A          (dH/deps = pi (I sx + Q sy), A = sum |Omega| dt)

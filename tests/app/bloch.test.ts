@@ -1,4 +1,4 @@
-// Bloch sphere geometry: rotations with the sign convention of PHYSICS.md section 1, and
+// Bloch sphere geometry: rotations with the sign convention of docs/physics.md section 1, and
 // the projection of the view.
 import { describe, expect, it } from 'vitest';
 import { drag, project, rotate, targetPoint } from '../../src/app/plot/bloch.ts';

@@ -2,7 +2,7 @@
 // (elements, rounding note, pulse file, --list), `map` (CSV that parses back, JSON, the
 // summary) and `compare` (one grid and target, best first, Knill against its own ideal).
 // Written files are checked against the library computed independently here
-// (buildComposite, robustnessMap) and the published element values of PHYSICS.md section 4.
+// (buildComposite, robustnessMap) and the published element values of docs/physics.md section 4.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -41,7 +41,7 @@ describe('gatesmith composite', () => {
     expect(Array.from(written.i)).toEqual(Array.from(expected.i));
     expect(Array.from(written.q)).toEqual(Array.from(expected.q));
     expect(written.metadata.ideal).toEqual(X90);
-    // Wimperis 1994 at theta = pi/2: p1 = 97.18, 3 p1 = 291.54 degrees (PHYSICS.md, recomputed from the formula).
+    // Wimperis 1994 at theta = pi/2: p1 = 97.18, 3 p1 = 291.54 degrees (docs/physics.md, recomputed from the formula).
     expect(r.stdout).toMatch(/\b97\.18\d*\b/);
     expect(r.stdout).toMatch(/\b291\.54\d*\b/);
     expect(r.stdout).toContain('rounded up to a whole number of samples');

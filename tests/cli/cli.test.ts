@@ -1,7 +1,7 @@
 // The command line end to end, in-process through main(argv, io): design the transmon
 // demo, write the pulse, evaluate it; exit codes and messages of bad input; the --json
 // shapes; progress; Ctrl-C. The evaluated figures are checked against an independent
-// propagation with mathjs expm (PHYSICS.md section 1 and 2), and one real spawn of the
+// propagation with mathjs expm (docs/physics.md section 1 and 2), and one real spawn of the
 // bin proves that `gatesmith` starts.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { spawnSync } from 'node:child_process';
@@ -51,7 +51,7 @@ function writeTemp(name: string, content: unknown): string {
   return path;
 }
 
-// --- an independent figure: mathjs expm of -i H dt per sample, PHYSICS.md section 1 ---
+// --- an independent figure: mathjs expm of -i H dt per sample, docs/physics.md section 1 ---
 const C = (re: number, im = 0) => complex(re, im);
 const ID = matrix([[C(1), C(0)], [C(0), C(1)]]);
 const SX = matrix([[C(0), C(1)], [C(1), C(0)]]);
@@ -63,9 +63,9 @@ const sum = (...ms: Matrix[]) => ms.reduce((a, b) => add(a, b) as Matrix);
 function gateInfidelityByExpm(pulse: Pulse, detuning: number, amplitudeError: number, axis: number[], angle: number): number {
   let u = ID;
   for (let k = 0; k < pulse.i.length; k++) {
-    // H = 2 pi [ (Delta/2) sz + (1 + eps) (I/2 sx + Q/2 sy) ]; later samples act on the left.
+    // H = 2 pi [ -(Delta/2) sz + (1 + eps) (I/2 sx + Q/2 sy) ] (docs/physics.md); later samples act on the left.
     const drive = Math.PI * (1 + amplitudeError);
-    const h = sum(times(SZ, Math.PI * detuning), times(SX, drive * pulse.i[k]), times(SY, drive * pulse.q[k]));
+    const h = sum(times(SZ, -Math.PI * detuning), times(SX, drive * pulse.i[k]), times(SY, drive * pulse.q[k]));
     u = multiply(expm(times(h, C(0, -pulse.dt))), u) as Matrix;
   }
   // V = cos(theta/2) 1 - i sin(theta/2) n.s, so V^dag = cos(theta/2) 1 + i sin(theta/2) n.s;

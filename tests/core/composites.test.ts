@@ -1,4 +1,4 @@
-// Checks of the composite pulse library against the published sequences (PHYSICS.md
+// Checks of the composite pulse library against the published sequences (docs/physics.md
 // section 4 and the papers it cites), the known scaling of infidelity with small errors,
 // exact identities between sequences, and an independent evaluation with mathjs.
 // Figures come from the plain-TypeScript oracle (tests/reference/oracle.ts).
@@ -49,7 +49,7 @@ function unroundedInfidelity(name: CompositeName, angleRad: number, member: Memb
 
 describe('every sequence at zero error', () => {
   // Source: each sequence's paper states that without error it performs its ideal
-  // operation (PHYSICS.md section 4); Knill's ideal is its own pi rotation about the
+  // operation (docs/physics.md section 4); Knill's ideal is its own pi rotation about the
   // axis at -30 degrees, 90-180-90's is the inversion |0> -> |1>.
   const angles: Record<CompositeName, number[]> = {
     rectangular: [30, 90, 180, 270],
@@ -77,7 +77,7 @@ describe('every sequence at zero error', () => {
     });
   }
 
-  // Source: Ryan, Hodges, Cory, PRL 105, 200402 (2010) via PHYSICS.md: Knill is a pi
+  // Source: Ryan, Hodges, Cory, PRL 105, 200402 (2010) via docs/physics.md: Knill is a pi
   // rotation about the axis at -pi/6, so against X(pi) it misses by 1 - cos^2(30 deg) = 1/4.
   it('compares Knill with its own ideal, not with X(180)', () => {
     const pulse = build('knill', 180, { axisDeg: 50 });
@@ -97,7 +97,7 @@ describe('every sequence at zero error', () => {
 
 describe('scaling of infidelity with small errors', () => {
   // Source: a propagator error of order e^(n+1) gives an infidelity of order e^(2n+2)
-  // (PHYSICS.md section 4); the plain pulse ~ e^2, first-order sequences ~ e^4, BB1 ~ e^6.
+  // (docs/physics.md section 4); the plain pulse ~ e^2, first-order sequences ~ e^4, BB1 ~ e^6.
   const fitted = (values: number[], errors: number[]) => logLogSlope(errors, values);
 
   it('rectangular: slope 2 in amplitude error and in detuning (common practice)', () => {
@@ -141,7 +141,7 @@ describe('scaling of infidelity with small errors', () => {
     });
   }
 
-  // Source: PHYSICS.md section 4 note: CORPSE at pi/2 fits about 4.6 over 1e-3..1e-2 in
+  // Source: docs/physics.md section 4 note: CORPSE at pi/2 fits about 4.6 over 1e-3..1e-2 in
   // detuning (a tiny fourth-order term overtaken by the sixth-order one) and 4.0 below
   // 1e-4. Its elements (384.3, 318.6, 24.3 degrees) are not commensurate, so this checks
   // the published sequence without sample rounding.
@@ -165,7 +165,7 @@ describe('scaling of infidelity with small errors', () => {
   });
 
   // Source: Levitt & Freeman (1979): compensated as an inversion, while as a gate it is an
-  // uncompensated pi rotation about y (PHYSICS.md section 4).
+  // uncompensated pi rotation about y (docs/physics.md section 4).
   it('90-180-90: slope 4 in amplitude error as an inversion, 2 as the gate Y(180)', () => {
     const pulse = build('90-180-90', 180);
     const errors = logSpace(1e-4, 1e-2, 7);
@@ -187,7 +187,7 @@ describe('exact identities', () => {
     }
   });
 
-  // Source: PHYSICS.md section 4: CORPSE's rotations share one axis, so under amplitude
+  // Source: docs/physics.md section 4: CORPSE's rotations share one axis, so under amplitude
   // error alone it is X(theta (1 + eps)) like the plain pulse; so is short CORPSE at pi.
   it('corpse has the rectangular amplitude-error curve at every error', () => {
     for (const angleDeg of [60, 90, 180, 300]) {
@@ -251,7 +251,7 @@ describe('precision of tiny infidelities', () => {
 });
 
 describe('element tables', () => {
-  // Values recalled from memory and recomputed from the published formulas (PHYSICS.md
+  // Values recalled from memory and recomputed from the published formulas (docs/physics.md
   // section 4, "Values recalled from memory and recomputed"), in degrees, given there to
   // two decimals (BB1) or one (CORPSE, SCROFULOUS).
   const inDegrees = (name: CompositeName, angleRad: number) =>
@@ -294,7 +294,7 @@ describe('element tables', () => {
     expectTable(inDegrees('90-180-90', Math.PI), [[90, 0], [180, 90], [90, 0]], 1e-12, '90-180-90');
   });
 
-  // Source: PHYSICS.md section 4, "the phases of the elements follow the axis".
+  // Source: docs/physics.md section 4, "the phases of the elements follow the axis".
   it('shifts every element phase by the axis phase in the built pulse', () => {
     const table = inDegrees('scrofulous', Math.PI / 2);
     const built = build('scrofulous', 90, { axisDeg: 250 }).metadata.elements;
@@ -306,7 +306,7 @@ describe('element tables', () => {
 });
 
 describe('whole samples under the limits', () => {
-  // Source: PHYSICS.md section 4: each element rounded up to whole samples, its amplitude
+  // Source: docs/physics.md section 4: each element rounded up to whole samples, its amplitude
   // lowered so its angle stays exact; section 3: no sample may exceed rabiMax.
   const limits = [
     { rabiMax: 1e6, dt: 1e-9 },
@@ -374,7 +374,7 @@ describe('whole samples under the limits', () => {
 });
 
 describe('catalogue and validation', () => {
-  it('lists every sequence with what it corrects and its source (PHYSICS.md section 4 table)', () => {
+  it('lists every sequence with what it corrects and its source (docs/physics.md section 4 table)', () => {
     expect(compositeNames.map((c) => c.name)).toEqual([
       'rectangular', 'bb1', 'sk1', 'corpse', 'short-corpse', 'scrofulous', 'knill', '90-180-90', 'gaussian', 'raised-cosine',
     ]);

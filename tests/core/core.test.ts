@@ -170,7 +170,7 @@ describe('design objective: bounded variables, penalty, chain rule', () => {
       expect(Math.abs(box.i[k])).toBeLessThanOrEqual(1e7);
       expect(Math.abs(box.q[k])).toBeLessThanOrEqual(1e7);
     }
-    // The box really is larger: its corner reaches sqrt(2) rabiMax (PHYSICS.md section 3).
+    // The box really is larger: its corner reaches sqrt(2) rabiMax (docs/physics.md section 3).
     expect(Math.hypot(box.i[0], box.q[0])).toBeGreaterThan(1.41e7);
   });
 
@@ -186,7 +186,7 @@ describe('design objective: bounded variables, penalty, chain rule', () => {
 describe('precision of small infidelities', () => {
   it('a rectangular X(theta) under amplitude error eps gives sin^2(theta eps/2) down to 1e-20', () => {
     // Closed form: the pulse is a rotation by theta (1+eps) about x, so W = R_x(theta eps)
-    // and 1 - F = sin^2(theta eps / 2) (PHYSICS.md sections 1-2).
+    // and 1 - F = sin^2(theta eps / 2) (docs/physics.md sections 1-2).
     const theta = Math.PI;
     const n = 50, dt = 1e-9;
     const rabi = theta / (2 * Math.PI * n * dt);
@@ -228,7 +228,7 @@ describe('precision of small infidelities', () => {
   });
 
   it('stays unitary over 10^5 segments: the ideal-pulse infidelity of a full rotation stays at rounding level', () => {
-    // Unitarity of products (PHYSICS.md section 1): 10^5 segments of a 2 pi rotation in total.
+    // Unitarity of products (docs/physics.md section 1): 10^5 segments of a 2 pi rotation in total.
     const n = 100000, dt = 1e-9;
     const rabi = 1 / (n * dt);
     const pulse: Pulse = { dt, i: new Float64Array(n).fill(rabi), q: new Float64Array(n), metadata: {} };

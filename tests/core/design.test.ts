@@ -132,7 +132,7 @@ describe('design', () => {
     }
   });
 
-  it('designs a state transfer |0> -> |+x> robust to detuning (Bloch-vector figure, PHYSICS.md section 2)', async () => {
+  it('designs a state transfer |0> -> |+x> robust to detuning (Bloch-vector figure, docs/physics.md section 2)', async () => {
     const spec = {
       target: { state: { from: [0, 0, 1], to: [1, 0, 0] } },
       duration: 3e-7, segments: 60, rabiMax: 1e7,

@@ -25,15 +25,15 @@ import type { Member, Pulse, Target, Vec3 } from '../../src/core/types.ts';
 const TWO_PI = 2 * Math.PI;
 const FC = { seed: 20240607, numRuns: 200 };
 
-// The Pauli matrices of PHYSICS.md section 1, in mathjs form.
+// The Pauli matrices of docs/physics.md section 1, in mathjs form.
 const SX = matrix([[complex(0, 0), complex(1, 0)], [complex(1, 0), complex(0, 0)]]);
 const SY = matrix([[complex(0, 0), complex(0, -1)], [complex(0, 1), complex(0, 0)]]);
 const SZ = matrix([[complex(1, 0), complex(0, 0)], [complex(0, 0), complex(-1, 0)]]);
 
-/** H = 2 pi [ (Delta/2) sz + (1 + eps) (I/2 sx + Q/2 sy) ] of PHYSICS.md section 1, in rad/s. */
+/** H = 2 pi [ -(Delta/2) sz + (1 + eps) (I/2 sx + Q/2 sy) ] of docs/physics.md (the model), in rad/s. */
 function hamiltonian(i: number, q: number, detuning: number, eps: number): Matrix {
   const drive = (TWO_PI * (1 + eps)) / 2;
-  return add(add(mmultiply((TWO_PI * detuning) / 2, SZ), mmultiply(drive * i, SX)), mmultiply(drive * q, SY)) as Matrix;
+  return add(add(mmultiply((-TWO_PI * detuning) / 2, SZ), mmultiply(drive * i, SX)), mmultiply(drive * q, SY)) as Matrix;
 }
 
 function entries(m: Matrix): Complex[][] {
@@ -66,7 +66,7 @@ function prng(seed: number): () => number {
 
 describe('segment propagator', () => {
   // Source: mathjs expm (Pade approximation with scaling and squaring), an
-  // independent implementation of exp(-i H dt) for H of PHYSICS.md section 1.
+  // independent implementation of exp(-i H dt) for H of docs/physics.md section 1.
   it('matches mathjs expm(-i H dt) to 1e-12 on random drives, detunings and errors', () => {
     const hz = fc.double({ min: -2e7, max: 2e7, noNaN: true });
     fc.assert(
@@ -116,7 +116,7 @@ describe('segment propagator', () => {
 describe('Pauli algebra and rotations', () => {
   const basis = [fromQuaternion(0, 1, 0, 0), fromQuaternion(0, 0, 1, 0), fromQuaternion(0, 0, 0, 1)];
 
-  // Source: PHYSICS.md section 1 matrices; the quaternion form stores q_j = -i s_j.
+  // Source: docs/physics.md section 1 matrices; the quaternion form stores q_j = -i s_j.
   it('stores -i s_j for the quaternion basis', () => {
     for (const [j, s] of [SX, SY, SZ].entries()) {
       expect(maxEntryDifference(basis[j], mmultiply(complex(0, -1), s) as Matrix)).toBe(0);
@@ -140,7 +140,7 @@ describe('Pauli algebra and rotations', () => {
     }
   });
 
-  // Source: R_n(2 pi) = -1 (spin-1/2 double cover; PHYSICS.md section 1).
+  // Source: R_n(2 pi) = -1 (spin-1/2 double cover; docs/physics.md section 1).
   it('gives -1 for a rotation by 2 pi, about any axis including a detuning-tilted one', () => {
     const rand = prng(11);
     for (let trial = 0; trial < 20; trial++) {
@@ -157,7 +157,7 @@ describe('Pauli algebra and rotations', () => {
     }
   });
 
-  // Source: PHYSICS.md section 1, a resonant drive I = Omega for time t rotates the Bloch
+  // Source: docs/physics.md section 1, a resonant drive I = Omega for time t rotates the Bloch
   // vector about +x by 2 pi Omega t: z goes to (0, -sin theta, cos theta) (right-hand rule).
   it('rotates the Bloch vector about +x for positive I', () => {
     for (const theta of [0.3, Math.PI / 2, 2.5]) {
@@ -170,7 +170,7 @@ describe('Pauli algebra and rotations', () => {
     }
   });
 
-  // Source: textbook Bloch-sphere parametrisation (PHYSICS.md section 1).
+  // Source: textbook Bloch-sphere parametrisation (docs/physics.md section 1).
   it('gives (sin t cos p, sin t sin p, cos t) for cos(t/2)|0> + e^{ip} sin(t/2)|1>', () => {
     fc.assert(
       fc.property(fc.double({ min: 0, max: Math.PI, noNaN: true }), fc.double({ min: -Math.PI, max: Math.PI, noNaN: true }), (t, p) => {
@@ -200,7 +200,7 @@ describe('products and figures', () => {
 
   // Source: closed form. A rectangular X(theta) under amplitude error eps is X(theta(1+eps)),
   // so 1 - F = sin^2(theta eps / 2); at eps = 1e-9 that is ~2.5e-18, far below what
-  // 1 - |Tr|^2/4 can resolve (PHYSICS.md section 2).
+  // 1 - |Tr|^2/4 can resolve (docs/physics.md section 2).
   it('resolves infidelities of ~1e-18 for a rectangular pulse under tiny amplitude error', () => {
     const eps = 1e-9;
     for (const theta of [Math.PI, Math.PI / 2]) {
@@ -237,7 +237,7 @@ describe('products and figures', () => {
     }
   });
 
-  // Source: definition of the weighted mean and worst member (PHYSICS.md section 2).
+  // Source: definition of the weighted mean and worst member (docs/physics.md section 2).
   it('weights the ensemble mean by normalised weights and finds the worst member', () => {
     const pulse = randomPulse(prng(5), 20, 0);
     const target: Target = { kind: 'gate', axis: [1, 0, 0], angleRad: Math.PI / 2 };
@@ -361,7 +361,7 @@ describe('exact gradient', () => {
     expect(normwiseRelativeError(exact.gradI, fd.gradI)).toBeLessThan(1e-6 * Math.max(...fd.gradQ.map(Math.abs)) + EPS);
   });
 
-  // Source: the definition 1 - |Tr(V^dag U)|^2 / 4 (PHYSICS.md section 2), evaluated
+  // Source: the definition 1 - |Tr(V^dag U)|^2 / 4 (docs/physics.md section 2), evaluated
   // directly for a value far from 0, where the trace form loses nothing.
   it('gives the trace-formula infidelity, in the figure and in the gradient sweep', () => {
     const pulse = randomPulse(prng(9), 30, 4);

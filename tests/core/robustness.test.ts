@@ -1,6 +1,6 @@
 // Checks of the robustness analysis (src/core/robustness.ts, src/core/threshold-width.ts)
 // against outside references: point-by-point evaluation and the plain-TS oracle
-// (tests/reference/oracle.ts, PHYSICS.md sections 1-2), closed forms for rectangular
+// (tests/reference/oracle.ts, docs/physics.md sections 1-2), closed forms for rectangular
 // pulses, hand formulas for pulse area and energy, the Lipschitz bound the width search
 // relies on, the issue's "demo design beats BB1, SK1 and CORPSE", and Bloch trajectories.
 import { describe, expect, it } from 'vitest';
@@ -81,7 +81,7 @@ describe('robustness map', () => {
 describe('threshold figures on closed forms', () => {
   // Source: a rectangular rotation by theta under amplitude error eps alone is a rotation by
   // theta (1 + eps) about the same axis, so 1 - F = sin^2(theta eps / 2) exactly (issue 3,
-  // PHYSICS.md section 4); its half-width at threshold t is 2 arcsin(sqrt(t)) / theta.
+  // docs/physics.md section 4); its half-width at threshold t is 2 arcsin(sqrt(t)) / theta.
   it.each([
     [90, 1e-4],
     [180, 1e-4],
@@ -139,7 +139,7 @@ describe('threshold figures on closed forms', () => {
   });
 
   // Source: |d sqrt(1-F)/dx| <= ||dU/dx||, and ||dU/dDelta|| <= pi T, ||dU/deps|| <= pi
-  // sum |Omega| dt from H of PHYSICS.md section 1; checked here by finite differences.
+  // sum |Omega| dt from H of docs/physics.md section 1; checked here by finite differences.
   it('sqrt(infidelity) never changes faster than the bound the search relies on', () => {
     const pulse = irregularPulse(60, 4e-9, 9e6);
     const bounds = slopeBounds(pulse);
@@ -199,7 +199,7 @@ describe('figures of the samples', () => {
 
 describe('which target a pulse is compared with', () => {
   it('Knill: its own ideal (pi about the axis at -30 deg), said in the row', () => {
-    // Source: Ryan, Hodges, Cory 2010 via PHYSICS.md section 4: compare Knill with that ideal.
+    // Source: Ryan, Hodges, Cory 2010 via docs/physics.md section 4: compare Knill with that ideal.
     const knill = buildComposite('knill', { angleDeg: 180, rabiMax: 1e6, dt: 1e-9 });
     const { summary } = summarise(X180, knill, { min: -1e4, max: 1e4, points: 3 }, { min: -0.01, max: 0.01, points: 3 });
     expect(summary.targetGiven).toEqual(X180);
@@ -218,7 +218,7 @@ describe('which target a pulse is compared with', () => {
     // R_{-n}(-theta) is the same gate: no note.
     const same: Target = { kind: 'gate', axis: [-2, 0, 0], angleRad: -Math.PI / 2 };
     expect(chooseTarget(same, bb1).targetNote).toBeNull();
-    // A gate ideal that performs a given state transfer meets it (X(90) takes +z to -y, PHYSICS.md section 1).
+    // A gate ideal that performs a given state transfer meets it (X(90) takes +z to -y, docs/physics.md section 1).
     const toMinusY: Target = { kind: 'state', from: [0, 0, 1], to: [0, -1, 0] };
     expect(chooseTarget(toMinusY, bb1).targetUsed).toEqual(toMinusY);
     const toPlusY: Target = { kind: 'state', from: [0, 0, 1], to: [0, 1, 0] };
@@ -277,7 +277,7 @@ function apply(m: ReturnType<typeof toMatrix>, psi: Spinor): Spinor {
 }
 
 describe('Bloch trajectory', () => {
-  // Source: PHYSICS.md section 1: a rotation about +x by pi/2 takes +z to -y; the Bloch
+  // Source: docs/physics.md section 1: a rotation about +x by pi/2 takes +z to -y; the Bloch
   // vector of a pure state has unit length.
   it('rectangular X(90) from |0> ends at (0, -1, 0), every point of unit length', () => {
     const pulse = rectangular(90);

@@ -1,7 +1,7 @@
-// Plain TypeScript reference of the physics (PHYSICS.md sections 1-3): the test oracle
+// Plain TypeScript reference of the physics (docs/physics.md sections 1-3): the test oracle
 // and the benchmark baseline. Written to be read and checked, not to be fast: every
 // quantity is an SU(2) element in the quaternion form U = [[u, -conj(v)], [v, conj(u)]],
-// and every figure and derivative follows the formulas of PHYSICS.md line by line.
+// and every figure and derivative follows the formulas of docs/physics.md line by line.
 import { ArgumentError } from '../../src/core/errors.ts';
 import type { Member, Pulse, Target, Vec3 } from '../../src/core/types.ts';
 
@@ -58,7 +58,7 @@ export function toMatrix(a: Su2): [number, number][][] {
   ];
 }
 
-/** R_n(theta) = exp(-i theta n.s / 2) for a unit axis n (PHYSICS.md section 1). */
+/** R_n(theta) = exp(-i theta n.s / 2) for a unit axis n (docs/physics.md section 1). */
 export function rotation(axis: Vec3, angleRad: number): Su2 {
   const n = unitVector(axis, 'axis');
   const c = Math.cos(angleRad / 2);
@@ -91,15 +91,15 @@ export function sincPrimeOverA(a: number): number {
   return (a * Math.cos(a) - Math.sin(a)) / (a * a * a);
 }
 
-/** The drive vector h = 2 pi ((1+eps) I, (1+eps) Q, Delta) of one segment (rad/s). */
+/** The drive vector h = 2 pi ((1+eps) I, (1+eps) Q, -Delta) of one segment (rad/s): H = h.sigma/2, docs/physics.md. */
 function driveVector(iHz: number, qHz: number, detuningHz: number, amplitudeError: number): Vec3 {
   const scale = 2 * Math.PI * (1 + amplitudeError);
-  return [scale * iHz, scale * qHz, 2 * Math.PI * detuningHz];
+  return [scale * iHz, scale * qHz, -2 * Math.PI * detuningHz];
 }
 
 /**
  * The exact segment propagator exp(-i dt h.s/2) = cos(a) 1 - i sin(a) (n . s),
- * a = |h| dt / 2 (PHYSICS.md section 1), written as cos(a) - i (dt/2) sinc(a) (h . s)
+ * a = |h| dt / 2 (docs/physics.md section 1), written as cos(a) - i (dt/2) sinc(a) (h . s)
  * so that zero drive needs no special case.
  */
 export function segmentPropagator(iHz: number, qHz: number, detuningHz: number, amplitudeError: number, dt: number): Su2 {
@@ -219,7 +219,7 @@ function prepareTarget(target: Target): PreparedTarget {
 }
 
 /**
- * The infidelity of M = left * U without cancellation (PHYSICS.md section 2):
+ * The infidelity of M = left * U without cancellation (docs/physics.md section 2):
  * gate: 1 - |Tr W|^2/4 = |w|^2 for W = V^dag U; state: 1 - |<to|U|from>|^2 = |<to_perp|U|from>|^2.
  */
 function infidelityOf(prepared: PreparedTarget, m: Su2): number {
@@ -270,7 +270,7 @@ export function ensembleFigure(
 
 /**
  * The weighted mean infidelity and its exact gradient with respect to every sample's
- * I and Q (per Hz), by one forward and one backward sweep per member (PHYSICS.md
+ * I and Q (per Hz), by one forward and one backward sweep per member (docs/physics.md
  * section 3): with A_{k-1} = U_{k-1} ... U_1 and B_k = left U_N ... U_{k+1},
  * dM/dc = B_k (dU_k/dc) A_{k-1}. The figure's derivative is then taken from the
  * small components themselves (2 w . dw for a gate, 2 Re(conj z dz) for a state),

@@ -28,7 +28,7 @@ describe('exportPreview and exportFile over a MessageChannel', () => {
   it('reports the quantisation effect of a rectangular X(90) as the closed form sin^2(theta e / 2)', async () => {
     // Issue 5: one code step is an amplitude error of 1/(2^(b-1)-1) of full scale; a
     // rectangular X(theta) with relative amplitude error e has 1 - F = sin^2(theta e / 2)
-    // (PHYSICS.md sections 1-2). Full scale is set so that 2.5 MHz is 1000.4 codes at 12 bits.
+    // (docs/physics.md sections 1-2). Full scale is set so that 2.5 MHz is 1000.4 codes at 12 bits.
     const fullScale = (2.5e6 * 2047) / 1000.4;
     const judge: ExportJudge = { target: X90, members: [member(0, 0), member(0, 0.02)] };
     const preview = await core.exportPreview(rectangularX90(), { sampleRate: 1e9, bits: 12, fullScale, granularity: 64 }, judge);
@@ -54,7 +54,7 @@ describe('exportPreview and exportFile over a MessageChannel', () => {
 
   it('plays the idle padding: a full turn about z under detuning changes nothing, a half turn does', async () => {
     // After the pulse, 1000 idle samples of 1 ns at detuning Delta are R_z(2 pi Delta 1 us);
-    // at Delta = 1 MHz that is R_z(2 pi) = -1, a global phase (PHYSICS.md section 1), so the
+    // at Delta = 1 MHz that is R_z(2 pi) = -1, a global phase (docs/physics.md section 1), so the
     // waveform as played has the figures of its pulse part; at 0.5 MHz, R_z(pi), it does not.
     const settings = { sampleRate: 1e9, bits: 16, fullScale: 1e7, minLength: 1100 };
     const full = (await core.exportPreview(rectangularX90(), settings, { target: X90, members: [member(1e6, 0)] })).report;

@@ -100,7 +100,7 @@ describe('worker service over a MessageChannel', () => {
     const live = batches.flatMap((b) => b.live);
     expect(live.length).toBeGreaterThan(0);
     expect(live[0].i).toHaveLength(100);
-    // The disc bound sqrt(I^2 + Q^2) <= rabiMax holds for every sample (PHYSICS.md section 3).
+    // The disc bound sqrt(I^2 + Q^2) <= rabiMax holds for every sample (docs/physics.md section 3).
     for (let k = 0; k < 100; k++) expect(Math.hypot(result.pulse.i[k], result.pulse.q[k])).toBeLessThanOrEqual(1e7);
   });
 
@@ -160,7 +160,7 @@ describe('worker service over a MessageChannel', () => {
     expect(Array.from(back.q)).toEqual(Array.from(pulse.q));
   });
 
-  it('follows the Bloch vector of a rectangular X(90) from +z to -y (right-hand rotation, PHYSICS.md section 1)', async () => {
+  it('follows the Bloch vector of a rectangular X(90) from +z to -y (right-hand rotation, docs/physics.md section 1)', async () => {
     const path = await core.trajectory(rectangular(Math.PI / 2, 1e7, 10), { detuning: 0, amplitudeError: 0, weight: 1 }, [0, 0, 1]);
     expect(path).toHaveLength(33);
     expect(path[30]).toBeCloseTo(0, 12);

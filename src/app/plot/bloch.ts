@@ -19,7 +19,7 @@ export function rotate(v: Vec3, n: Vec3, angle: number): Vec3 {
 
 /**
  * Where the target sends a Bloch vector: R_n(theta) = exp(-i theta n.s/2) turns it by
- * +theta about n (PHYSICS.md section 1); a state target names its own end point.
+ * +theta about n (docs/physics.md section 1); a state target names its own end point.
  */
 export function targetPoint(target: Target, from: Vec3): Vec3 {
   if (target.kind === 'state') return target.to;

@@ -1,4 +1,4 @@
-// Zero padding to the instrument's block size and minimum length (PHYSICS.md section 5).
+// Zero padding to the instrument's block size and minimum length (docs/physics.md section 5).
 import { ExportError } from '../../core/errors.ts';
 import type { ExportSettings } from './settings.ts';
 

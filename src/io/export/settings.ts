@@ -1,5 +1,5 @@
 // The export settings: one typed object shared by the library, the command line and
-// the app, and its validator. Units: Hz, seconds, samples (PHYSICS.md section 5).
+// the app, and its validator. Units: Hz, seconds, samples (docs/physics.md section 5).
 import { SpecError } from '../../core/errors.ts';
 
 /**

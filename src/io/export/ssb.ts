@@ -1,5 +1,5 @@
 // Single-sideband modulation of I/Q onto one real channel at an intermediate frequency,
-// and its inversion for evaluation (PHYSICS.md section 5).
+// and its inversion for evaluation (docs/physics.md section 5).
 //
 // s(t_n) = I_n cos(2 pi f t_n) - sigma Q_n sin(2 pi f t_n),  t_n = n / sampleRate,
 // with sigma = +1 for the upper sideband and mixer sign +1 (ssbQSign). Time n = 0 is the

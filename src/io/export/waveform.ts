@@ -1,5 +1,5 @@
 // From a design pulse to the waveform the instrument plays:
-// resample -> pad -> (optional SSB) -> quantise (PHYSICS.md sections 5 and 6).
+// resample -> pad -> (optional SSB) -> quantise (docs/physics.md sections 5 and 6).
 import { ArgumentError, ExportError } from '../../core/errors.ts';
 import type { Pulse } from '../../core/types.ts';
 import { channelNames, DESCRIPTION_KIND, type WaveformDescription } from './description.ts';
@@ -124,7 +124,7 @@ function checkPulse(pulse: Pulse): void {
   }
 }
 
-/** Refuse a waveform whose peak exceeds full scale (PHYSICS.md section 6: never written, never clipped). */
+/** Refuse a waveform whose peak exceeds full scale (docs/physics.md section 6: never written, never clipped). */
 function checkPeak(i: Float64Array, q: Float64Array, settings: ExportSettings): void {
   const limit = settings.fullScale * (1 + FULL_SCALE_TOLERANCE);
   let peak = 0;

@@ -1,4 +1,4 @@
-// Refusals of src/io/export/waveform.ts and formats.ts (issue 5, PHYSICS.md section 6:
+// Refusals of src/io/export/waveform.ts and formats.ts (issue 5, docs/physics.md section 6:
 // a waveform above the configured limit is never written and never clipped): peak above
 // full scale, a sample period that does not divide dt without a named method, lengths that
 // do not fit, bad bit depths, and combinations a format cannot hold.

@@ -2,9 +2,9 @@
 // computed by the reference propagator tests/reference/oracle.ts:
 // - a rectangular X(theta) delivered with relative amplitude error e is X(theta (1 + e)) =
 //   X(theta) X(theta e), so 1 - F = 1 - cos^2(theta e / 2) = sin^2(theta e / 2)
-//   (PHYSICS.md sections 1-2; F = |Tr(V^dag U)|^2 / 4);
+//   (docs/physics.md sections 1-2; F = |Tr(V^dag U)|^2 / 4);
 // - one code step is fullScale / (2^(b-1) - 1), i.e. an amplitude error of 1/(2^(b-1) - 1)
-//   of full scale (issue 5, PHYSICS.md section 5);
+//   of full scale (issue 5, docs/physics.md section 5);
 // - no drive for a time t under detuning Delta is R_z(2 pi Delta t), whose infidelity to the
 //   identity is sin^2(pi Delta t).
 import { describe, expect, it } from 'vitest';

@@ -2,7 +2,7 @@
 // (settings.ts ResampleMethod) and hand-computed cases: a zero-order hold repeats each
 // value dt*fs times; averaging keeps the pulse area (integral of I dt) exactly;
 // linear interpolation is exact for a straight line; padding reaches the next multiple of
-// the block size (PHYSICS.md section 5).
+// the block size (docs/physics.md section 5).
 import { describe, expect, it } from 'vitest';
 import type { Pulse } from '../../../src/core/types.ts';
 import { padding } from '../../../src/io/export/padding.ts';

@@ -1,4 +1,4 @@
-// Tests of src/io/export/settings.ts: the fields and limits of issue 5 and PHYSICS.md
+// Tests of src/io/export/settings.ts: the fields and limits of issue 5 and docs/physics.md
 // section 5 (signed 12/14/16-bit codes, code = round(x / fullScale * (2^(b-1) - 1)), SSB
 // below Nyquist, fs/2), and error messages that name the field, the value and what is allowed.
 import { describe, expect, it } from 'vitest';
@@ -23,7 +23,7 @@ describe('parseExportSettings', () => {
   it('the full-scale code is 2^(b-1) - 1: 2047, 8191, 32767 (signed DAC codes, common practice)', () => {
     expect([codeMax(12), codeMax(14), codeMax(16)]).toEqual([2047, 8191, 32767]);
   });
-  it('sign of the Q term: -Q sin for upper/+1 (PHYSICS.md 5), flipped by the lower sideband or mixer sign -1', () => {
+  it('sign of the Q term: -Q sin for upper/+1 (docs/physics.md 5), flipped by the lower sideband or mixer sign -1', () => {
     expect(ssbQSign({ sideband: 'upper', mixerSign: 1 })).toBe(1);
     expect(ssbQSign({ sideband: 'lower', mixerSign: 1 })).toBe(-1);
     expect(ssbQSign({ sideband: 'upper', mixerSign: -1 })).toBe(-1);

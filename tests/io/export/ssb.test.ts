@@ -1,5 +1,5 @@
 // Tests of src/io/export/ssb.ts and the SSB path of waveform.ts / playback.ts.
-// Sources: the modulation formula of PHYSICS.md section 5, s = I cos(wt) - Q sin(wt)
+// Sources: the modulation formula of docs/physics.md section 5, s = I cos(wt) - Q sin(wt)
 // = A cos(wt + phi) with I = A cos phi, Q = A sin phi (a trigonometric identity); the
 // product-to-sum identity cos(a) cos(b) = [cos(a+b) + cos(a-b)] / 2 for an ideal mixer;
 // and a plain discrete Fourier transform written here, X[k] = sum_n x_n e^{-2 pi i k n / N},
