@@ -8,7 +8,8 @@ import { flagValue, optionsHelp, usageLine, type ArgSpec } from './args.ts';
 import { REGION_FLAGS, formatGrid, formatWidth, percent, pulseName, regionOf, thresholdOf } from './analysis-flags.ts';
 import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
-import { loadPulse, loadSpec } from './files.ts';
+import { targetJson } from '../io/target-json.ts';
+import { loadSpec, loadWaveform, printWarnings } from './files.ts';
 import { formatFrequency, formatInfidelity, formatTarget, formatTime } from './format.ts';
 
 // Kept in step with SORT_FIGURES in src/core/robustness.ts (checked by the tests); listed
@@ -32,7 +33,7 @@ per pulse, best first.
 Usage: ${usageLine(ARGS)}
 
 SPEC gives the target and the default region (its ensemble's range, 101 x 101 points).
-Each PULSE is a pulse file; --composites adds published sequences built for the spec's
+Each PULSE is a pulse file or any waveform \`gatesmith export\` wrote; --composites adds published sequences built for the spec's
 target rotation (its axis must lie in the xy-plane) at the spec's rabiMax and sample time
 dt = duration / segments, each element rounded up to whole samples (see
 "gatesmith composite --list"). A pulse whose metadata names its own ideal (Knill,
@@ -74,10 +75,12 @@ export const compareCommand: Command = defineCommand({
     const spec = loadSpec(specPath);
     const region = regionOf(flags, spec.problem);
     const threshold = thresholdOf(flags);
-    const pulses: { name: string; source: string; pulse: Pulse }[] = pulsePaths.map((path) => {
-      const pulse = loadPulse(path);
-      return { name: pulseName(pulse, path), source: path, pulse };
-    });
+    const pulses: { name: string; source: string; pulse: Pulse }[] = [];
+    for (const path of pulsePaths) {
+      const pulse = await loadWaveform(path);
+      pulses.push({ name: pulseName(pulse, path), source: path, pulse });
+    }
+    printWarnings(io, spec.warnings);
 
     // Loaded here so that --help and bad input never wait for the wasm core.
     const { buildComposite, compositeNames } = await import('../core/composites.ts');
@@ -102,7 +105,9 @@ export const compareCommand: Command = defineCommand({
     }));
     const sorted = compareSummaries(rows, sortBy);
     if (flags.json) {
-      const json = { target: spec.problem.target, ...region, threshold: sorted[0].threshold, sortBy, rows: sorted };
+      // Targets in the spec's form, angles in degrees.
+      const rowsJson = sorted.map((r) => ({ ...r, targetGiven: targetJson(r.targetGiven), targetUsed: targetJson(r.targetUsed) }));
+      const json = { target: targetJson(spec.problem.target), ...region, threshold: sorted[0].threshold, sortBy, rows: rowsJson, warnings: spec.warnings };
       io.stdout(JSON.stringify(json, null, 2) + '\n');
     } else io.stdout(compareTable(sorted, spec.problem, sortBy));
     return 0;

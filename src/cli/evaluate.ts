@@ -5,13 +5,13 @@ import { optionsHelp, usageLine } from './args.ts';
 import type { ArgSpec } from './args.ts';
 import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
-import { loadSpec, loadWaveform } from './files.ts';
+import { loadSpec, loadWaveform, printWarnings } from './files.ts';
 import { formatFrequency, formatInfidelity, formatRelative, formatTarget, formatTime } from './format.ts';
 
 const ARGS: ArgSpec = {
   command: 'evaluate',
   positionals: ['SPEC', 'PULSE'],
-  flags: [{ name: 'json', help: 'print {members, meanInfidelity, worstInfidelity} as JSON instead of a table' }],
+  flags: [{ name: 'json', help: 'print {members, meanInfidelity, worstInfidelity, warnings} as JSON instead of a table' }],
 };
 
 const HELP = `Evaluate a pulse on the target and ensemble of a spec.
@@ -38,7 +38,8 @@ export const evaluateCommand: Command = defineCommand({
   async body([specPath, pulsePath], flags, io: CliIO): Promise<number> {
     const spec = loadSpec(specPath);
     const pulse = await loadWaveform(pulsePath);
-    for (const warning of mismatches(pulse, spec.problem)) io.stderr(`warning: ${warning}\n`);
+    const warnings = [...spec.warnings, ...mismatches(pulse, spec.problem)];
+    printWarnings(io, warnings);
 
     // Loaded here so that --help and bad input never wait for the wasm core.
     const api = await import('../core/api.ts');
@@ -53,6 +54,7 @@ export const evaluateCommand: Command = defineCommand({
         })),
         meanInfidelity: evaluation.meanInfidelity,
         worstInfidelity: evaluation.worstInfidelity,
+        warnings,
       };
       io.stdout(JSON.stringify(json, null, 2) + '\n');
     } else {

@@ -6,7 +6,8 @@ import { flagValue, optionsHelp, usageLine, type ArgSpec } from './args.ts';
 import { DEFAULT_POINTS, REGION_FLAGS, pulseName, regionOf, summaryText, thresholdOf } from './analysis-flags.ts';
 import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
-import { checkWritable, loadPulse, loadSpec, writeText } from './files.ts';
+import { targetJson } from '../io/target-json.ts';
+import { checkOutputName, checkWritable, loadSpec, loadWaveform, printWarnings, writeFilesTogether } from './files.ts';
 
 const ARGS: ArgSpec = {
   command: 'map',
@@ -24,7 +25,7 @@ Usage: ${usageLine(ARGS)}
 
 SPEC gives the target (and, by default, the region: the range of its ensemble on each
 axis, ${DEFAULT_POINTS} x ${DEFAULT_POINTS} points; an axis the ensemble does not vary is one point).
-PULSE is a pulse file. A pulse whose metadata names its own ideal (the Knill sequence,
+PULSE is a pulse file or any waveform \`gatesmith export\` wrote. A pulse whose metadata names its own ideal (the Knill sequence,
 90-180-90) is compared with that ideal, and the output says so.
 
 Prints the summary: mean and worst infidelity over the grid, the fraction of the grid
@@ -49,19 +50,23 @@ export const mapCommand: Command = defineCommand({
     const out = flagValue(flags, 'out');
     const format = out === undefined ? null : mapFormat(out);
     const spec = loadSpec(specPath);
-    const pulse = loadPulse(pulsePath);
+    const pulse = await loadWaveform(pulsePath);
     const region = regionOf(flags, spec.problem);
     const threshold = thresholdOf(flags);
-    if (out !== undefined) checkWritable(out, '--out');
+    if (out !== undefined) checkWritable(out, '--out', [specPath, pulsePath]);
+    printWarnings(io, spec.warnings);
 
     // Loaded here so that --help and bad input never wait for the wasm core.
     const { summarise } = await import('../core/robustness.ts');
     const { summary, map } = summarise(spec.problem.target, pulse, region.detuning, region.amplitudeError, { threshold });
     if (out !== undefined) {
       const context = { pulseName: pulseName(pulse, pulsePath), target: summary.targetUsed, targetNote: summary.targetNote };
-      writeText(out, format === 'csv' ? writeMapCsv(map, context) : writeMapJson(map, context, summary), '--out');
+      writeFilesTogether([{ path: out, data: format === 'csv' ? writeMapCsv(map, context) : writeMapJson(map, context, summary) }], '--out');
     }
-    if (flags.json) io.stdout(JSON.stringify({ pulse: pulseName(pulse, pulsePath), ...summary, out: out ?? null }, null, 2) + '\n');
+    if (flags.json) {
+      const json = { pulse: pulseName(pulse, pulsePath), ...summary, targetGiven: targetJson(summary.targetGiven), targetUsed: targetJson(summary.targetUsed) };
+      io.stdout(JSON.stringify({ ...json, out: out ?? null, warnings: spec.warnings }, null, 2) + '\n');
+    }
     else {
       io.stdout(`pulse: ${pulseName(pulse, pulsePath)}\n` + summaryText(summary) + (out !== undefined ? `map written to ${out}\n` : ''));
     }
@@ -74,5 +79,6 @@ function mapFormat(out: string): 'csv' | 'json' {
   const lower = out.toLowerCase();
   if (lower.endsWith('.csv')) return 'csv';
   if (lower.endsWith('.json')) return 'json';
+  checkOutputName(out, '--out', ['.csv', '.json'], 'a map (CSV or JSON)');
   throw new ArgumentError(`--out ${out}: the name must end in .csv or .json (the format is chosen by it)`);
 }

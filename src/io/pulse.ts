@@ -3,6 +3,7 @@
 // Reading is lenient about what surrounds dt, i and q (any JSON object carrying them is a
 // pulse) and strict about those three; writing keeps every double exactly.
 import { ArgumentError, PulseFormatError, describeValue } from '../core/errors.ts';
+import { parseJsonText } from '../core/json-text.ts';
 import type { Pulse, PulseMetadata } from '../core/types.ts';
 
 /** The `format` name written into every pulse file. */
@@ -66,10 +67,9 @@ export function writePulse(pulse: Pulse): string {
 
 function parseJson(text: string): unknown {
   try {
-    return JSON.parse(text);
+    return parseJsonText(text);
   } catch (error) {
-    const reason = error instanceof Error ? error.message : String(error);
-    throw new PulseFormatError(`pulse: not valid JSON (${reason})`);
+    throw new PulseFormatError(`pulse: ${(error as Error).message}`);
   }
 }
 

@@ -11,6 +11,7 @@ import { robustnessMap } from '../../src/core/api.ts';
 import { buildComposite, compositeNames } from '../../src/core/composites.ts';
 import { SORT_FIGURES } from '../../src/core/robustness.ts';
 import type { Target } from '../../src/core/types.ts';
+import { targetJson } from '../../src/io/target-json.ts';
 import { run } from './run.ts';
 import { readPulse } from '../../src/io/pulse.ts';
 import { MAP_COLUMNS } from '../../src/io/map-file.ts';
@@ -52,7 +53,7 @@ describe('gatesmith composite', () => {
     const j = await run(['composite', 'corpse', ...BB1_ARGS, '--json']);
     expect(j.code).toBe(0);
     const json = JSON.parse(j.stdout);
-    expect(Object.keys(json).sort()).toEqual(['dt', 'durationS', 'metadata', 'out', 'samples']);
+    expect(Object.keys(json).sort()).toEqual(['dt', 'durationS', 'metadata', 'out', 'samples', 'warnings']);
     expect(json.metadata.composite).toBe('corpse');
     expect(json.metadata.elements).toHaveLength(3);
     expect(json.metadata.elementRabiSpread).toBeGreaterThan(0);
@@ -128,7 +129,8 @@ describe('gatesmith map', () => {
     for (const key of ['meanInfidelity', 'worstInfidelity', 'areaFraction', 'detuningHalfWidth', 'amplitudeHalfWidth', 'durationS', 'peakRabiHz', 'pulseAreaTurns', 'energyHz2S']) {
       expect(typeof printed[key], key).toBe('number');
     }
-    expect(printed.targetUsed).toEqual(X90);
+    // Targets in the spec's form, angles in degrees (what a person reads).
+    expect(printed.targetUsed).toEqual({ gate: { axis: [1, 0, 0], angleDeg: 90 } });
     expect(printed.targetNote).toBeNull();
     const file = JSON.parse(readFileSync(out, 'utf8'));
     expect(file.format).toBe('gatesmith.robustness-map');
@@ -163,7 +165,7 @@ describe('gatesmith compare', () => {
     const r = await run(['compare', TRANSMON, rectPath, '--composites', 'bb1,sk1,corpse', '--json', '--detuning', '-1e6:1e6:21', '--amplitude', '-0.1:0.1:21']);
     expect(r.code).toBe(0);
     const json = JSON.parse(r.stdout);
-    expect(Object.keys(json).sort()).toEqual(['amplitudeError', 'detuning', 'rows', 'sortBy', 'target', 'threshold']);
+    expect(Object.keys(json).sort()).toEqual(['amplitudeError', 'detuning', 'rows', 'sortBy', 'target', 'threshold', 'warnings']);
     expect(json.rows.map((row: { name: string }) => row.name).sort()).toEqual(['Rectangular, 90 deg about the axis at 0 deg', 'bb1', 'corpse', 'sk1'].sort());
     const means = json.rows.map((row: { meanInfidelity: number }) => row.meanInfidelity);
     expect(means).toEqual([...means].sort((a, b) => a - b));
@@ -190,8 +192,9 @@ describe('gatesmith compare', () => {
     const knill = json.rows.find((row: { name: string }) => row.name === 'knill');
     const bb1 = json.rows.find((row: { name: string }) => row.name === 'bb1');
     const ideal = buildComposite('knill', { angleDeg: 180, rabiMax: 1e7, dt: 2e-9 }).metadata.ideal;
-    expect(knill.targetUsed).toEqual(ideal);
-    expect(knill.targetGiven).toEqual({ kind: 'gate', axis: [1, 0, 0], angleRad: Math.PI });
+    expect(knill.targetUsed).toEqual(targetJson(ideal));
+    expect(knill.targetUsed.gate.angleDeg).toBe(180);
+    expect(knill.targetGiven).toEqual({ gate: { axis: [1, 0, 0], angleDeg: 180 } });
     // Without error it meets its ideal (Ryan, Hodges, Cory 2010); BB1 meets the given X(180).
     expect(knill.meanInfidelity).toBeLessThan(1e-12);
     expect(bb1.targetNote).toBeNull();
@@ -206,7 +209,7 @@ describe('gatesmith compare', () => {
     const rows = JSON.parse(r.stdout).rows;
     // BB1's ideal X(180) performs the inversion, 90-180-90's is the inversion: no substitution.
     for (const row of rows) expect(row.targetNote).toBeNull();
-    for (const row of rows) expect(row.targetUsed).toEqual({ kind: 'state', from: [0, 0, 1], to: [0, 0, -1] });
+    for (const row of rows) expect(row.targetUsed).toEqual({ state: { from: [0, 0, 1], to: [0, 0, -1] } });
     // Levitt & Freeman 1979: 90-180-90 compensates amplitude error for the inversion.
     const byName = Object.fromEntries(rows.map((row: { name: string; meanInfidelity: number }) => [row.name, row.meanInfidelity]));
     expect(byName['90-180-90']).toBeLessThan(1e-4);
