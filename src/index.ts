@@ -2,7 +2,7 @@
 // library, the spec and pulse-file readers, composite pulses and robustness figures.
 // Instrument export is `gatesmith/export`; Node-only helpers (threads, files) are `gatesmith/node`.
 export { design, evaluate, evaluateMembers, robustnessMap, blochTrajectory, axisValues, initCore, toProblem } from './core/api.ts';
-export type { DesignOptions, RobustnessMap } from './core/api.ts';
+export type { CoreSource, DesignOptions, RobustnessMap } from './core/api.ts';
 export type * from './core/types.ts';
 export { SpecError, PulseFormatError, ExportError, ArgumentError } from './core/errors.ts';
 export { parseSpec, specJsonFromText, MAX_SEGMENTS, DEFAULT_CONSTRAINTS, DEFAULT_OPTIMIZER } from './core/spec.ts';
@@ -11,3 +11,4 @@ export type { CompositeName, CompositeInfo, CompositeOptions, CompositeMetadata,
 export { summarise, summariseMap, cut, compareSummaries, pulseFigures, chooseTarget, DEFAULT_THRESHOLD, SORT_FIGURES } from './core/robustness.ts';
 export type { RobustnessSummary, PulseFigures, TargetChoice, SummaryOptions, Cut, SortFigure, ErrorAxis, ThresholdInterval } from './core/robustness.ts';
 export { readPulse, writePulse, PULSE_FORMAT, PULSE_VERSION } from './io/pulse.ts';
+

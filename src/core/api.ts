@@ -30,9 +30,15 @@ export interface RobustnessMap {
   infidelity: Float64Array;
 }
 
+/**
+ * The core's wasm: its bytes, a URL to fetch it from, or a compiled WebAssembly.Module (typed
+ * without the DOM's names, so that a Node-only TypeScript project checks these declarations).
+ */
+export type CoreSource = ArrayBuffer | ArrayBufferView | URL | string | object;
+
 /** Load the wasm core from a URL, bytes or module (browsers; Node loads it by itself). */
-export async function initCore(source: BufferSource | WebAssembly.Module | URL | string): Promise<void> {
-  await loadCore(source);
+export async function initCore(source: CoreSource): Promise<void> {
+  await loadCore(source as Parameters<typeof loadCore>[0]);
 }
 
 function isProblem(spec: unknown): spec is Problem {
