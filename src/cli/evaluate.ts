@@ -71,7 +71,9 @@ function mismatches(pulse: Pulse, problem: Problem): string[] {
   let peak = 0;
   for (let k = 0; k < pulse.i.length; k++) peak = Math.max(peak, Math.hypot(pulse.i[k], pulse.q[k]));
   if (peak > problem.rabiMax * (1 + 1e-12)) {
-    warnings.push(`the pulse peaks at ${formatFrequency(peak)}, above the spec's rabiMax ${formatFrequency(problem.rabiMax)}`);
+    // The excess in words too: a quantised waveform may pass rabiMax by a fraction of a code.
+    const excess = Number((((peak - problem.rabiMax) / problem.rabiMax) * 100).toPrecision(2));
+    warnings.push(`the pulse peaks at ${peak} Hz, ${excess} % above the spec's rabiMax ${formatFrequency(problem.rabiMax)}`);
   }
   const length = pulse.dt * pulse.i.length;
   if (Math.abs(length - problem.duration) > 1e-9 * problem.duration) {

@@ -29,7 +29,7 @@ export function frequencyWarning(field: string, hz: number, prefix = 1e6, unitWo
 /** A sample time typed in ns. */
 export function sampleTimeWarning(field: string, seconds: number): string | null {
   if (!(seconds > LONGEST_PLAUSIBLE_SAMPLE_S)) return null;
-  return `${field} ${plain(seconds)} is ${formatTime(seconds)} per sample, probably not meant (times are in seconds): did you mean ${plain(seconds)} ns, ${field} ${plain(seconds * 1e-9)}?`;
+  return `${field} ${plain(seconds)} is ${formatTime(seconds)} per sample, probably not meant (times are in seconds): did you mean ${plain(seconds)} ns, ${field} ${plain(seconds / 1e9)}?`;
 }
 
 /** Warnings about a spec's duration and rabiMax. */
@@ -39,7 +39,7 @@ export function specUnitWarnings(problem: Problem): string[] {
     const d = problem.duration;
     warnings.push(
       `duration ${plain(d)} is ${formatTime(d)} (${formatTime(problem.dt)} per segment), probably not meant (the spec is in seconds): ` +
-        `did you mean ${plain(d)} ns, duration ${plain(d * 1e-9)}?`,
+        `did you mean ${plain(d)} ns, duration ${plain(d / 1e9)}?`,
     );
   }
   const rabi = frequencyWarning('rabiMax', problem.rabiMax);
