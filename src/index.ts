@@ -10,5 +10,7 @@ export { buildComposite, compositeNames, elementTable } from './core/composites.
 export type { CompositeName, CompositeInfo, CompositeOptions, CompositeMetadata, CompositeElement, BuiltElement, Bb1Placement } from './core/composites.ts';
 export { summarise, summariseMap, cut, compareSummaries, pulseFigures, chooseTarget, DEFAULT_THRESHOLD, SORT_FIGURES } from './core/robustness.ts';
 export type { RobustnessSummary, PulseFigures, TargetChoice, SummaryOptions, Cut, SortFigure, ErrorAxis, ThresholdInterval } from './core/robustness.ts';
+export { shortestDuration, rectangularTime, targetAngle, stretchPulse } from './core/shortest.ts';
+export type { ShortestOptions, ShortestResult, DurationTrial } from './core/shortest.ts';
 export { readPulse, writePulse, PULSE_FORMAT, PULSE_VERSION } from './io/pulse.ts';
 

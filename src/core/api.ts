@@ -8,7 +8,7 @@ import type {
   DesignResult, Evaluation, GridAxis, Member, Problem, Progress, Pulse, StartResult, StopReason, Target,
 } from './types.ts';
 import { getCore, loadCore, STEP_GRADIENT_TOLERANCE, STEP_LINE_SEARCH_FAILED } from './wasm.ts';
-import { initialVariables } from './start.ts';
+import { initialVariables, variablesFromSamples } from './start.ts';
 
 /** Options of a design run. */
 export interface DesignOptions {
@@ -20,6 +20,12 @@ export interface DesignOptions {
   startIndices?: number[];
   /** Attach the current samples to a progress report at most this often (ms); default never. */
   progressPulseEveryMs?: number;
+  /**
+   * Start 0 begins from these samples (Hz, the spec's number of segments) instead of its
+   * random pulse, e.g. a pulse designed before; samples at or beyond the amplitude bound are
+   * pulled just inside it. The other starts are unchanged, so the result stays deterministic.
+   */
+  initialPulse?: { i: ArrayLike<number>; q: ArrayLike<number> };
 }
 
 /** The figure on a grid of detuning x amplitude error. */
@@ -184,6 +190,7 @@ async function designNow(problem: Problem, options: DesignOptions): Promise<Desi
   for (const s of indices) {
     if (!Number.isInteger(s) || s < 0) throw new ArgumentError(`startIndices: ${describeValue(s)} is not allowed; use whole numbers >= 0`);
   }
+  if (options.initialPulse) checkInitialPulse(options.initialPulse, problem.segments);
   const starts: StartResult[] = [];
   for (const s of indices) {
     const elapsed = (performance.now() - t0) / 1000;
@@ -192,6 +199,18 @@ async function designNow(problem: Problem, options: DesignOptions): Promise<Desi
     starts.push(await runStart(problem, s, options, t0, remaining));
   }
   return bestOfStarts(problem, starts, t0);
+}
+
+function checkInitialPulse(pulse: { i: ArrayLike<number>; q: ArrayLike<number> }, segments: number): void {
+  for (const channel of ['i', 'q'] as const) {
+    const v = pulse[channel];
+    if (!v || v.length !== segments) {
+      throw new ArgumentError(`initialPulse.${channel}: ${v ? `${v.length} samples` : 'missing value'} is not allowed; it must have the spec's ${segments} segments`);
+    }
+    for (let k = 0; k < v.length; k++) {
+      if (!Number.isFinite(v[k])) throw new ArgumentError(`initialPulse.${channel}[${k}]: ${describeValue(v[k])} is not allowed; samples must be finite numbers (Hz)`);
+    }
+  }
 }
 
 /** The design result of finished starts: the lowest objective wins and is evaluated. */
@@ -229,7 +248,9 @@ async function runStart(problem: Problem, start: number, options: DesignOptions,
     const outPtr = core.alloc(enc.padded), gIPtr = core.alloc(n), gQPtr = core.alloc(n), workPtr = core.alloc(12 * n);
     const nVar = ex.problemSet(n, dt, rabiMax, constraints.bound === 'box' ? 1 : 0, constraints.zeroEdges ? 1 : 0,
       constraints.smoothness, targetMode(problem.target), enc.padded, iPtr, qPtr, sPtr, dPtr, wPtr, tPtr, outPtr, gIPtr, gQPtr, workPtr);
-    const x0 = core.put(initialVariables(problem, start, nVar));
+    const x0 = core.put(start === 0 && options.initialPulse
+      ? variablesFromSamples(problem, options.initialPulse, nVar)
+      : initialVariables(problem, start, nVar));
     const f0 = ex.optInit(x0, nVar, optimizer.memory, optimizer.gradientTolerance);
     if (Number.isNaN(f0)) throw new RangeError(`the core ran out of memory for ${n} segments x ${enc.padded} members`);
 
