@@ -12,5 +12,7 @@ export { summarise, summariseMap, cut, compareSummaries, pulseFigures, chooseTar
 export type { RobustnessSummary, PulseFigures, TargetChoice, SummaryOptions, Cut, SortFigure, ErrorAxis, ThresholdInterval } from './core/robustness.ts';
 export { shortestDuration, rectangularTime, targetAngle, stretchPulse } from './core/shortest.ts';
 export type { ShortestOptions, ShortestResult, DurationTrial } from './core/shortest.ts';
+export { parseManifest, parseVariationsCsv, variationSpec, shardIndices, shardFromEnvironment, SHARDS_VARIABLE, MAX_VARIATIONS } from './core/batch.ts';
+export type { BatchManifest, BatchVariation, Shard } from './core/batch.ts';
 export { readPulse, writePulse, PULSE_FORMAT, PULSE_VERSION } from './io/pulse.ts';
 
