@@ -1,8 +1,9 @@
 // The benchmark: speed figures measured in one run, printed as a table (or one JSON
 // object with --json). Never a test: figures vary 10-30 % with the machine's load.
 //   npm run bench            table for people
-//   npm run bench -- --json  {"objectiveGradient": [...], "design": [...], "maps": [...], "app": {...}}
+//   npm run bench -- --json  {"objectiveGradient": [...], "design": [...], "maps": [...], "batch": {...}, "app": {...}}
 //   npm run bench -- --no-app  without the browser figures (bench/app-bench.ts)
+//   npm run bench -- --no-batch  without the batch figures (bench/batch-bench.ts)
 import { readFileSync, readdirSync } from 'node:fs';
 import { design, evaluateMembers, robustnessMap } from '../src/core/api.ts';
 import { prepareGradientJob } from '../src/core/gradient.ts';
@@ -10,6 +11,7 @@ import type { Member, Pulse, Target } from '../src/core/types.ts';
 import { getCore } from '../src/core/wasm.ts';
 import { ensembleGradient as oracleGradient, memberInfidelity } from '../tests/reference/oracle.ts';
 import { appBenchmark, type AppFigures } from './app-bench.ts';
+import { batchBenchmark, type BatchFigures } from './batch-bench.ts';
 
 const json = process.argv.includes('--json');
 const log = (text: string): void => {
@@ -120,7 +122,11 @@ for (const file of readdirSync(exampleDir).filter((f) => f.endsWith('.json')).so
   log(`${row.name.padEnd(26)} ${wallS.toFixed(3).padStart(6)}   ${row.meanInfidelity.toExponential(2).padStart(15)}   ${row.worstInfidelity.toExponential(2).padStart(16)}   ${row.iterations}`);
 }
 
-// 5. The app in headless Chromium (skipped without /usr/bin/chromium).
+// 5. A batch of designs: one core, all cores, shards by GNU parallel.
+let batch: BatchFigures | null = null;
+if (!process.argv.includes('--no-batch')) batch = batchBenchmark(log);
+
+// 6. The app in headless Chromium (skipped without /usr/bin/chromium).
 let app: AppFigures | null = null;
 if (!process.argv.includes('--no-app')) {
   log('');
@@ -128,5 +134,5 @@ if (!process.argv.includes('--no-app')) {
 }
 
 if (json) {
-  process.stdout.write(JSON.stringify({ objectiveGradient, design: designs, maps, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs }, app }) + '\n');
+  process.stdout.write(JSON.stringify({ objectiveGradient, design: designs, maps, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs }, batch, app }) + '\n');
 }
