@@ -7,6 +7,7 @@ import { spawn, spawnSync } from 'node:child_process';
 import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { loadManifest } from '../../src/cli/batch-files.ts';
 import { evaluate } from '../../src/core/api.ts';
 import { readPulse } from '../../src/io/pulse.ts';
 import { run } from './run.ts';
@@ -184,6 +185,17 @@ describe('the shard from the environment', () => {
     const r = await withEnv({ SLURM_ARRAY_TASK_ID: '0', SLURM_ARRAY_TASK_COUNT: '2' }, () => run(['batch', 'run', manifest, '--out', out, '--shard', '7/7']));
     expect(r.stderr).toContain('batch: shard 7/7 (--shard): 1 of 7 variations');
     expect(listResults(out)).toEqual(['q07.json']);
+  });
+});
+
+describe('the example chip', () => {
+  it('examples/chip/marram-7.json reads its CSV: seven qubits, each with its own Rabi rate and detuning range', () => {
+    const { manifest } = loadManifest(join(ROOT, 'examples/chip/marram-7.json'));
+    expect(manifest.variations.map((v) => v.name)).toEqual(['K1', 'K2', 'K3', 'K4', 'K5', 'K6', 'K7']);
+    const k3 = manifest.specs[2].problem;
+    expect(k3.rabiMax).toBe(9.2e6);
+    expect(Math.min(...k3.members.map((m) => m.detuning))).toBe(-1.5e6);
+    expect(manifest.specs[2].json.optimizer).toEqual({ starts: 5, seed: 1, maxIterations: 500 });
   });
 });
 
