@@ -17,13 +17,13 @@ export interface CommandEntry {
  */
 export const COMMANDS: CommandEntry[] = [
   { name: 'design', summary: 'design a robust pulse for a spec', load: async () => (await import('./design.ts')).designCommand },
-  { name: 'shortest', summary: 'the shortest duration at which a design meets a goal, with the figure against duration', load: async () => (await import('./shortest.ts')).shortestCommand },
-  { name: 'batch', summary: 'run a family of designs (a manifest of variations) in shards, or collect its results', load: async () => (await import('./batch.ts')).batchCommand },
   { name: 'evaluate', summary: 'figures of a pulse on a spec’s ensemble', load: async () => (await import('./evaluate.ts')).evaluateCommand },
   { name: 'composite', summary: 'build a published composite pulse (BB1, SK1, CORPSE, ...) or list them', load: async () => (await import('./composite.ts')).compositeCommand },
   { name: 'map', summary: 'robustness map of a pulse over detuning x amplitude error, with summary figures', load: async () => (await import('./map.ts')).mapCommand },
   { name: 'compare', summary: 'table of summary figures of several pulses and composites, best first', load: async () => (await import('./compare.ts')).compareCommand },
   { name: 'export', summary: 'write the quantised, padded waveform for an AWG (csv, npy, raw, wav, json)', load: async () => (await import('./export.ts')).exportCommand },
+  { name: 'shortest', summary: 'the shortest duration at which a design meets a goal, with the figure against duration', load: async () => (await import('./shortest.ts')).shortestCommand },
+  { name: 'batch', summary: 'run a family of designs (a manifest of variations) in shards, or collect its results', load: async () => (await import('./batch.ts')).batchCommand },
 ];
 
 // Errors that mean the user's input is wrong (by name, so that errors from a worker count too).
