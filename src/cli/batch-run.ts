@@ -14,8 +14,10 @@ import type { BatchResult } from './batch-files.ts';
 import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
 import { checkPeak, withDesignMetadata } from './design.ts';
+import { printWarnings } from './files.ts';
 import { formatInfidelity } from './format.ts';
 import { progressReporter } from './progress.ts';
+import { specUnitWarnings } from './unit-warnings.ts';
 
 const ARGS: ArgSpec = {
   command: 'batch run',
@@ -75,6 +77,7 @@ export const batchRunCommand: Command = defineCommand({
     prepareBatchFolder(dir, loaded);
 
     const mine = shardIndices(variations.length, shard.index, shard.count);
+    for (const k of mine) printWarnings(io, specUnitWarnings(specs[k].problem).map((w) => `${variations[k].source} (variation "${variations[k].name}"): ${w}`));
     removeStaleTemporaries(dir, mine.map((k) => variations[k].name));
     const done = mine.filter((k) => readResult(dir, variations[k].name)?.status === 'done');
     const todo = mine.filter((k) => !done.includes(k));

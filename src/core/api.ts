@@ -22,8 +22,9 @@ export interface DesignOptions {
   progressPulseEveryMs?: number;
   /**
    * Start 0 begins from these samples (Hz, the spec's number of segments) instead of its
-   * random pulse, e.g. a pulse designed before; samples at or beyond the amplitude bound are
-   * pulled just inside it. The other starts are unchanged, so the result stays deterministic.
+   * random pulse, e.g. a pulse designed before; a sample above 98 % of the amplitude bound is
+   * scaled down to it, where the optimiser can still move it. The other starts are unchanged,
+   * so the result stays deterministic.
    */
   initialPulse?: { i: ArrayLike<number>; q: ArrayLike<number> };
 }

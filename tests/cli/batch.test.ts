@@ -217,6 +217,15 @@ describe('bad input', () => {
     expect(JSON.parse(c.stdout).variations.map((v: { status: string }) => v.status)).toEqual(['missing', 'done']);
   });
 
+  it('warns, naming the row, of a value probably typed in the wrong unit (common practice: no qubit is driven at 10 Hz)', async () => {
+    const sub = mkdtempSync(join(dir, 'unit-'));
+    writeFileSync(join(sub, 'chip.csv'), 'name,rabiMax\nk1,10\n');
+    writeFileSync(join(sub, 'm.json'), JSON.stringify({ base: { ...base, optimizer: { starts: 1, maxIterations: 5 } }, variationsCsv: 'chip.csv' }));
+    const r = await run(['batch', 'run', join(sub, 'm.json'), '--out', join(sub, 'out')]);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stderr).toContain(`warning: ${join(sub, 'chip.csv')} row 2 (variation "k1"): rabiMax 10 is 10 Hz, probably not meant (values are in Hz): did you mean 10 MHz, rabiMax 1e7?`);
+  });
+
   it('refuses a folder of another batch, a bad --shard, and a folder that is not a batch', async () => {
     const other = join(dir, 'other.json');
     writeFileSync(other, JSON.stringify({ base, variations: variations.slice(0, 2) }));
