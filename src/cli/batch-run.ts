@@ -79,10 +79,10 @@ export const batchRunCommand: Command = defineCommand({
     const mine = shardIndices(variations.length, shard.index, shard.count);
     for (const k of mine) printWarnings(io, specUnitWarnings(specs[k].problem).map((w) => `${variations[k].source} (variation "${variations[k].name}"): ${w}`));
     removeStaleTemporaries(dir, mine.map((k) => variations[k].name));
-    const done = mine.filter((k) => readResult(dir, variations[k].name)?.status === 'done');
-    const todo = mine.filter((k) => !done.includes(k));
+    const done = new Set(mine.filter((k) => readResult(dir, variations[k].name)?.status === 'done'));
+    const todo = mine.filter((k) => !done.has(k));
     const threads = Math.max(1, Math.min(threadLimit, todo.length));
-    io.stderr(`batch: shard ${shard.index + 1}/${shard.count} (${shard.source}): ${mine.length} of ${variations.length} variations, ${done.length} already done, ${todo.length} to run${todo.length > 0 ? ` on ${threads} thread${threads === 1 ? '' : 's'}` : ''}\n`);
+    io.stderr(`batch: shard ${shard.index + 1}/${shard.count} (${shard.source}): ${mine.length} of ${variations.length} variations, ${done.size} already done, ${todo.length} to run${todo.length > 0 ? ` on ${threads} thread${threads === 1 ? '' : 's'}` : ''}\n`);
 
     const controller = new AbortController();
     const unsubscribe = io.onInterrupt?.(() => {
@@ -138,14 +138,14 @@ export const batchRunCommand: Command = defineCommand({
     const failed = todo.filter((k) => outcome.get(k) === 'failed').map((k) => variations[k].name);
     const left = todo.filter((k) => !outcome.has(k)).map((k) => variations[k].name);
     if (flags.json) {
-      const status = (k: number): string => (done.includes(k) ? 'skipped' : outcome.get(k) ?? 'interrupted');
+      const status = (k: number): string => (done.has(k) ? 'skipped' : outcome.get(k) ?? 'interrupted');
       io.stdout(JSON.stringify({ shard: { index: shard.index + 1, count: shard.count }, variations: mine.map((k) => ({ name: variations[k].name, status: status(k) })) }, null, 2) + '\n');
     }
     if (controller.signal.aborted) {
       io.stderr(`batch: interrupted with ${left.length} variation${left.length === 1 ? '' : 's'} of this shard left; run the same command again to resume\n`);
       return 130;
     }
-    io.stderr(`batch: shard ${shard.index + 1}/${shard.count} finished: ${todo.length - failed.length} designed, ${done.length} skipped, ${failed.length} failed${failed.length > 0 ? ` (${failed.join(', ')})` : ''}; "gatesmith batch collect ${dir}" gathers every shard\n`);
+    io.stderr(`batch: shard ${shard.index + 1}/${shard.count} finished: ${todo.length - failed.length} designed, ${done.size} skipped, ${failed.length} failed${failed.length > 0 ? ` (${failed.join(', ')})` : ''}; "gatesmith batch collect ${dir}" gathers every shard\n`);
     return failed.length > 0 ? 1 : 0;
   },
 });
