@@ -117,6 +117,30 @@ console.log(ev.worstIndex, robustnessMap, designInThreads, readWaveformFile, wav
     expect(tsc.status).toBe(0);
   });
 
+  it("the README's library snippets run as written in the user's project (design, then export)", () => {
+    const readme = readFileSync(join(ROOT, 'README.md'), 'utf8');
+    const jsBlock = (after: string): string => {
+      const from = readme.indexOf(after);
+      expect(from, after).toBeGreaterThanOrEqual(0);
+      const m = /```js\n([\s\S]*?)```/.exec(readme.slice(from));
+      return m![1];
+    };
+    const library = jsBlock('The same functions are a library.');
+    expect(library).toContain("from 'gatesmith'");
+    writeFileSync(join(project, 'readme-library.mjs'), library);
+    const [mean, worstOnMap] = sh(process.execPath, ['readme-library.mjs'], project).trim().split('\n').pop()!.split(' ').map(Number);
+    // The demo's figure (README, Performance: mean infidelity 3.0e-4 on its 5 x 5 ensemble).
+    expect(mean).toBeLessThan(4e-4);
+    expect(worstOnMap).toBeGreaterThan(mean); // the map reaches twice the ensemble's range
+    const exporting = jsBlock('### From the library');
+    expect(exporting).toContain("from 'gatesmith/export'");
+    writeFileSync(join(project, 'readme-export.mjs'), exporting);
+    const [peakCode, exportedMean, samples] = sh(process.execPath, ['readme-export.mjs'], project).trim().split(' ').map(Number);
+    expect(peakCode).toBeLessThanOrEqual(8191); // 14 bits: the full-scale code 2^13 - 1
+    expect(Math.abs(exportedMean - mean)).toBeLessThan(1e-4);
+    expect(samples).toBe(480); // 200 ns x 2.4 GS/s, already a multiple of the granularity 32
+  });
+
   it('npx gatesmith runs compiled JavaScript: --version, and a design on two threads without tsx', () => {
     expect(sh('npx', ['--no-install', 'gatesmith', '--version'], project)).toBe(`gatesmith ${PKG.version}\n`);
     const run = spawnSync('npx', ['--no-install', 'gatesmith', 'design', 'node_modules/gatesmith/examples/transmon-x90.json', '--threads', '2', '--json'], { cwd: project, encoding: 'utf8' });
