@@ -6,11 +6,13 @@
 // to the frame of the drive, U_rot = exp(+i 2 pi f_d T sz / 2)^dag U_lab. The rotating-wave
 // approximation of that frame is the model H = 2 pi [ -(Delta/2) sz + (I sx + Q sy)/2 ],
 // Delta = f_q - f_d (docs/physics.md section 1; the standard derivation, Krantz et al.,
-// Appl. Phys. Rev. 6, 021318, 2019, section IV). What the approximation drops, the
-// counter-rotating term of amplitude Omega/2 turning at 2 f_d, leaves the Bloch-Siegert
-// residue (Bloch & Siegert, Phys. Rev. 57, 522, 1940): a wiggle of the rotation angle of
-// order Omega / (4 f_d) rad and a frequency shift of order Omega^2 / (4 f_d) Hz, which
-// turns the state by 2 pi Omega^2 T / (4 f_d) rad over a drive of duration T. Both vanish
+// Appl. Phys. Rev. 6, 021318, 2019, on single-qubit control). What the approximation drops, the
+// counter-rotating term, as strong as the drive but turning at 2 f_d, leaves the
+// Bloch-Siegert residue (Bloch & Siegert, Phys. Rev. 57, 522, 1940): a wiggle of the
+// rotation angle of up to Omega / (2 f_d) rad and a frequency shift of order
+// Omega^2 / (4 f_d) Hz (recalled from memory), which turns the state by
+// 2 pi Omega^2 T / (4 f_d) rad over a drive of duration T; sqrt(1 - F), the sine of half
+// the angle, moves by at most Omega / (4 f_d) + pi Omega^2 T / (4 f_d). Both vanish
 // as 1/f_d at fixed Omega and Delta: the lab frame and the library must agree to that size,
 // and the error must shrink in proportion as f_d grows. A wrong sign of Delta or of Q
 // misses by a rotation of order one instead.
