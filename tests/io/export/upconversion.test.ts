@@ -9,6 +9,7 @@
 import { describe, expect, it } from 'vitest';
 import { readPulse } from '../../../src/io/pulse.ts';
 import { parseWaveformDescription } from '../../../src/io/export/description.ts';
+import { samplesToPulse } from '../../../src/io/export/playback.ts';
 import { encodeWaveform, WAVEFORM_FORMATS, type WaveformFormat } from '../../../src/io/export/formats.ts';
 import { readWaveform } from '../../../src/io/export/read.ts';
 import { parseExportSettings } from '../../../src/io/export/settings.ts';
@@ -90,6 +91,18 @@ describe('settings and descriptions', () => {
     const old = parseWaveformDescription({ ...rest, version: 1 }, 'old.csv');
     expect(old.upconversion).toBe('plus');
     expect(old.driveAtQubit).toBe(d.driveAtQubit);
+  });
+  it('a version 1 SSB file (s = I cos - Q sin at the IF, upper sideband) reads back as the drive it gives the qubit: Q negated', () => {
+    // Today's formula with mixer sign -1 writes exactly the old upper-sideband channel.
+    const old = exportWaveform(design, { ...base, channels: 'ssb', intermediateFrequency: 1e8, mixerSign: -1 });
+    const { upconversion: _u, driveAtQubit: _d, ...rest } = old.description;
+    const description = parseWaveformDescription({ ...rest, version: 1, mixerSign: 1 }, 'old.csv');
+    const played = samplesToPulse({ description, units: 'codes', data: old.codes });
+    const step = 1e7 / 8191;
+    for (let n = 0; n < 48; n++) {
+      const designed = design.q[Math.floor(n / 4)];
+      expect(Math.abs(played.q[n] + designed)).toBeLessThan(2 * step);
+    }
   });
   it('the SSB description states the sign of Q at the intermediate frequency and the sideband that reaches the qubit', () => {
     const upper = exportWaveform(design, { ...base, channels: 'ssb', intermediateFrequency: 1e8 }).description;
