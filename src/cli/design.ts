@@ -71,7 +71,9 @@ export const designCommand: Command = defineCommand({
     // Loaded here, not at the top, so that --help and bad input never wait for the wasm core.
     const api = await import('../core/api.ts');
     const { threads, estimate } = plan(flagValue(flags, 'threads'), problem, api.evaluateMembers);
-    if (estimate.seconds > LONG_DESIGN_S && flags.yes !== true && timeLimit === undefined) {
+    // A time limit, from the flag or the spec, is the user's own bound: no question then.
+    const bounded = Number.isFinite(problem.optimizer.timeLimit);
+    if (estimate.seconds > LONG_DESIGN_S && flags.yes !== true && !bounded) {
       const notice = longDesignNotice(problem, estimate);
       if (!io.confirm) {
         throw new ArgumentError(`design: ${notice}; not started without a terminal to ask: give --yes to run it anyway, or --time-limit S to bound it`);
