@@ -27,7 +27,7 @@ beforeAll(() => {
   tmp = mkdtempSync(join(tmpdir(), 'gatesmith-pack-'));
   // A clean copy of what git would check out (tracked and new files, not ignored ones).
   const copy = join(tmp, 'checkout');
-  const files = sh('git', ['ls-files', '-z', '--cached', '--others', '--exclude-standard'], ROOT).split('\0').filter((f) => f !== '');
+  const files = sourceFiles();
   for (const f of files) {
     try {
       mkdirSync(dirname(join(copy, f)), { recursive: true });
@@ -46,6 +46,22 @@ beforeAll(() => {
   sh('npm', ['install', '--offline', '--no-audit', '--no-fund', tarball], project);
 }, 300_000);
 afterAll(() => rmSync(tmp, { recursive: true, force: true }));
+
+/** The checkout's files as git sees them; outside a git checkout, all but build output and installs. */
+function sourceFiles(): string[] {
+  try {
+    return sh('git', ['ls-files', '-z', '--cached', '--others', '--exclude-standard'], ROOT).split('\0').filter((f) => f !== '');
+  } catch {
+    const skip = new Set(['node_modules', 'dist', 'build', 'test-results', '.git']);
+    const walk = (rel: string): string[] =>
+      readdirSync(join(ROOT, rel), { withFileTypes: true }).flatMap((e) => {
+        const path = rel === '' ? e.name : `${rel}/${e.name}`;
+        if (skip.has(path)) return [];
+        return e.isDirectory() ? walk(path) : [path];
+      });
+    return walk('');
+  }
+}
 
 describe('npm pack', () => {
   it('ships the compiled library, the command and the wasm core, and no sources or tests', () => {
