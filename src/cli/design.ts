@@ -96,8 +96,13 @@ export const designCommand: Command = defineCommand({
       const kept = bestReported(latest);
       const interim = kept ? interimPulse(kept, problem, spec.json) : null;
       if (out !== undefined && kept && interim && withinLimit(interim, problem)) {
-        writeFilesTogether([{ path: out, data: writePulse(interim) }], '--out');
-        io.stderr(`best pulse so far (start ${kept.start + 1}, iteration ${kept.iteration}, mean infidelity ${formatInfidelity(kept.meanInfidelity)}) written to ${out}; evaluating it\n`);
+        try {
+          writeFilesTogether([{ path: out, data: writePulse(interim) }], '--out');
+          io.stderr(`best pulse so far (start ${kept.start + 1}, iteration ${kept.iteration}, mean infidelity ${formatInfidelity(kept.meanInfidelity)}) written to ${out}; evaluating it\n`);
+        } catch (error) {
+          // The final write after the evaluation tries again and reports its own failure.
+          io.stderr(`warning: ${(error as Error).message}\n`);
+        }
       }
     });
     const { starts, maxIterations } = problem.optimizer;
