@@ -73,11 +73,12 @@ optionally single-sideband modulated, quantised to DAC codes, written in an open
 
 Usage: ${usageLine(ARGS)}
 
-PULSE is a pulse file (JSON) or any waveform this command wrote. Codes are round(x / full-scale * (2^(bits-1) - 1)). A pulse
-whose peak exceeds full scale is refused, never clipped; with the amplitude limit, rounding
-I and Q separately may lift the amplitude by up to sqrt(2)/2 code above full scale (the
-report says so when it does). The output never replaces PULSE or SPEC, and an existing
-output (with its description) is replaced whole or not at all. The report gives the peak in codes,
+PULSE is a pulse file (JSON) or any waveform this command wrote. Codes are
+round(x / full-scale * (2^(bits-1) - 1)). A pulse whose peak exceeds full scale is refused,
+never clipped; with the amplitude limit, rounding I and Q separately may lift the amplitude
+by up to sqrt(2)/2 code above full scale (the report says so when it does). The output
+never replaces PULSE or SPEC, and an existing output (with its description) is replaced
+whole or not at all. The report gives the peak in codes,
 the largest quantisation error, the length and padding, and the mean and worst infidelity of
 the exported waveform beside the design's on the spec's ensemble.
 
