@@ -4,6 +4,7 @@
 //   npm run bench -- --json  {"objectiveGradient": [...], "design": [...], "maps": [...], "batch": {...}, "app": {...}}
 //   npm run bench -- --no-app  without the browser figures (bench/app-bench.ts)
 //   npm run bench -- --no-batch  without the batch figures (bench/batch-bench.ts)
+//   npm run bench -- --no-command  without the command's start-up and Ctrl-C figures (bench/command-bench.ts)
 import { readFileSync, readdirSync } from 'node:fs';
 import { design, evaluateMembers, robustnessMap } from '../src/core/api.ts';
 import { prepareGradientJob } from '../src/core/gradient.ts';
@@ -12,6 +13,7 @@ import { getCore } from '../src/core/wasm.ts';
 import { ensembleGradient as oracleGradient, memberInfidelity } from '../tests/reference/oracle.ts';
 import { appBenchmark, type AppFigures } from './app-bench.ts';
 import { batchBenchmark, type BatchFigures } from './batch-bench.ts';
+import { commandBenchmark, type CommandFigures } from './command-bench.ts';
 
 const json = process.argv.includes('--json');
 const log = (text: string): void => {
@@ -122,11 +124,18 @@ for (const file of readdirSync(exampleDir).filter((f) => f.endsWith('.json')).so
   log(`${row.name.padEnd(26)} ${wallS.toFixed(3).padStart(6)}   ${row.meanInfidelity.toExponential(2).padStart(15)}   ${row.worstInfidelity.toExponential(2).padStart(16)}   ${row.iterations}`);
 }
 
-// 5. A batch of designs: one core, all cores, shards by GNU parallel.
+// 5. The compiled command: start-up against bare Node, Ctrl-C latency.
+let command: CommandFigures | null = null;
+if (!process.argv.includes('--no-command')) {
+  log('');
+  command = await commandBenchmark(log);
+}
+
+// 6. A batch of designs: one core, all cores, shards by GNU parallel.
 let batch: BatchFigures | null = null;
 if (!process.argv.includes('--no-batch')) batch = batchBenchmark(log);
 
-// 6. The app in headless Chromium (skipped without /usr/bin/chromium).
+// 7. The app in headless Chromium (skipped without /usr/bin/chromium).
 let app: AppFigures | null = null;
 if (!process.argv.includes('--no-app')) {
   log('');
@@ -134,5 +143,5 @@ if (!process.argv.includes('--no-app')) {
 }
 
 if (json) {
-  process.stdout.write(JSON.stringify({ objectiveGradient, design: designs, maps, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs }, batch, app }) + '\n');
+  process.stdout.write(JSON.stringify({ objectiveGradient, design: designs, maps, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs }, command, batch, app }) + '\n');
 }

@@ -101,9 +101,11 @@ export const compositeCommand: Command = defineCommand({
       if (e.name === 'SpecError') throw new ArgumentError(flagNames(e.message));
       throw error;
     }
-    if (out !== undefined) writeFilesTogether([{ path: out, data: writePulse(pulse) }], '--out');
+    // The file, read by people, gives the ideal's angle in degrees (the spec's form).
+    const ideal = targetJson(pulse.metadata.ideal);
+    if (out !== undefined) writeFilesTogether([{ path: out, data: writePulse({ ...pulse, metadata: { ...pulse.metadata, ideal } }) }], '--out');
     if (flags.json) {
-      const metadata = { ...pulse.metadata, ideal: targetJson(pulse.metadata.ideal) };
+      const metadata = { ...pulse.metadata, ideal };
       io.stdout(JSON.stringify({ samples: pulse.i.length, dt: pulse.dt, durationS: pulse.i.length * pulse.dt, metadata, out: out ?? null, warnings }, null, 2) + '\n');
     } else io.stdout(elementsText(pulse, out));
     return 0;

@@ -71,7 +71,9 @@ export const designCommand: Command = defineCommand({
     // Loaded here, not at the top, so that --help and bad input never wait for the wasm core.
     const api = await import('../core/api.ts');
     const { threads, estimate } = plan(flagValue(flags, 'threads'), problem, api.evaluateMembers);
-    if (estimate.seconds > LONG_DESIGN_S && flags.yes !== true && timeLimit === undefined) {
+    // A time limit, from the flag or the spec, is the user's own bound: no question then.
+    const bounded = Number.isFinite(problem.optimizer.timeLimit);
+    if (estimate.seconds > LONG_DESIGN_S && flags.yes !== true && !bounded) {
       const notice = longDesignNotice(problem, estimate);
       if (!io.confirm) {
         throw new ArgumentError(`design: ${notice}; not started without a terminal to ask: give --yes to run it anyway, or --time-limit S to bound it`);
@@ -94,8 +96,13 @@ export const designCommand: Command = defineCommand({
       const kept = bestReported(latest);
       const interim = kept ? interimPulse(kept, problem, spec.json) : null;
       if (out !== undefined && kept && interim && withinLimit(interim, problem)) {
-        writeFilesTogether([{ path: out, data: writePulse(interim) }], '--out');
-        io.stderr(`best pulse so far (start ${kept.start + 1}, iteration ${kept.iteration}, mean infidelity ${formatInfidelity(kept.meanInfidelity)}) written to ${out}; evaluating it\n`);
+        try {
+          writeFilesTogether([{ path: out, data: writePulse(interim) }], '--out');
+          io.stderr(`best pulse so far (start ${kept.start + 1}, iteration ${kept.iteration}, mean infidelity ${formatInfidelity(kept.meanInfidelity)}) written to ${out}; evaluating it\n`);
+        } catch (error) {
+          // The final write after the evaluation tries again and reports its own failure.
+          io.stderr(`warning: ${(error as Error).message}\n`);
+        }
       }
     });
     const { starts, maxIterations } = problem.optimizer;

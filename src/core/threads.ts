@@ -57,13 +57,17 @@ export async function designInThreads(spec: unknown, options: ThreadedDesignOpti
   };
   const workers: Worker[] = [];
   const runs = shares.map((share) => runThread(problem, share, options, workers, onProgress, finished));
+  // The threads end inside the abort itself, before whatever the caller does next.
   const stopped = new Promise<'stopped'>((resolve) => {
-    if (options.signal?.aborted) resolve('stopped');
-    options.signal?.addEventListener('abort', () => resolve('stopped'), { once: true });
+    const stop = (): void => {
+      for (const w of workers) void w.terminate();
+      resolve('stopped');
+    };
+    if (options.signal?.aborted) stop();
+    options.signal?.addEventListener('abort', stop, { once: true });
   });
   const outcome = await Promise.race([Promise.all(runs).then(() => 'done' as const), stopped]);
   if (outcome === 'stopped') {
-    for (const w of workers) void w.terminate();
     const done = new Set(finished.map((s) => s.start));
     for (const [start, p] of latest) {
       if (!done.has(start) && p.pulse) finished.push(startFromProgress(problem, p, t0));

@@ -41,7 +41,7 @@ describe('gatesmith composite', () => {
     const written = readPulse(readFileSync(out, 'utf8'));
     expect(Array.from(written.i)).toEqual(Array.from(expected.i));
     expect(Array.from(written.q)).toEqual(Array.from(expected.q));
-    expect(written.metadata.ideal).toEqual(X90);
+    expect(written.metadata.ideal).toEqual(targetJson(X90)); // in degrees, as people read the file
     // Wimperis 1994 at theta = pi/2: p1 = 97.18, 3 p1 = 291.54 degrees (docs/physics.md, recomputed from the formula).
     expect(r.stdout).toMatch(/\b97\.18\d*\b/);
     expect(r.stdout).toMatch(/\b291\.54\d*\b/);

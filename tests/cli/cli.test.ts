@@ -96,6 +96,14 @@ describe('help and version', () => {
     }
   });
 
+  it('the registry lists each command under its own name and summary (modules load on demand)', async () => {
+    for (const entry of COMMANDS) {
+      const command = await entry.load();
+      expect(command.name).toBe(entry.name);
+      expect(command.summary).toBe(entry.summary);
+    }
+  });
+
   it('no command prints the help on stderr and exits 1', async () => {
     const r = await run([]);
     expect(r.code).toBe(1);

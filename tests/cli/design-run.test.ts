@@ -71,6 +71,11 @@ describe('a long design is announced before it starts', () => {
     const json = JSON.parse(r.stdout);
     expect(json.best.stopReason).toBe('time-limit');
     expect(json.starts).toHaveLength(1);
+    // The spec's own optimizer.timeLimit is a bound too.
+    const bounded = write('long4.json', { ...LONG, optimizer: { ...LONG.optimizer, timeLimit: 0.3 } });
+    const s = await run(['design', bounded, '--threads', '1', '--json']);
+    expect(s.code, s.stderr).toBe(0);
+    expect(JSON.parse(s.stdout).best.stopReason).toBe('time-limit');
   });
 });
 

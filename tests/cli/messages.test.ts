@@ -152,6 +152,22 @@ describe('numbers as people read them', () => {
     expect((Math.atan2(ideal.axis[1], ideal.axis[0]) * 180) / Math.PI).toBeCloseTo(-30, 9);
   });
 
+  it('a composite pulse file gives its ideal in degrees, and map and compare still use that ideal', async () => {
+    const file = join(dir, 'knill.json');
+    const c = await run(['composite', 'knill', '--angle-deg', '180', '--rabi-max', '1e7', '--dt', '2e-9', '--out', file]);
+    expect(c.code, c.stderr).toBe(0);
+    const text = readFileSync(file, 'utf8');
+    expect(text).not.toContain('angleRad');
+    expect(JSON.parse(text).metadata.ideal.gate.angleDeg).toBe(180);
+    const x180 = write('x180.json', JSON.stringify({ ...QUICK, target: { gate: { axis: [1, 0, 0], angleDeg: 180 } } }));
+    const r = await run(['compare', x180, file, '--json', '--detuning', '0:0:1', '--amplitude', '0:0:1']);
+    expect(r.code, r.stderr).toBe(0);
+    const row = JSON.parse(r.stdout).rows[0];
+    expect(row.targetNote).toContain('own ideal');
+    // Without error Knill performs its ideal exactly (Ryan, Hodges, Cory 2010).
+    expect(row.meanInfidelity).toBeLessThan(1e-12);
+  });
+
   it('one key name per quantity across commands: the peak drive is peakRabiHz in design, map and compare', async () => {
     const leafKeys = (v: unknown, into = new Set<string>()): Set<string> => {
       if (Array.isArray(v)) v.forEach((x) => leafKeys(x, into));

@@ -27,7 +27,7 @@ beforeAll(() => {
   tmp = mkdtempSync(join(tmpdir(), 'gatesmith-pack-'));
   // A clean copy of what git would check out (tracked and new files, not ignored ones).
   const copy = join(tmp, 'checkout');
-  const files = sh('git', ['ls-files', '-z', '--cached', '--others', '--exclude-standard'], ROOT).split('\0').filter((f) => f !== '');
+  const files = sourceFiles();
   for (const f of files) {
     try {
       mkdirSync(dirname(join(copy, f)), { recursive: true });
@@ -46,6 +46,22 @@ beforeAll(() => {
   sh('npm', ['install', '--offline', '--no-audit', '--no-fund', tarball], project);
 }, 300_000);
 afterAll(() => rmSync(tmp, { recursive: true, force: true }));
+
+/** The checkout's files as git sees them; outside a git checkout, all but build output and installs. */
+function sourceFiles(): string[] {
+  try {
+    return sh('git', ['ls-files', '-z', '--cached', '--others', '--exclude-standard'], ROOT).split('\0').filter((f) => f !== '');
+  } catch {
+    const skip = new Set(['node_modules', 'dist', 'build', 'test-results', '.git']);
+    const walk = (rel: string): string[] =>
+      readdirSync(join(ROOT, rel), { withFileTypes: true }).flatMap((e) => {
+        const path = rel === '' ? e.name : `${rel}/${e.name}`;
+        if (skip.has(path)) return [];
+        return e.isDirectory() ? walk(path) : [path];
+      });
+    return walk('');
+  }
+}
 
 describe('npm pack', () => {
   it('ships the compiled library, the command and the wasm core, and no sources or tests', () => {
@@ -115,6 +131,30 @@ console.log(ev.worstIndex, robustnessMap, designInThreads, readWaveformFile, wav
     const tsc = spawnSync(process.execPath, [join(ROOT, 'node_modules/typescript/bin/tsc'), '-p', 'tsconfig.json'], { cwd: project, encoding: 'utf8' });
     expect(tsc.stdout + tsc.stderr).toBe('');
     expect(tsc.status).toBe(0);
+  });
+
+  it("the README's library snippets run as written in the user's project (design, then export)", () => {
+    const readme = readFileSync(join(ROOT, 'README.md'), 'utf8');
+    const jsBlock = (after: string): string => {
+      const from = readme.indexOf(after);
+      expect(from, after).toBeGreaterThanOrEqual(0);
+      const m = /```js\n([\s\S]*?)```/.exec(readme.slice(from));
+      return m![1];
+    };
+    const library = jsBlock('The same functions are a library.');
+    expect(library).toContain("from 'gatesmith'");
+    writeFileSync(join(project, 'readme-library.mjs'), library);
+    const [mean, worstOnMap] = sh(process.execPath, ['readme-library.mjs'], project).trim().split('\n').pop()!.split(' ').map(Number);
+    // The demo's figure (README, Performance: mean infidelity 3.0e-4 on its 5 x 5 ensemble).
+    expect(mean).toBeLessThan(4e-4);
+    expect(worstOnMap).toBeGreaterThan(mean); // the map reaches twice the ensemble's range
+    const exporting = jsBlock('### From the library');
+    expect(exporting).toContain("from 'gatesmith/export'");
+    writeFileSync(join(project, 'readme-export.mjs'), exporting);
+    const [peakCode, exportedMean, samples] = sh(process.execPath, ['readme-export.mjs'], project).trim().split(' ').map(Number);
+    expect(peakCode).toBeLessThanOrEqual(8191); // 14 bits: the full-scale code 2^13 - 1
+    expect(Math.abs(exportedMean - mean)).toBeLessThan(1e-4);
+    expect(samples).toBe(480); // 200 ns x 2.4 GS/s, already a multiple of the granularity 32
   });
 
   it('npx gatesmith runs compiled JavaScript: --version, and a design on two threads without tsx', () => {
