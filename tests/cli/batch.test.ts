@@ -4,7 +4,7 @@
 // and bad manifests are named by file, row and column.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { spawn, spawnSync } from 'node:child_process';
-import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { cpSync, existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { loadManifest } from '../../src/cli/batch-files.ts';
@@ -189,6 +189,26 @@ describe('the shard from the environment', () => {
 });
 
 describe('the example chip', () => {
+  it("the README's GNU parallel example runs as written, and collect finds every qubit done", async (context) => {
+    if (!existsSync(PARALLEL)) {
+      if (process.env.CI) throw new Error(`${PARALLEL} is missing: .ci/run installs Debian's parallel`);
+      context.skip();
+    }
+    const readme = readFileSync(join(ROOT, 'README.md'), 'utf8');
+    const lines = readme.slice(readme.indexOf('### Batches')).split('\n').map((l) => l.trim());
+    const parallelLine = lines.find((l) => l.startsWith('parallel '))!;
+    const collectLine = lines.find((l) => l.startsWith('npx gatesmith batch collect '))!;
+    const cwd = mkdtempSync(join(dir, 'readme-'));
+    cpSync(join(ROOT, 'examples'), join(cwd, 'examples'), { recursive: true });
+    // `npx gatesmith` is the compiled command in this checkout; GNU parallel is told it may run quietly.
+    const asHere = (line: string): string => line.replaceAll('npx gatesmith', `${JSON.stringify(process.execPath)} ${JSON.stringify(BIN)}`).replace(/^parallel /, 'parallel --will-cite ');
+    const p = spawnSync('bash', ['-c', asHere(parallelLine)], { cwd, encoding: 'utf8' });
+    expect(p.status, p.stderr).toBe(0);
+    const c = spawnSync('bash', ['-c', `${asHere(collectLine)} --json`], { cwd, encoding: 'utf8' });
+    expect(c.status, c.stderr).toBe(0);
+    expect(JSON.parse(c.stdout).variations.map((v: { status: string }) => v.status)).toEqual(new Array(7).fill('done'));
+  });
+
   it('examples/chip/marram-7.json reads its CSV: seven qubits, each with its own Rabi rate and detuning range', () => {
     const { manifest } = loadManifest(join(ROOT, 'examples/chip/marram-7.json'));
     expect(manifest.variations.map((v) => v.name)).toEqual(['K1', 'K2', 'K3', 'K4', 'K5', 'K6', 'K7']);
