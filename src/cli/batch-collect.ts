@@ -64,8 +64,14 @@ export const batchCollectCommand: Command = defineCommand({
   },
 });
 
+/** A number as typed in a spec: 1.05e7 rather than 10500000, whichever is shorter. */
+function compact(x: number): string {
+  const exp = x.toExponential().replace('e+', 'e');
+  return exp.length < String(x).length ? exp : String(x);
+}
+
 function overrides(set: Record<string, unknown>): string {
-  const parts = Object.entries(set).map(([k, v]) => `${k}=${typeof v === 'number' ? String(v) : describeValue(v)}`);
+  const parts = Object.entries(set).map(([k, v]) => `${k}=${typeof v === 'number' ? compact(v) : describeValue(v)}`);
   return parts.length === 0 ? '(base)' : parts.join(' ');
 }
 
