@@ -69,9 +69,13 @@ export const batchRunCommand: Command = defineCommand({
     const threadsText = flagValue(flags, 'threads');
     const threadLimit = threadsText === undefined ? availableParallelism() : wholeFlag(threadsText, '--threads', 1, 64);
     const shardText = flagValue(flags, 'shard');
+    if (shardText !== undefined && shards !== undefined) throw new ArgumentError('--shards: not allowed with --shard I/N, which gives the count itself');
     const shard: Shard = shardText !== undefined
       ? shardFlag(shardText)
       : shardFromEnvironment(process.env, shards) ?? { index: 0, count: 1, source: 'the whole batch' };
+    if (shards !== undefined && shard.source === 'the whole batch') {
+      throw new ArgumentError(`--shards: ${shards} is given but JOB_COMPLETION_INDEX is not set (not a Kubernetes indexed job); give --shard I/N to choose a shard by hand`);
+    }
     const loaded = loadManifest(manifestPath);
     const { variations, specs } = loaded.manifest;
     prepareBatchFolder(dir, loaded);

@@ -182,6 +182,12 @@ describe('the shard from the environment', () => {
     expect(bad.stderr).toContain('JOB_COMPLETION_INDEX is set (a Kubernetes indexed job) but the shard count is not: give --shards N or set GATESMITH_SHARDS');
   });
 
+  it('--shards without a Kubernetes index is refused rather than running the whole batch', async () => {
+    const r = await run(['batch', 'run', manifest, '--out', join(dir, 'shards-alone'), '--shards', '3']);
+    expect(r.code).toBe(1);
+    expect(r.stderr).toContain('--shards: 3 is given but JOB_COMPLETION_INDEX is not set (not a Kubernetes indexed job); give --shard I/N');
+  });
+
   it('--shard wins over the environment', async () => {
     const out = join(dir, 'flag');
     const r = await withEnv({ SLURM_ARRAY_TASK_ID: '0', SLURM_ARRAY_TASK_COUNT: '2' }, () => run(['batch', 'run', manifest, '--out', out, '--shard', '7/7']));
