@@ -3,16 +3,14 @@
 // words and as JSON.
 import { basename } from 'node:path';
 import { ArgumentError } from '../core/errors.ts';
+import { DEFAULT_REGION_POINTS, MAX_AXIS_POINTS, checkAxis, ensembleRegion, type Region } from '../core/grid.ts';
 import type { RobustnessSummary } from '../core/robustness.ts';
 import type { GridAxis, Problem, Pulse } from '../core/types.ts';
 import { flagValue, type FlagSpec, type ParsedArgs } from './args.ts';
 import { formatFrequency, formatInfidelity, formatRelative, formatTarget, formatTime } from './format.ts';
 
 /** Points per axis of the default region. */
-export const DEFAULT_POINTS = 101;
-
-/** Largest points per axis the map accepts (as robustnessMap). */
-const MAX_POINTS = 2001;
+export const DEFAULT_POINTS = DEFAULT_REGION_POINTS;
 
 /** The region and threshold flags, in help order. */
 export const REGION_FLAGS: FlagSpec[] = [
@@ -28,33 +26,30 @@ export function numberFlag(text: string, flag: string, allowed: string, ok: (x: 
   return x;
 }
 
-/** A grid axis from "MIN:MAX:N". */
+/** A grid axis from "MIN:MAX:N", checked as the library checks a map's axes. */
 export function parseGrid(text: string, flag: string, lowest = -Infinity): GridAxis {
   const parts = text.split(':');
-  const form = `MIN:MAX:N with MIN <= MAX and N a whole number from 1 to ${MAX_POINTS}`;
+  const form = `MIN:MAX:N with MIN <= MAX and N a whole number from 1 to ${MAX_AXIS_POINTS}`;
   if (parts.length !== 3) throw new ArgumentError(`${flag}: "${text}" is not allowed; ${form}`);
-  const min = numberFlag(parts[0], flag, form);
-  const max = numberFlag(parts[1], flag, form);
-  const points = numberFlag(parts[2], flag, form, (n) => Number.isInteger(n) && n >= 1 && n <= MAX_POINTS);
-  if (min > max) throw new ArgumentError(`${flag}: "${text}" is not allowed; ${form}`);
-  if (min <= lowest) throw new ArgumentError(`${flag}: "${text}" is not allowed; MIN must be above ${lowest} (the drive would vanish)`);
-  return { min, max, points };
+  const axis = { min: numberFlag(parts[0], flag, form), max: numberFlag(parts[1], flag, form), points: numberFlag(parts[2], flag, form) };
+  try {
+    checkAxis(axis, flag, lowest);
+  } catch {
+    // The library names the axis's fields; the user typed one text.
+    const why = axis.min <= lowest && axis.min <= axis.max ? `MIN must be above ${lowest} (the drive would vanish)` : form;
+    throw new ArgumentError(`${flag}: "${text}" is not allowed; ${why}`);
+  }
+  return axis;
 }
 
 /** The region of a map: the flags' grids, or the ensemble's range on each axis (one point where it has none). */
-export function regionOf(flags: ParsedArgs['flags'], problem: Problem): { detuning: GridAxis; amplitudeError: GridAxis } {
-  const range = (pick: (m: Problem['members'][number]) => number): GridAxis => {
-    const v = problem.members.map(pick);
-    const min = Math.min(...v);
-    const max = Math.max(...v);
-    return { min, max, points: min === max ? 1 : DEFAULT_POINTS };
-  };
-  const text = (name: string) => flagValue(flags, name);
-  const d = text('detuning');
-  const a = text('amplitude');
+export function regionOf(flags: ParsedArgs['flags'], problem: Problem): Region {
+  const d = flagValue(flags, 'detuning');
+  const a = flagValue(flags, 'amplitude');
+  const range = ensembleRegion(problem);
   return {
-    detuning: d !== undefined ? parseGrid(d, '--detuning') : range((m) => m.detuning),
-    amplitudeError: a !== undefined ? parseGrid(a, '--amplitude', -1) : range((m) => m.amplitudeError),
+    detuning: d !== undefined ? parseGrid(d, '--detuning') : range.detuning,
+    amplitudeError: a !== undefined ? parseGrid(a, '--amplitude', -1) : range.amplitudeError,
   };
 }
 

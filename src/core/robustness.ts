@@ -3,7 +3,8 @@
 // `gatesmith compare` print and what the app shows beside its maps. A pulse that names
 // its own ideal operation (the Knill sequence, 90-180-90) is compared with that ideal,
 // and every result says which target it used.
-import { axisValues, robustnessMap, type RobustnessMap } from './api.ts';
+import { robustnessMap, type RobustnessMap } from './api.ts';
+import { axisValues } from './grid.ts';
 import { ArgumentError, PulseFormatError, describeValue } from './errors.ts';
 import { thresholdInterval, type ErrorAxis, type ThresholdInterval } from './threshold-width.ts';
 import type { GridAxis, Pulse, Target, Vec3 } from './types.ts';
