@@ -4,7 +4,7 @@
 import { basename } from 'node:path';
 import { ArgumentError } from '../core/errors.ts';
 import { DEFAULT_REGION_POINTS, MAX_AXIS_POINTS, checkAxis, ensembleRegion, type Region } from '../core/grid.ts';
-import type { RobustnessSummary } from '../core/robustness.ts';
+import type { PulseJudgement } from '../core/compare.ts';
 import type { GridAxis, Problem, Pulse } from '../core/types.ts';
 import { flagValue, type FlagSpec, type ParsedArgs } from './args.ts';
 import { formatFrequency, formatInfidelity, formatRelative, formatTarget, formatTime } from './format.ts';
@@ -73,21 +73,26 @@ export function formatWidth(value: number, reachedLimit: boolean, kind: 'detunin
   return reachedLimit ? `>= ${text}` : text;
 }
 
-/** The summary as aligned "label  value" lines. */
-export function summaryText(s: RobustnessSummary): string {
+/** The figures of one pulse as aligned "label  value" lines (`gatesmith map`). */
+export function summaryText(j: PulseJudgement, members: number): string {
+  const f = j.figures;
+  const { choice, region } = j;
+  const at = (detuning: number, amplitudeError: number) => `detuning ${formatFrequency(detuning)}, amplitude error ${formatRelative(amplitudeError)}`;
   const rows: [string, string][] = [
-    ['target', formatTarget(s.targetUsed)],
-    ...(s.targetNote ? [['note', s.targetNote] as [string, string]] : []),
-    ['region', `detuning ${formatGrid(s.detuning, 'detuning')}; amplitude error ${formatGrid(s.amplitudeError, 'amplitudeError')}`],
-    ['mean infidelity', `${formatInfidelity(s.meanInfidelity)} (unweighted, over the grid)`],
-    ['worst infidelity', `${formatInfidelity(s.worstInfidelity)} at detuning ${formatFrequency(s.worstAt.detuning)}, amplitude error ${formatRelative(s.worstAt.amplitudeError)}`],
-    ['area below threshold', `${percent(s.areaFraction)} of the grid below ${formatInfidelity(s.threshold)}`],
-    ['detuning half-width', `${formatWidth(s.detuningHalfWidth, s.detuningInterval.reachedLimit, 'detuning')} (below threshold from ${formatFrequency(s.detuningInterval.lower)} to ${formatFrequency(s.detuningInterval.upper)} at zero amplitude error)`],
-    ['amplitude half-width', `${formatWidth(s.amplitudeHalfWidth, s.amplitudeInterval.reachedLimit, 'amplitudeError')} (below threshold from ${formatRelative(s.amplitudeInterval.lower)} to ${formatRelative(s.amplitudeInterval.upper)} at zero detuning)`],
-    ['duration', formatTime(s.durationS)],
-    ['peak amplitude', formatFrequency(s.peakRabiHz)],
-    ['pulse area', `${Number(s.pulseAreaTurns.toPrecision(5))} turns (integral of |Omega| dt; 1 turn = 360 degrees)`],
-    ['energy', `${Number(s.energyHz2S.toPrecision(5))} Hz^2 s (integral of |Omega|^2 dt)`],
+    ['target', formatTarget(choice.targetUsed)],
+    ...(choice.targetNote ? [['note', choice.targetNote] as [string, string]] : []),
+    ['mean infidelity', `${formatInfidelity(f.meanInfidelity)} (weighted mean over the spec's ensemble, ${members} member${members === 1 ? '' : 's'})`],
+    ['worst infidelity', `${formatInfidelity(f.worstInfidelity)} (worst member of the ensemble: ${at(f.worstMember.detuning, f.worstMember.amplitudeError)})`],
+    ['region', `detuning ${formatGrid(region.detuning, 'detuning')}; amplitude error ${formatGrid(region.amplitudeError, 'amplitudeError')}`],
+    ['region mean', `${formatInfidelity(f.regionMeanInfidelity)} (unweighted mean over the grid)`],
+    ['region worst', `${formatInfidelity(f.regionWorstInfidelity)} at ${at(f.regionWorstAt.detuning, f.regionWorstAt.amplitudeError)}`],
+    ['area below threshold', `${percent(f.areaFraction)} of the grid below ${formatInfidelity(j.threshold)}`],
+    ['detuning half-width', `${formatWidth(f.detuningHalfWidth, f.detuningInterval.reachedLimit, 'detuning')} (below threshold from ${formatFrequency(f.detuningInterval.lower)} to ${formatFrequency(f.detuningInterval.upper)} at zero amplitude error)`],
+    ['amplitude half-width', `${formatWidth(f.amplitudeHalfWidth, f.amplitudeInterval.reachedLimit, 'amplitudeError')} (below threshold from ${formatRelative(f.amplitudeInterval.lower)} to ${formatRelative(f.amplitudeInterval.upper)} at zero detuning)`],
+    ['duration', formatTime(f.durationS)],
+    ['peak amplitude', formatFrequency(f.peakRabiHz)],
+    ['pulse area', `${Number(f.pulseAreaTurns.toPrecision(5))} turns (integral of |Omega| dt; 1 turn = 360 degrees)`],
+    ['energy', `${Number(f.energyHz2S.toPrecision(5))} Hz^2 s (integral of |Omega|^2 dt)`],
   ];
   const width = Math.max(...rows.map(([k]) => k.length));
   return rows.map(([k, v]) => `${k.padEnd(width)}  ${v}`).join('\n') + '\n';
