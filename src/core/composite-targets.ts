@@ -48,7 +48,9 @@ export function equatorialRotation(from: Vec3, to: Vec3): EquatorialRotation {
     throw new ArgumentError(`target.state: from ${JSON.stringify(from)} and to ${JSON.stringify(to)} are the same state; there is no rotation to build`);
   }
   let n: Vec3;
-  if (Math.hypot(d[0], d[1]) > 1e-9 * Math.hypot(d[0], d[1], d[2])) n = unit([-d[1], d[0], 0]);
+  // However small, an xy part fixes the axis: n . (from - to) = 0 then holds exactly, and an
+  // error in n's direction moves the image only in proportion to from_perp.
+  if (d[0] !== 0 || d[1] !== 0) n = unit([-d[1], d[0], 0]);
   else if (Math.hypot(r[0], r[1]) > 1e-12) n = unit([-r[1], r[0], 0]);
   else n = [1, 0, 0];
   const perp = (v: Vec3) => {
