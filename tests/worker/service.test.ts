@@ -222,3 +222,26 @@ describe('worker service over a MessageChannel', () => {
     expect(rows[0].error?.message).toMatch(/is not in the xy-plane/);
   });
 });
+
+describe('composites for a state-transfer spec through the worker', () => {
+  const core = connect();
+  it('builds the inversion sequences for |0> -> |1>, each meeting it at zero error, with the note beside it', async () => {
+    // Zero error only: every sequence performs the inversion exactly there (docs/physics.md section 4).
+    const spec = { ...demoSpec(), target: { state: { from: [0, 0, 1], to: [0, 0, -1] } }, ensemble: { members: [{ detuning: 0, amplitudeError: 0, weight: 1 }] } };
+    const rows = await core.compare({
+      spec,
+      pulses: [],
+      composites: ['90-180-90', 'bb1', 'knill', 'corpse'],
+      detuning: { min: 0, max: 0, points: 1 },
+      amplitudeError: { min: 0, max: 0, points: 1 },
+      threshold: 1e-4,
+    });
+    expect(rows.map((r) => r.name).sort()).toEqual(['90-180-90', 'BB1', 'CORPSE', 'Knill']);
+    for (const row of rows) {
+      expect(row.error, row.name).toBeUndefined();
+      expect(row.figures!.meanInfidelity, row.name).toBeLessThan(1e-12);
+      expect(row.target).toEqual({ kind: 'state', from: [0, 0, 1], to: [0, 0, -1] });
+      expect(row.note, row.name).toContain("meets the spec's state transfer");
+    }
+  });
+});
