@@ -88,10 +88,7 @@ export type SortFigure = keyof typeof SORT_FIGURES;
 
 /** Rows with figures, best first by a figure (ties by mean infidelity, then input order); rows without figures last, in order. */
 export function sortRows<T extends { figures?: CompareFigures }>(rows: readonly T[], sortBy: SortFigure = 'mean'): T[] {
-  const figure = SORT_FIGURES[sortBy];
-  if (!figure) {
-    throw new ArgumentError(`sortBy: ${describeValue(sortBy)} is not allowed; one of ${Object.keys(SORT_FIGURES).join(', ')}`);
-  }
+  const figure = SORT_FIGURES[checkSortFigure(sortBy)];
   const sign = figure.better === 'lower' ? 1 : -1;
   const judged = rows.map((row, index) => ({ row, index })).filter(({ row }) => row.figures);
   judged.sort(
@@ -101,6 +98,14 @@ export function sortRows<T extends { figures?: CompareFigures }>(rows: readonly 
       x.index - y.index,
   );
   return [...judged.map(({ row }) => row), ...rows.filter((row) => !row.figures)];
+}
+
+/** The figure if compare can sort by it, else an ArgumentError naming the allowed ones. */
+function checkSortFigure(sortBy: unknown): SortFigure {
+  if (typeof sortBy !== 'string' || !Object.hasOwn(SORT_FIGURES, sortBy)) {
+    throw new ArgumentError(`sortBy: ${describeValue(sortBy)} is not allowed; one of ${Object.keys(SORT_FIGURES).join(', ')}`);
+  }
+  return sortBy as SortFigure;
 }
 
 /** A pulse to compare and the name it goes by. */
@@ -147,10 +152,8 @@ export interface Comparison extends Region {
 /** Pulses and composite sequences judged on one spec's target, ensemble and region, best first. */
 export function compare(spec: unknown, pulses: readonly NamedPulse[], options: CompareOptions = {}): Comparison {
   const problem: Problem = toProblem(spec);
-  const sortBy = options.sortBy ?? 'mean';
-  if (!(sortBy in SORT_FIGURES)) {
-    throw new ArgumentError(`sortBy: ${describeValue(sortBy)} is not allowed; one of ${Object.keys(SORT_FIGURES).join(', ')}`);
-  }
+  // Checked before any work, so that a bad figure fails at once.
+  const sortBy = checkSortFigure(options.sortBy ?? 'mean');
   const region = options.region ?? ensembleRegion(problem);
   checkRegion(region);
   const threshold = checkThreshold(options.threshold ?? DEFAULT_THRESHOLD);

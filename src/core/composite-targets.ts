@@ -2,7 +2,7 @@
 // gate about an axis in the xy-plane as it is; an inversion between the poles as a 180
 // degree rotation (with 90-180-90, made for it); any other state transfer as the rotation
 // about an axis in the xy-plane that carries `from` to `to` (docs/analysis.md, "Composites
-// for a state transfer"). Plain arithmetic over composites.ts, no core.
+// for a target"). Plain arithmetic over composites.ts, no core.
 import { buildComposite, compositeNames, type CompositeName } from './composites.ts';
 import { ArgumentError } from './errors.ts';
 import { describeTarget, isInversion } from './target-choice.ts';
