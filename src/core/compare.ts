@@ -10,7 +10,7 @@ import { ArgumentError, describeValue } from './errors.ts';
 import { checkRegion, ensembleRegion, type Region } from './grid.ts';
 import { DEFAULT_THRESHOLD, checkThreshold, cuts as cutsThroughZero, summariseMap, type Cuts, type RobustnessSummary } from './robustness.ts';
 import { chooseTarget, type TargetChoice } from './target-choice.ts';
-import type { Member, Problem, Pulse, Target } from './types.ts';
+import type { Evaluation, Member, Problem, Pulse, Target } from './types.ts';
 
 /** Figures of one pulse against a spec: on its ensemble, over a region, and of the samples. */
 export interface CompareFigures extends Omit<RobustnessSummary, keyof TargetChoice | 'detuning' | 'amplitudeError' | 'threshold'> {
@@ -38,6 +38,19 @@ export interface JudgeOptions {
   threshold?: number;
 }
 
+/** An evaluation on the spec's ensemble with the target it was taken against and the note beside it. */
+export interface JudgedEvaluation extends Evaluation {
+  target: Target;
+  note: string | null;
+}
+
+/** The figures of a pulse on a spec's ensemble, against the target chooseTarget picks (`gatesmith evaluate`, the app's figures of a pulse). */
+export function evaluateJudged(spec: unknown, pulse: Pulse): JudgedEvaluation {
+  const problem = toProblem(spec);
+  const choice = chooseTarget(problem.target, pulse);
+  return { ...evaluateMembers(choice.targetUsed, pulse, problem.members), target: choice.targetUsed, note: choice.targetNote };
+}
+
 /** The figures of a pulse against a spec (or problem): on its ensemble and over a region. */
 export function judgePulse(spec: unknown, pulse: Pulse, options: JudgeOptions = {}): PulseJudgement {
   const problem = toProblem(spec);
@@ -46,7 +59,7 @@ export function judgePulse(spec: unknown, pulse: Pulse, options: JudgeOptions = 
   const choice = chooseTarget(problem.target, pulse);
   const map = robustnessMap(choice.targetUsed, pulse, region.detuning, region.amplitudeError);
   const summary = summariseMap(map, pulse, choice, options);
-  const ensemble = evaluateMembers(choice.targetUsed, pulse, problem.members);
+  const ensemble = evaluateJudged(problem, pulse);
   const worst = ensemble.members[ensemble.worstIndex];
   const figures: CompareFigures = {
     meanInfidelity: ensemble.meanInfidelity,

@@ -1,6 +1,6 @@
 // The library as the worker serves it: the same functions the command line calls.
-import { blochTrajectory, design, evaluate, evaluateMembers, robustnessMap } from '../core/api.ts';
-import { compare } from '../core/compare.ts';
+import { blochTrajectory, design, evaluateMembers, robustnessMap } from '../core/api.ts';
+import { compare, evaluateJudged } from '../core/compare.ts';
 import { compositeNames } from '../core/composites.ts';
 import { cuts } from '../core/robustness.ts';
 import { parseSpec } from '../core/spec.ts';
@@ -12,7 +12,7 @@ import type { CoreLibrary } from './service.ts';
 export const library: CoreLibrary = {
   parseSpec,
   design,
-  evaluate,
+  evaluate: evaluateJudged,
   evaluateMembers,
   robustnessMap,
   blochTrajectory,

@@ -25,6 +25,7 @@ import { moved } from './transfer.ts';
 export interface CoreLibrary {
   parseSpec(json: unknown): Problem;
   design(spec: unknown, options?: DesignOptions): Promise<DesignResult>;
+  /** Figures on the spec's ensemble against the target the pulse is judged against (core/target-choice.ts). */
   evaluate(spec: unknown, pulse: Pulse): Evaluation;
   evaluateMembers(target: Target, pulse: Pulse, members: Member[]): Evaluation;
   robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): RobustnessMap;

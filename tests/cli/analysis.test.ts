@@ -230,6 +230,15 @@ describe('gatesmith compare', () => {
     expect(rows.Knill.figures!.regionMeanInfidelity).toBeLessThan(1e-12);
     expect(rows.BB1.note).toBeNull();
     expect(rows.BB1.figures!.regionMeanInfidelity).toBeLessThan(1e-12);
+    // evaluate answers the same: the same target, note and weighted mean as compare's row.
+    const knillPath = join(dir, 'knill.json');
+    expect((await run(['composite', 'knill', '--angle-deg', '180', '--rabi-max', '1e7', '--dt', '2e-9', '--out', knillPath])).code).toBe(0);
+    const ev = JSON.parse((await run(['evaluate', x180Spec, knillPath, '--json'])).stdout);
+    const row = byName(JSON.parse((await run(['compare', x180Spec, knillPath, '--json'])).stdout))['Knill, 180 deg about the axis at 0 deg'];
+    expect(ev.target).toEqual(row.target);
+    expect(ev.note).toBe(row.note);
+    expect(ev.meanInfidelity).toBe(row.figures!.meanInfidelity);
+    expect((await run(['evaluate', x180Spec, knillPath])).stdout).toContain('note: Knill, 180 deg about the axis at 0 deg: meets the spec');
   });
 
   it('builds the inversion sequences for an inversion spec, and the equatorial rotation for another transfer', async () => {
