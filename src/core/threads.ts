@@ -1,6 +1,7 @@
 // Design with the starts spread over Node worker threads (the command line's way to use
 // every core and to stop at once; the app does the same with Web Workers). Each thread runs
-// the ordinary design() on its share of the start indices; the best start wins as in design().
+// the ordinary design() on its share of the start indices; the best start wins as in design()
+// (best-start.ts).
 // Stopping terminates the threads instead of waiting for an iteration to end (one
 // iteration of a large problem can take seconds): each running start then contributes the
 // last pulse it reported, which is its best so far since L-BFGS only accepts decreases.

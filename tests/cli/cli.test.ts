@@ -208,12 +208,12 @@ describe('design then evaluate, the transmon demo', () => {
     expect(pulse.metadata.figures?.meanInfidelity).toBe(designJson.meanInfidelity);
   });
 
-  it('evaluate --json gives exactly {members, meanInfidelity, worstInfidelity, warnings}, consistent with design', async () => {
+  it('evaluate --json gives exactly {members, meanInfidelity, worstInfidelity, target, note, warnings}, consistent with design', async () => {
     const r = await run(['evaluate', TRANSMON, pulsePath, '--json']);
     expect(r.code, r.stderr).toBe(0);
     expect(r.stderr).toBe('');
     const ev = JSON.parse(r.stdout);
-    expect(Object.keys(ev)).toEqual(['members', 'meanInfidelity', 'worstInfidelity', 'warnings']);
+    expect(Object.keys(ev)).toEqual(['members', 'meanInfidelity', 'worstInfidelity', 'target', 'note', 'warnings']);
     expect(ev.warnings).toEqual([]);
     expect(ev.members).toHaveLength(25);
     for (const m of ev.members) expect(Object.keys(m)).toEqual(['detuning', 'amplitudeError', 'weight', 'infidelity']);

@@ -87,7 +87,8 @@ describe('map, compare and export read every format evaluate reads', () => {
     expect(map.code, map.stderr).toBe(0);
     const compare = await run(['compare', TRANSMON, path, '--json', '--detuning', '-1e6:1e6:3', '--amplitude', '0:0:1']);
     expect(compare.code, compare.stderr).toBe(0);
-    expect(JSON.parse(compare.stdout).rows[0].meanInfidelity).toBe(JSON.parse(map.stdout).meanInfidelity);
+    expect(JSON.parse(compare.stdout).rows[0].figures.regionMeanInfidelity).toBe(JSON.parse(map.stdout).regionMeanInfidelity);
+    expect(JSON.parse(map.stdout).meanInfidelity).toBe(ev.meanInfidelity);
     // Exported again at the same settings, the waveform keeps its codes. Its amplitude may
     // sit a fraction of a code above full scale (I and Q rounded apart), so the per-channel
     // limit, which each code meets, is named.

@@ -163,9 +163,9 @@ describe('numbers as people read them', () => {
     const r = await run(['compare', x180, file, '--json', '--detuning', '0:0:1', '--amplitude', '0:0:1']);
     expect(r.code, r.stderr).toBe(0);
     const row = JSON.parse(r.stdout).rows[0];
-    expect(row.targetNote).toContain('own ideal');
+    expect(row.note).toContain('its own ideal is a 180 degree rotation');
     // Without error Knill performs its ideal exactly (Ryan, Hodges, Cory 2010).
-    expect(row.meanInfidelity).toBeLessThan(1e-12);
+    expect(row.figures.regionMeanInfidelity).toBeLessThan(1e-12);
   });
 
   it('one key name per quantity across commands: the peak drive is peakRabiHz in design, map and compare', async () => {
@@ -182,7 +182,7 @@ describe('numbers as people read them', () => {
     const outputs = [
       JSON.parse(designOut.stdout),
       JSON.parse((await run(['map', specPath, pulsePath, '--json', '--detuning', '0:0:1', '--amplitude', '0:0:1'])).stdout),
-      JSON.parse((await run(['compare', specPath, pulsePath, '--json', '--detuning', '0:0:1', '--amplitude', '0:0:1'])).stdout).rows[0],
+      JSON.parse((await run(['compare', specPath, pulsePath, '--json', '--detuning', '0:0:1', '--amplitude', '0:0:1'])).stdout).rows[0].figures,
     ];
     for (const out of outputs) {
       const keys = leafKeys(out);

@@ -141,7 +141,7 @@ console.log(ev.worstIndex, robustnessMap, designInThreads, readWaveformFile, wav
       const m = /```js\n([\s\S]*?)```/.exec(readme.slice(from));
       return m![1];
     };
-    const library = jsBlock('The same functions are a library.');
+    const library = jsBlock('The same functions are a library, and');
     expect(library).toContain("from 'gatesmith'");
     writeFileSync(join(project, 'readme-library.mjs'), library);
     const [mean, worstOnMap] = sh(process.execPath, ['readme-library.mjs'], project).trim().split('\n').pop()!.split(' ').map(Number);
