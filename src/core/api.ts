@@ -5,6 +5,8 @@ import { ArgumentError, describeValue } from './errors.ts';
 import { BUFFER, createBlock, readBuffer, setSamples } from './block.ts';
 import { checkPulse, encodeMembers, encodeTarget, type EncodedMembers } from './encode.ts';
 import { StartRun } from './run.ts';
+import { checkProblemAngles, checkPulseAngles } from './limits.ts';
+import { checkProblem, checkTarget } from './problem-check.ts';
 import { parseSpec } from './spec.ts';
 import type {
   DesignResult, Evaluation, GridAxis, Member, Problem, Progress, Pulse, StartResult, StopReason, Target,
@@ -42,9 +44,16 @@ function isProblem(spec: unknown): spec is Problem {
     && typeof p.target === 'object' && p.target !== null && 'kind' in p.target;
 }
 
-/** A Problem as given, or the spec JSON validated into one. */
+/**
+ * A Problem checked with the spec's rules, or the spec JSON validated into one; either way
+ * refused (SegmentAngleError) when its segments could turn a member further than the core
+ * computes exactly.
+ */
 export function toProblem(spec: unknown): Problem {
-  return isProblem(spec) ? spec : parseSpec(spec);
+  if (isProblem(spec)) return checkProblem(spec);
+  const problem = parseSpec(spec);
+  checkProblemAngles(problem);
+  return problem;
 }
 
 /** Evaluate a pulse on a spec's (or problem's) ensemble and target. */
@@ -55,8 +64,10 @@ export function evaluate(spec: unknown, pulse: Pulse): Evaluation {
 
 /** Evaluate a pulse for a target on explicit members (weights normalised here). */
 export function evaluateMembers(target: Target, pulse: Pulse, members: Member[]): Evaluation {
+  checkTarget(target);
   checkPulse(pulse);
   const enc = encodeMembers(members, 2, true);
+  checkPulseAngles(pulse, members);
   const perMember = figures(target, pulse, enc);
   let mean = 0;
   let worstIndex = 0;
@@ -104,9 +115,12 @@ const MAP_CHUNK = 8192;
 
 /** Infidelity of a pulse on a detuning x amplitude-error grid. */
 export function robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): RobustnessMap {
+  checkTarget(target);
   checkPulse(pulse);
   checkAxis(detuning, 'detuning');
   checkAxis(amplitudeError, 'amplitudeError', -1);
+  const far = Math.max(Math.abs(detuning.min), Math.abs(detuning.max));
+  checkPulseAngles(pulse, [{ detuning: far, amplitudeError: amplitudeError.max, weight: 1 }, { detuning: far, amplitudeError: amplitudeError.min, weight: 1 }]);
   const dv = axisValues(detuning), av = axisValues(amplitudeError);
   const total = dv.length * av.length;
   const infidelity = new Float64Array(total);
@@ -127,8 +141,10 @@ export function robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, 
 /** Bloch vector after each sample, 3*(N+1) values starting with `from`. */
 export function blochTrajectory(pulse: Pulse, member: Member, from: [number, number, number]): Float64Array {
   checkPulse(pulse);
+  encodeMembers([member], 2, false);
+  checkPulseAngles(pulse, [member]);
   const norm = Math.hypot(from[0], from[1], from[2]);
-  if (!(norm > 0)) throw new ArgumentError(`from: ${describeValue(from)} is not allowed; give a non-zero Bloch vector`);
+  if (!(norm > 0) || !Number.isFinite(norm)) throw new ArgumentError(`from: ${describeValue(from)} is not allowed; give a non-zero Bloch vector of finite numbers`);
   const core = getCore();
   const n = pulse.i.length;
   return core.job(() => {

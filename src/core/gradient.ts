@@ -2,6 +2,8 @@
 // for tests against the oracle and for the benchmark (which re-runs a prepared job).
 import { BUFFER, createBlock, readBuffer, setSamples } from './block.ts';
 import { checkPulse, encodeMembers } from './encode.ts';
+import { checkPulseAngles } from './limits.ts';
+import { checkTarget } from './problem-check.ts';
 import type { Member, Pulse, Target } from './types.ts';
 import { getCore } from './wasm.ts';
 
@@ -24,10 +26,12 @@ export interface GradientJob {
 
 /** Place pulse, members and target in a held problem block for repeated gradient evaluations. */
 export function prepareGradientJob(target: Target, pulse: Pulse, members: Member[]): GradientJob {
+  checkTarget(target);
   checkPulse(pulse);
   const core = getCore();
   const n = pulse.i.length;
   const enc = encodeMembers(members, 2, true);
+  checkPulseAngles(pulse, members);
   const p = createBlock(core, { target, segments: n, dt: pulse.dt, members: enc, held: true });
   setSamples(core, p, pulse.i, pulse.q);
   const run = (): number => core.exports.problemGradient(p);
