@@ -10,5 +10,5 @@ export {
 } from './control';
 export { blochPath } from './qubit';
 export {
-  optInit, optStep, optObjective, optGradientNorm, optVariables, optGradient, optEvaluations, optIterations, optStoredPairs,
+  optInit, optStep, optObjective, optGradientNorm, optVariables, optGradient, optEvaluations, optIterations, optStoredPairs, optMoveTo,
 } from './lbfgs';

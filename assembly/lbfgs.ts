@@ -257,6 +257,22 @@ export function optStep(p: usize): i32 {
   return STEP_OK;
 }
 
+/**
+ * Move the optimiser to the variables at xPtr: evaluate there and accept the point as
+ * the next iterate, offering the pair like a step would (re-centring, tests). With
+ * `forget` the correction pairs are dropped after the move. Returns the objective there.
+ */
+export function optMoveTo(p: usize, xPtr: usize, forget: bool): f64 {
+  const o = optimiserOf(p);
+  memory.copy(o.xt, xPtr, <usize>o.nVar << 3);
+  o.ft = objective(p, o.xt, o.gt);
+  o.evaluations++;
+  acceptStep(o);
+  o.iterations--;
+  if (forget) forgetPairs(o);
+  return o.fx;
+}
+
 /** Objective at the current point. */
 export function optObjective(p: usize): f64 { return optimiserOf(p).fx; }
 /** Infinity norm of the gradient (projected onto the box for the box bound) at the current point. */

@@ -32,6 +32,7 @@ export interface CoreExports {
   optEvaluations(p: number): number;
   optIterations(p: number): number;
   optStoredPairs(p: number): number;
+  optMoveTo(p: number, xPtr: number, forget: number): number;
 }
 
 /** Status codes of optStep (assembly/lbfgs.ts). */
