@@ -58,5 +58,5 @@ export function checkProblemAngles(problem: Problem): void {
   if (Math.PI * problem.dt * detuning > MAX_SEGMENT_ANGLE) {
     throw new SegmentAngleError('ensemble.detuning', `ensemble.detuning: ${detuning} Hz is not allowed; ${allowed(problem.dt)}`);
   }
-  throw new SegmentAngleError('rabiMax', `rabiMax: ${problem.rabiMax} Hz is not allowed with segments of ${problem.dt} s; ${allowed(problem.dt)} (this turns by ${angle.toPrecision(3)} rad)`);
+  throw new SegmentAngleError('rabiMax', `rabiMax: ${problem.rabiMax} Hz is not allowed; ${allowed(problem.dt)} (this turns by ${angle.toPrecision(3)} rad)`);
 }
