@@ -16,6 +16,16 @@ export const BUFFER = {
   samplesI: 0, samplesQ: 1, members: 2, weight: 3, target: 4, perMember: 5, gradI: 6, gradQ: 7, driveI: 8, driveQ: 9, driveData: 10,
 } as const;
 
+/** A drive map other than the identity (assembly/drive.ts): its kind, grid and parameters. */
+export interface DriveLayout {
+  kind: number;
+  /** Drive samples the system sees, and their length (s). */
+  samples: number;
+  dt: number;
+  /** The map's parameters, copied to the block's driveData. */
+  values: Float64Array;
+}
+
 /** What a block holds: the problem, and an optimiser when `optimizer` is given. */
 export interface BlockLayout {
   target: Target;
@@ -23,6 +33,15 @@ export interface BlockLayout {
   dt: number;
   /** Members padded to the system's multiple (encodeMembers with 2). */
   members: EncodedMembers;
+  /** System kind (default the qubit); another system also gives its encodings below. */
+  system?: number;
+  /** The system's member parameters, one padded array each (default: the qubit's scale and detuning). */
+  memberParams?: Float64Array[];
+  /** The system's target encoding and mode (default: the qubit's, from `target`). */
+  targetValues?: Float64Array;
+  mode?: number;
+  /** The drive map (default: the identity). */
+  drive?: DriveLayout;
   bound?: AmplitudeBound;
   zeroEdges?: boolean;
   rabiMax?: number;
@@ -32,22 +51,24 @@ export interface BlockLayout {
   held?: boolean;
 }
 
-/** Place a problem block and fill its ensemble and target; returns its pointer. */
+/** Place a problem block and fill its ensemble, target and drive parameters; returns its pointer. */
 export function createBlock(core: Core, layout: BlockLayout): number {
   const { members: enc, segments: n, dt } = layout;
+  const drive = layout.drive;
   const p = core.exports.problemCreate(
-    SYSTEM_QUBIT, targetMode(layout.target), n, dt, enc.padded,
-    DRIVE_IDENTITY, n, dt, 0,
+    layout.system ?? SYSTEM_QUBIT, layout.mode ?? targetMode(layout.target), n, dt, enc.padded,
+    drive?.kind ?? DRIVE_IDENTITY, drive?.samples ?? n, drive?.dt ?? dt, drive?.values.length ?? 0,
     layout.bound ? BOUND[layout.bound] : BOUND.none, layout.zeroEdges ? 1 : 0, layout.rabiMax ?? 0, layout.smoothness ?? 0,
     layout.optimizer?.memory ?? 0, layout.optimizer?.gradientTolerance ?? 0, layout.held ? 1 : 0,
   );
-  if (p === 0) throw new RangeError(`the core ran out of memory for ${n} segments x ${enc.padded} members`);
+  if (p === 0) throw new RangeError(`the core could not place a problem of ${n} segments x ${enc.padded} members (memory exhausted)`);
   const members = core.exports.problemBuffer(p, BUFFER.members);
-  core.view(members, enc.padded).set(enc.scale);
-  core.view(members + 8 * enc.padded, enc.padded).set(enc.detuning);
+  const params = layout.memberParams ?? [enc.scale, enc.detuning];
+  params.forEach((values, k) => core.view(members + 8 * k * enc.padded, enc.padded).set(values));
   core.view(core.exports.problemBuffer(p, BUFFER.weight), enc.padded).set(enc.weight);
-  const target = encodeTarget(layout.target);
+  const target = layout.targetValues ?? encodeTarget(layout.target);
   core.view(core.exports.problemBuffer(p, BUFFER.target), target.length).set(target);
+  if (drive) core.view(core.exports.problemBuffer(p, BUFFER.driveData), drive.values.length).set(drive.values);
   return p;
 }
 

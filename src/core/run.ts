@@ -128,6 +128,8 @@ export class StartRun {
     return true;
   }
 
+  /** The start's problem block (assembly/problem.ts), for tools and tests that call the core on it. */
+  get block(): number { return this.ptr; }
   /** Iterations taken. */
   get iterations(): number { return this.iterationCount; }
   /** Weighted mean infidelity at the last evaluation (penalty excluded). */

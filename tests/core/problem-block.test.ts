@@ -97,7 +97,7 @@ describe('L-BFGS memory of correction pairs', () => {
     const plain = new StartRun(problem, 0), offered = new StartRun(problem, 0);
     try {
       for (let k = 0; k < 6; k++) { plain.step(); offered.step(); }
-      const ptr = (run: StartRun): number => (run as unknown as { ptr: number }).ptr;
+      const ptr = (run: StartRun): number => run.block;
       expect(core.exports.optStoredPairs(ptr(offered))).toBe(3);
       const nVar = core.exports.problemVariables(ptr(offered));
       const before = core.exports.optObjective(ptr(offered));
