@@ -15,7 +15,7 @@
 // A problem block (one allocation, 16-byte aligned parts, f64 unless noted):
 //
 //   p ->  +-------------------------------+
-//         | Problem header (problem.ts)   |  kinds, sizes, dt, bound, pointers below
+//         | Problem header (problem.ts)   |  system kind and size, sizes, dt, bound, pointers
 //         +-------------------------------+
 //         | samplesI[n]  samplesQ[n]      |  programmed samples, Hz
 //         | driveI[nd]   driveQ[nd]       |  the drive the system sees (absent for the
@@ -28,7 +28,8 @@
 //         |                               |  the figure is taken of W = G U H (gate:
 //         |                               |  G = V^dag, H = 1; state: G, H rotate the poles
 //         |                               |  onto the target and initial states)
-//         | perMember[m]                  |  infidelity of each member (output)
+//         | perMember[memberValues * m]   |  infidelity of each member, then whatever else the
+//         |                               |  system reports per member (output)
 //         | gradI[n]  gradQ[n]            |  d(mean)/dI_k, dQ_k of the samples (output)
 //         | gradDriveI[nd] gradDriveQ[nd] |  the same for the drive (aliases without a map)
 //         | work[workValues]              |  the system's scratch (qubit: cos a, S, T per

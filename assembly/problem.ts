@@ -4,7 +4,7 @@
 // calls, so problems interleave freely.
 
 import { arenaAlloc, arenaHold, arenaDrop } from './memory';
-import { systemParams, systemTargetValues, systemWorkValues } from './system';
+import { systemParams, systemTargetValues, systemMemberValues, systemWorkValues } from './system';
 import { driveHasBuffers } from './drive';
 import { Lbfgs, lbfgsBytes, lbfgsPlace } from './lbfgs';
 
@@ -18,6 +18,7 @@ export const BOUND_BOX: i32 = 2;
 /** The header of a problem block (an unmanaged struct: field access is one load). */
 @unmanaged export class Problem {
   system: i32;
+  dim: i32;
   mode: i32;
   n: i32;
   nDrive: i32;
@@ -29,6 +30,7 @@ export const BOUND_BOX: i32 = 2;
   nVar: i32;
   series: i32;
   held: i32;
+  _pad: i32;
   dt: f64;
   driveDt: f64;
   rabiMax: f64;
@@ -54,12 +56,13 @@ export const BOUND_BOX: i32 = 2;
 @inline function f64s(count: i32): usize { return ((<usize>count << 3) + 15) & ~(<usize>15); }
 
 /**
- * A new problem block (0 when memory is exhausted or a kind is unknown). `held` blocks
+ * A new problem block (0 when memory is exhausted or a kind is unknown). `dim` is the
+ * system's size (2 for the qubit, d levels for a ladder). `held` blocks
  * outlive the current job (a design start) and are freed by problemFree; others are
  * released with the job. `memory` > 0 adds an optimiser with that many correction pairs.
  */
 export function problemCreate(
-  system: i32, mode: i32, n: i32, dt: f64, m: i32,
+  system: i32, dim: i32, mode: i32, n: i32, dt: f64, m: i32,
   drive: i32, nDrive: i32, driveDt: f64, driveValues: i32,
   bound: i32, zeroEdges: bool, rabiMax: f64, smoothness: f64,
   memory_: i32, gradientTolerance: f64, held: bool,
@@ -75,17 +78,17 @@ export function problemCreate(
   bytes += 2 * f64s(n);                                  // samples
   if (own) bytes += 2 * f64s(nDrive);                    // drive
   bytes += f64s(params * m) + f64s(m);                   // members, weight
-  bytes += f64s(systemTargetValues(system)) + f64s(m);   // target, perMember
+  bytes += f64s(systemTargetValues(system, dim)) + f64s(systemMemberValues(system) * m); // target, perMember
   bytes += 2 * f64s(n);                                  // gradient
   if (own) bytes += 2 * f64s(nDrive);                    // drive gradient
-  bytes += f64s(systemWorkValues(system, nDrive)) + f64s(driveValues);
+  bytes += f64s(systemWorkValues(system, dim, nDrive)) + f64s(driveValues);
   const optBytes = memory_ > 0 && nVar > 0 ? lbfgsBytes(nVar, memory_, bound == BOUND_BOX) : 0;
   bytes += optBytes;
   const ptr = held ? arenaHold(bytes) : arenaAlloc(bytes);
   if (ptr == 0) return 0;
   memory.fill(ptr, 0, bytes);
   const p = changetype<Problem>(ptr);
-  p.system = system; p.mode = mode; p.n = n; p.nDrive = nDrive; p.m = m; p.drive = drive;
+  p.system = system; p.dim = dim; p.mode = mode; p.n = n; p.nDrive = nDrive; p.m = m; p.drive = drive;
   p.bound = bound; p.first = first; p.free = free; p.nVar = nVar; p.held = held ? 1 : 0;
   p.dt = dt; p.driveDt = driveDt; p.rabiMax = rabiMax; p.smoothness = smoothness;
   let at = ptr + header;
@@ -99,8 +102,8 @@ export function problemCreate(
   }
   p.members = at; at += f64s(params * m);
   p.weight = at; at += f64s(m);
-  p.target = at; at += f64s(systemTargetValues(system));
-  p.perMember = at; at += f64s(m);
+  p.target = at; at += f64s(systemTargetValues(system, dim));
+  p.perMember = at; at += f64s(systemMemberValues(system) * m);
   p.gradI = at; at += f64s(n);
   p.gradQ = at; at += f64s(n);
   if (own) {
@@ -109,7 +112,7 @@ export function problemCreate(
   } else {
     p.gradDriveI = p.gradI; p.gradDriveQ = p.gradQ;
   }
-  p.work = at; at += f64s(systemWorkValues(system, nDrive));
+  p.work = at; at += f64s(systemWorkValues(system, dim, nDrive));
   p.driveData = at; at += f64s(driveValues);
   if (optBytes > 0) {
     p.opt = at;

@@ -7,11 +7,13 @@
 // p.nDrive samples of p.driveDt, Hz) is in place:
 //   figure:    per-member infidelities into p.perMember, weighted mean returned
 //   gradient:  the same, plus d(mean)/d(drive) into p.gradDriveI, p.gradDriveQ (per Hz)
-// and, for the layout of the block:
+// and, for the layout of the block (p.dim is the system's size: 2 for the qubit, the
+// number of levels d of a ladder):
 //   params:        member parameters per member (p.members holds params x m, one array each)
 //   targetValues:  f64 values of an encoded target (p.target); p.mode says which kind
+//   memberValues:  f64 of output per member in p.perMember (the figure first)
 //   memberMultiple: members are padded to a multiple of it (zero weight)
-//   workValues:    f64 of scratch its gradient needs (p.work)
+//   workValues:    f64 of scratch its figure and gradient need (p.work)
 // To add a system: a kind constant here, one case in each function below, its kernels in
 // their own file(s) taking pointers; nothing else in assembly/ changes.
 
@@ -31,10 +33,18 @@ export function systemParams(kind: i32): i32 {
   }
 }
 
-/** Values of an encoded target of a system kind. */
-export function systemTargetValues(kind: i32): i32 {
+/** Values of an encoded target of a system kind and size. */
+export function systemTargetValues(kind: i32, dim: i32): i32 {
   switch (kind) {
     case SYSTEM_QUBIT: return QUBIT_TARGET_VALUES;
+    default: return 0;
+  }
+}
+
+/** Output values per member (p.perMember holds memberValues x m; the figure first). */
+export function systemMemberValues(kind: i32): i32 {
+  switch (kind) {
+    case SYSTEM_QUBIT: return 1;
     default: return 0;
   }
 }
@@ -47,8 +57,8 @@ export function systemMemberMultiple(kind: i32): i32 {
   }
 }
 
-/** Scratch values the gradient of a system kind needs for a drive of nDrive samples. */
-export function systemWorkValues(kind: i32, nDrive: i32): i32 {
+/** Scratch values the figure and gradient of a system kind and size need for a drive of nDrive samples. */
+export function systemWorkValues(kind: i32, dim: i32, nDrive: i32): i32 {
   switch (kind) {
     case SYSTEM_QUBIT: return qubitWorkValues(nDrive);
     default: return 0;

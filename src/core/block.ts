@@ -33,8 +33,9 @@ export interface BlockLayout {
   dt: number;
   /** Members padded to the system's multiple (encodeMembers with 2). */
   members: EncodedMembers;
-  /** System kind (default the qubit); another system also gives its encodings below. */
+  /** System kind (default the qubit) and size (default 2); another system also gives its encodings below. */
   system?: number;
+  dim?: number;
   /** The system's member parameters, one padded array each (default: the qubit's scale and detuning). */
   memberParams?: Float64Array[];
   /** The system's target encoding and mode (default: the qubit's, from `target`). */
@@ -56,7 +57,7 @@ export function createBlock(core: Core, layout: BlockLayout): number {
   const { members: enc, segments: n, dt } = layout;
   const drive = layout.drive;
   const p = core.exports.problemCreate(
-    layout.system ?? SYSTEM_QUBIT, layout.mode ?? targetMode(layout.target), n, dt, enc.padded,
+    layout.system ?? SYSTEM_QUBIT, layout.dim ?? 2, layout.mode ?? targetMode(layout.target), n, dt, enc.padded,
     drive?.kind ?? DRIVE_IDENTITY, drive?.samples ?? n, drive?.dt ?? dt, drive?.values.length ?? 0,
     layout.bound ? BOUND[layout.bound] : BOUND.none, layout.zeroEdges ? 1 : 0, layout.rabiMax ?? 0, layout.smoothness ?? 0,
     layout.optimizer?.memory ?? 0, layout.optimizer?.gradientTolerance ?? 0, layout.held ? 1 : 0,

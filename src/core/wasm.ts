@@ -8,7 +8,7 @@ export interface CoreExports {
   arenaAlloc(bytes: number): number;
   arenaUsed(): number;
   arenaRelease(used: number): void;
-  problemCreate(system: number, mode: number, n: number, dt: number, m: number,
+  problemCreate(system: number, dim: number, mode: number, n: number, dt: number, m: number,
     drive: number, nDrive: number, driveDt: number, driveValues: number,
     bound: number, zeroEdges: number, rabiMax: number, smoothness: number,
     memory: number, gradientTolerance: number, held: number): number;
