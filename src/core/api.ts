@@ -44,16 +44,9 @@ function isProblem(spec: unknown): spec is Problem {
     && typeof p.target === 'object' && p.target !== null && 'kind' in p.target;
 }
 
-/**
- * A Problem checked with the spec's rules, or the spec JSON validated into one; either way
- * refused (SegmentAngleError) when its segments could turn a member further than the core
- * computes exactly.
- */
+/** A Problem checked with the spec's rules, or the spec JSON validated into one. */
 export function toProblem(spec: unknown): Problem {
-  if (isProblem(spec)) return checkProblem(spec);
-  const problem = parseSpec(spec);
-  checkProblemAngles(problem);
-  return problem;
+  return isProblem(spec) ? checkProblem(spec) : parseSpec(spec);
 }
 
 /** Evaluate a pulse on a spec's (or problem's) ensemble and target. */
@@ -176,7 +169,10 @@ const YIELD_EVERY_MS = 15;
 /** Design a pulse by ensemble GRAPE with L-BFGS (each start on its own problem block, so designs run side by side). */
 export function design(spec: unknown, options: DesignOptions = {}): Promise<DesignResult> {
   try {
-    return designNow(toProblem(spec), options);
+    const problem = toProblem(spec);
+    // Refused (SegmentAngleError) when a segment at the bound could turn a member further than the core computes exactly.
+    checkProblemAngles(problem);
+    return designNow(problem, options);
   } catch (error) {
     return Promise.reject(error);
   }

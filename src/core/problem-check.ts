@@ -2,7 +2,6 @@
 // library refuses from every entry point what a spec would refuse: every error is a
 // SpecError naming the field as a spec would spell it.
 import { SpecError } from './errors.ts';
-import { checkProblemAngles } from './limits.ts';
 import { MAX_MEMBERS } from './spec-ensemble.ts';
 import { checkNumber, describeRule } from './spec-fields.ts';
 import { MAX_SEGMENTS, OPTIMIZER_RULES } from './spec.ts';
@@ -66,6 +65,5 @@ export function checkProblem(problem: Problem): Problem {
     if (o[key] === undefined) throw new SpecError(`optimizer.${key}`, undefined, `required: ${describeRule(rule)}`);
     checkNumber(o[key], `optimizer.${key}`, rule);
   }
-  checkProblemAngles(problem);
   return problem;
 }
