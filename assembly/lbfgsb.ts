@@ -20,18 +20,21 @@ const UPPER: f64 = 1.0;
 
 /** Bytes the box method adds to an optimiser. */
 export function lbfgsbBytes(nVar: i32, mem: i32): usize {
-  return 3 * f64s(mem * mem) + 3 * f64s(4 * mem * mem) + 6 * f64s(2 * mem) + 2 * f64s(nVar) + i32s(nVar);
+  return 3 * f64s(mem * mem) + 3 * f64s(4 * mem * mem) + 8 * f64s(2 * mem) + 2 * f64s(nVar) + i32s(nVar);
 }
 
 // Parts of the box method's region (o.b), in the order of lbfgsbBytes.
 @inline function gramSS(o: Lbfgs): usize { return o.b; }
 @inline function gramSY(o: Lbfgs): usize { return o.b + f64s(o.mem * o.mem); }
 @inline function gramYY(o: Lbfgs): usize { return o.b + 2 * f64s(o.mem * o.mem); }
+// middle: K = M^-1 of the stored pairs; scratch: its LU factors; scratch2: the reduced system.
 @inline function middle(o: Lbfgs): usize { return o.b + 3 * f64s(o.mem * o.mem); }
 @inline function scratch(o: Lbfgs): usize { return middle(o) + f64s(4 * o.mem * o.mem); }
 @inline function scratch2(o: Lbfgs): usize { return scratch(o) + f64s(4 * o.mem * o.mem); }
 @inline function vec(o: Lbfgs, k: i32): usize { return scratch2(o) + f64s(4 * o.mem * o.mem) + <usize>k * f64s(2 * o.mem); }
-@inline function breaks(o: Lbfgs): usize { return vec(o, 6); }
+@inline function pivots(o: Lbfgs): usize { return vec(o, 6); }
+@inline function columns(o: Lbfgs): usize { return vec(o, 7); }
+@inline function breaks(o: Lbfgs): usize { return vec(o, 8); }
 @inline function cauchy(o: Lbfgs): usize { return breaks(o) + f64s(o.nVar); }
 @inline function heap(o: Lbfgs): usize { return cauchy(o) + f64s(o.nVar); }
 
@@ -59,61 +62,73 @@ export function lbfgsbPairAdded(o: Lbfgs, slot: i32): void {
 @inline function slotOf(o: Lbfgs, c: i32): i32 { return (o.newest - o.stored + 1 + c + o.mem) % o.mem; }
 
 /**
- * Solve A X = B in place for a k x k matrix A (row stride `stride`) and `cols` right-hand
- * columns B (row stride `bStride`) by Gaussian elimination with partial pivoting;
- * false when A is singular to working precision. A is destroyed.
+ * LU factors (partial pivoting) of the k x k matrix at a (row stride `stride`), in place,
+ * pivot rows into piv (as f64); false when it is singular to working precision.
  */
-function solve(a: usize, stride: i32, k: i32, b: usize, bStride: i32, cols: i32): bool {
+function factor(a: usize, stride: i32, k: i32, piv: usize): bool {
   let scale: f64 = 0.0;
   for (let i = 0; i < k; i++) for (let j = 0; j < k; j++) scale = Math.max(scale, Math.abs(load<f64>(el(a, stride, i, j))));
   for (let col = 0; col < k; col++) {
-    let piv = col;
+    let pr = col;
     let best = Math.abs(load<f64>(el(a, stride, col, col)));
     for (let r = col + 1; r < k; r++) {
       const v = Math.abs(load<f64>(el(a, stride, r, col)));
-      if (v > best) { best = v; piv = r; }
+      if (v > best) { best = v; pr = r; }
     }
+    store<f64>(at(piv, col), <f64>pr);
     if (!(best > 1e-14 * scale)) return false;
-    if (piv != col) {
+    if (pr != col) {
       for (let j = 0; j < k; j++) {
         const t = load<f64>(el(a, stride, col, j));
-        store<f64>(el(a, stride, col, j), load<f64>(el(a, stride, piv, j)));
-        store<f64>(el(a, stride, piv, j), t);
-      }
-      for (let j = 0; j < cols; j++) {
-        const t = load<f64>(el(b, bStride, col, j));
-        store<f64>(el(b, bStride, col, j), load<f64>(el(b, bStride, piv, j)));
-        store<f64>(el(b, bStride, piv, j), t);
+        store<f64>(el(a, stride, col, j), load<f64>(el(a, stride, pr, j)));
+        store<f64>(el(a, stride, pr, j), t);
       }
     }
     const d = load<f64>(el(a, stride, col, col));
     for (let r = col + 1; r < k; r++) {
       const f = load<f64>(el(a, stride, r, col)) / d;
+      store<f64>(el(a, stride, r, col), f);
       if (f == 0.0) continue;
-      for (let j = col; j < k; j++) store<f64>(el(a, stride, r, j), load<f64>(el(a, stride, r, j)) - f * load<f64>(el(a, stride, col, j)));
-      for (let j = 0; j < cols; j++) store<f64>(el(b, bStride, r, j), load<f64>(el(b, bStride, r, j)) - f * load<f64>(el(b, bStride, col, j)));
-    }
-  }
-  for (let col = k - 1; col >= 0; col--) {
-    const d = load<f64>(el(a, stride, col, col));
-    for (let j = 0; j < cols; j++) {
-      let v = load<f64>(el(b, bStride, col, j));
-      for (let c = col + 1; c < k; c++) v -= load<f64>(el(a, stride, col, c)) * load<f64>(el(b, bStride, c, j));
-      store<f64>(el(b, bStride, col, j), v / d);
+      for (let j = col + 1; j < k; j++) store<f64>(el(a, stride, r, j), load<f64>(el(a, stride, r, j)) - f * load<f64>(el(a, stride, col, j)));
     }
   }
   return true;
 }
 
+/** Solve with the factors of `factor`: b (k values) is overwritten by the solution. */
+function solveFactored(a: usize, stride: i32, k: i32, piv: usize, b: usize): void {
+  for (let col = 0; col < k; col++) {
+    const pr = <i32>load<f64>(at(piv, col));
+    if (pr != col) {
+      const t = load<f64>(at(b, col));
+      store<f64>(at(b, col), load<f64>(at(b, pr)));
+      store<f64>(at(b, pr), t);
+    }
+  }
+  for (let i = 1; i < k; i++) {
+    let v = load<f64>(at(b, i));
+    for (let j = 0; j < i; j++) v -= load<f64>(el(a, stride, i, j)) * load<f64>(at(b, j));
+    store<f64>(at(b, i), v);
+  }
+  for (let i = k - 1; i >= 0; i--) {
+    let v = load<f64>(at(b, i));
+    for (let j = i + 1; j < k; j++) v -= load<f64>(el(a, stride, i, j)) * load<f64>(at(b, j));
+    store<f64>(at(b, i), v / load<f64>(el(a, stride, i, i)));
+  }
+}
+
 /**
- * The middle matrix M = [[-D, L'], [L, theta S'S]]^-1 of the stored pairs (2k x 2k,
- * stride 2 mem, oldest pair first); false when it is singular.
+ * K = M^-1 = [[-D, L'], [L, theta S'S]] of the stored pairs (2k x 2k, stride 2 mem,
+ * oldest pair first) into middle(o), its LU factors into scratch(o), and the pointers of
+ * W's columns (y then s, oldest first) into columns(o); false when K is singular.
  */
 function formMiddle(o: Lbfgs, theta: f64): bool {
   const k = o.stored, mem = o.mem, st = 2 * mem;
-  const kk = scratch(o), mm = middle(o);
+  const kk = middle(o), lu = scratch(o), cols = columns(o);
   for (let a = 0; a < k; a++) {
     const sa = slotOf(o, a);
+    store<usize>(cols + (<usize>a << 2), pairAt(o.y, o, sa));
+    store<usize>(cols + (<usize>(k + a) << 2), pairAt(o.s, o, sa));
     for (let b = 0; b < k; b++) {
       const sb = slotOf(o, b);
       const sy = load<f64>(el(gramSY(o), mem, sa, sb)); // s_a . y_b
@@ -122,32 +137,26 @@ function formMiddle(o: Lbfgs, theta: f64): bool {
       store<f64>(el(kk, st, a, k + b), b > a ? ys : 0.0);            // L' = (s_b . y_a) for b > a
       store<f64>(el(kk, st, k + a, b), a > b ? sy : 0.0);            // L = (s_a . y_b) for a > b
       store<f64>(el(kk, st, k + a, k + b), theta * load<f64>(el(gramSS(o), mem, sa, sb)));
-      store<f64>(el(mm, st, a, b), a == b ? 1.0 : 0.0);
-      store<f64>(el(mm, st, a, k + b), 0.0);
-      store<f64>(el(mm, st, k + a, b), 0.0);
-      store<f64>(el(mm, st, k + a, k + b), a == b ? 1.0 : 0.0);
     }
   }
-  return solve(kk, st, 2 * k, mm, st, 2 * k);
+  for (let a = 0; a < 2 * k; a++) for (let b = 0; b < 2 * k; b++) store<f64>(el(lu, st, a, b), load<f64>(el(kk, st, a, b)));
+  return factor(lu, st, 2 * k, pivots(o));
 }
 
-/** out = M v (2k). */
+/** out = M v (2k values): a solve with K's factors. */
 function middleTimes(o: Lbfgs, v: usize, out: usize): void {
-  const k2 = 2 * o.stored, st = 2 * o.mem, mm = middle(o);
-  for (let a = 0; a < k2; a++) {
-    let s: f64 = 0.0;
-    for (let b = 0; b < k2; b++) s += load<f64>(el(mm, st, a, b)) * load<f64>(at(v, b));
-    store<f64>(at(out, a), s);
-  }
+  const k2 = 2 * o.stored;
+  if (out != v) memory.copy(out, v, <usize>k2 << 3);
+  solveFactored(scratch(o), 2 * o.mem, k2, pivots(o), out);
 }
 
-/** Row i of W = [Y, theta S] into out (2k). */
-function wRow(o: Lbfgs, i: i32, theta: f64, out: usize): void {
-  const k = o.stored;
+/** Row i of W = [Y, theta S] into out (2k), from the column pointers of formMiddle. */
+@inline function wRow(o: Lbfgs, i: i32, theta: f64, out: usize): void {
+  const k = o.stored, cols = columns(o);
+  const off = <usize>i << 3;
   for (let c = 0; c < k; c++) {
-    const slot = slotOf(o, c);
-    store<f64>(at(out, c), load<f64>(at(pairAt(o.y, o, slot), i)));
-    store<f64>(at(out, k + c), theta * load<f64>(at(pairAt(o.s, o, slot), i)));
+    store<f64>(at(out, c), load<f64>(load<usize>(cols + (<usize>c << 2)) + off));
+    store<f64>(at(out, k + c), theta * load<f64>(load<usize>(cols + (<usize>(k + c) << 2)) + off));
   }
 }
 
@@ -256,7 +265,7 @@ function cauchyPoint(o: Lbfgs, theta: f64): void {
 function subspaceStep(o: Lbfgs, theta: f64): bool {
   const n = o.nVar, k = o.stored, k2 = 2 * k, mem = o.mem, st = 2 * mem;
   const x = o.x, g = o.g, xc = cauchy(o), r = o.d;
-  const c = vec(o, 1), wb = vec(o, 2), mc = vec(o, 3), v = vec(o, 4), nm = scratch(o);
+  const c = vec(o, 1), wb = vec(o, 2), mc = vec(o, 3), v = vec(o, 4), nm = scratch2(o);
   if (k > 0) middleTimes(o, c, mc);
   // r = Z'(g + theta (xc - x) - W M c) on free variables (0 on the others); v = W_Z' r.
   for (let a = 0; a < k2; a++) store<f64>(at(v, a), 0.0);
@@ -272,41 +281,46 @@ function subspaceStep(o: Lbfgs, theta: f64): bool {
     store<f64>(at(r, i), ri);
   }
   if (k > 0) {
-    // N = I - (1/theta) M W_Z'W_Z, with W_Z'W_Z = W'W - W_A'W_A from the Gram matrices.
-    const wz = vec(o, 5);
+    // The paper's v = N^-1 M W_Z'r with N = I - (1/theta) M W_Z'W_Z is, multiplied
+    // through by K = M^-1, the solution of (K - (1/theta) W_Z'W_Z) v = W_Z'r; W_Z'W_Z is
+    // W'W from the Gram matrices less the rows of the variables held at a bound, or the
+    // sum over the free rows, whichever has fewer rows.
+    const wz = vec(o, 5), kk = middle(o);
+    let held = 0;
+    for (let i = 0; i < n; i++) {
+      const xci = load<f64>(at(xc, i));
+      if (xci <= LOWER || xci >= UPPER) held++;
+    }
+    // From the free rows directly when they are fewer than the held ones.
+    const fromFree = held > n - held;
     for (let a = 0; a < k; a++) {
       const sa = slotOf(o, a);
       for (let b = 0; b < k; b++) {
         const sb = slotOf(o, b);
-        store<f64>(el(nm, st, a, b), load<f64>(el(gramYY(o), mem, sa, sb)));
-        store<f64>(el(nm, st, a, k + b), theta * load<f64>(el(gramSY(o), mem, sb, sa)));
-        store<f64>(el(nm, st, k + a, b), theta * load<f64>(el(gramSY(o), mem, sa, sb)));
-        store<f64>(el(nm, st, k + a, k + b), theta * theta * load<f64>(el(gramSS(o), mem, sa, sb)));
+        const gram = !fromFree;
+        store<f64>(el(nm, st, a, b), gram ? load<f64>(el(gramYY(o), mem, sa, sb)) : 0.0);
+        store<f64>(el(nm, st, a, k + b), gram ? theta * load<f64>(el(gramSY(o), mem, sb, sa)) : 0.0);
+        store<f64>(el(nm, st, k + a, b), gram ? theta * load<f64>(el(gramSY(o), mem, sa, sb)) : 0.0);
+        store<f64>(el(nm, st, k + a, k + b), gram ? theta * theta * load<f64>(el(gramSS(o), mem, sa, sb)) : 0.0);
       }
     }
+    const sign: f64 = fromFree ? 1.0 : -1.0;
     for (let i = 0; i < n; i++) {
       const xci = load<f64>(at(xc, i));
-      if (xci > LOWER && xci < UPPER) continue;
+      const free = xci > LOWER && xci < UPPER;
+      if (free != fromFree) continue;
       wRow(o, i, theta, wz);
       for (let a = 0; a < k2; a++) {
-        const wa = load<f64>(at(wz, a));
-        for (let b = 0; b < k2; b++) store<f64>(el(nm, st, a, b), load<f64>(el(nm, st, a, b)) - wa * load<f64>(at(wz, b)));
+        const wa = sign * load<f64>(at(wz, a));
+        for (let b = 0; b < k2; b++) store<f64>(el(nm, st, a, b), load<f64>(el(nm, st, a, b)) + wa * load<f64>(at(wz, b)));
       }
     }
-    // N = I - (1/theta) M (W_Z'W_Z) into the second scratch matrix.
-    const mm = middle(o);
-    const tmp = scratch2(o);
     for (let a = 0; a < k2; a++) {
-      for (let b = 0; b < k2; b++) {
-        let s: f64 = 0.0;
-        for (let e = 0; e < k2; e++) s += load<f64>(el(mm, st, a, e)) * load<f64>(el(nm, st, e, b));
-        store<f64>(el(tmp, st, a, b), (a == b ? 1.0 : 0.0) - s / theta);
-      }
+      for (let b = 0; b < k2; b++) store<f64>(el(nm, st, a, b), load<f64>(el(kk, st, a, b)) - load<f64>(el(nm, st, a, b)) / theta);
     }
-    // v = M v, then v = N^-1 v.
-    middleTimes(o, v, wb);
-    if (!solve(tmp, st, k2, wb, 1, 1)) return false;
-    memory.copy(v, wb, <usize>k2 << 3);
+    // (M c is no longer needed: its vector holds the pivots.)
+    if (!factor(nm, st, k2, vec(o, 3))) return false;
+    solveFactored(nm, st, k2, vec(o, 3), v);
   }
   // du = -(1/theta) r - (1/theta^2) Z'W v on free variables; cut to stay in the box.
   let alphaStar: f64 = 1.0;
