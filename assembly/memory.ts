@@ -74,10 +74,15 @@ export function arenaAlloc(bytes: usize): usize {
   return ptr;
 }
 
-/** Free every block allocated after `used` bytes were in use (jobs nest, last in first out). */
+/**
+ * Free every block allocated after `used` bytes were in use (jobs nest, last in first
+ * out); never below a live held block, which outlives the job that made it.
+ */
 export function arenaRelease(used: usize): void {
   if (arenaStart == 0) arenaReset();
-  arenaTop = arenaStart + used;
+  let top = arenaStart + used;
+  if (lastHeld != 0 && load<usize>(lastHeld, 4) > top) top = load<usize>(lastHeld, 4);
+  arenaTop = top;
 }
 
 /** Bytes in use. */
