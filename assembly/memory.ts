@@ -40,10 +40,12 @@
 //         | x g xt gt d [nVar]            |
 //         | S[mem][nVar]  Y[mem][nVar]    |  correction pairs (a ring)
 //         | rho[mem] alpha[mem]           |
-//         | box method only (lbfgsb.ts):  |  Gram matrices SS, SY, YY [mem][mem],
-//         |                               |  middle matrix M and scratch [2mem][2mem],
-//         |                               |  vectors [2mem], breakpoints, heap (i32),
-//         |                               |  Cauchy point, free flags [nVar]
+//         | box method only (lbfgsb.ts):  |  Gram matrices SS, SY, YY [mem][mem];
+//         |                               |  K = M^-1, its LU factors and the reduced
+//         |                               |  system [2mem][2mem]; 8 vectors [2mem]
+//         |                               |  (pivots, W's column pointers among them);
+//         |                               |  breakpoints, Cauchy point [nVar]; heap
+//         |                               |  of breakpoints (i32) [nVar]
 //         +-------------------------------+
 
 let arenaStart: usize = 0;
