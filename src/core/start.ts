@@ -51,12 +51,13 @@ export function initialVariables(problem: Problem, start: number, nVar: number):
   return x;
 }
 
-/** The largest |sample| / rabiMax a seeded start may have: the bounded map's inverse is finite and its slope not vanishing there. */
+/** The largest |sample| / rabiMax of the disc a given start may have: the inverse of tanh is finite and its slope not vanishing there. */
 const SEED_CAP = 0.98;
 
 /**
- * Optimiser variables that stand for the given samples (the inverse of the core's bounded
- * map, assembly/control.ts), with each sample pulled inside SEED_CAP of the bound first.
+ * Optimiser variables that stand for the given samples (the inverse of the bound's map,
+ * assembly/control.ts): for the disc, (I, Q) = rabiMax tanh(r)/r (x, y) inverted with each
+ * sample pulled inside SEED_CAP of the bound; for the box, the samples over rabiMax, clamped to it.
  */
 export function variablesFromSamples(problem: Problem, samples: { i: ArrayLike<number>; q: ArrayLike<number> }, nVar: number): Float64Array {
   const { rabiMax, constraints } = problem;
@@ -65,14 +66,13 @@ export function variablesFromSamples(problem: Problem, samples: { i: ArrayLike<n
   for (let f = 0; f < nVar / 2; f++) {
     const iv = samples.i[first + f] / rabiMax, qv = samples.q[first + f] / rabiMax;
     if (constraints.bound === 'box') {
-      x[2 * f] = Math.atanh(Math.max(-SEED_CAP, Math.min(SEED_CAP, iv)));
-      x[2 * f + 1] = Math.atanh(Math.max(-SEED_CAP, Math.min(SEED_CAP, qv)));
+      x[2 * f] = Math.max(-1, Math.min(1, iv));
+      x[2 * f + 1] = Math.max(-1, Math.min(1, qv));
       continue;
     }
     const a = Math.hypot(iv, qv);
-    const capped = Math.min(a, SEED_CAP);
-    // (I, Q) = rabiMax tanh(r)/r (x, y): r = atanh(|(I, Q)| / rabiMax) along the same direction.
-    const ratio = a < 1e-8 ? 1 : Math.atanh(capped) / a;
+    // r = atanh(|(I, Q)| / rabiMax) along the same direction.
+    const ratio = a < 1e-8 ? 1 : Math.atanh(Math.min(a, SEED_CAP)) / a;
     x[2 * f] = iv * ratio;
     x[2 * f + 1] = qv * ratio;
   }
