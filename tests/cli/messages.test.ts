@@ -6,7 +6,7 @@
 // here are invariants (the same pulse read with and without a byte-order mark gives the
 // same figure to the bit); positions are counted in the test's own text.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { readPulse } from '../../src/io/pulse.ts';
@@ -208,7 +208,8 @@ describe('warnings', () => {
   });
 
   it('a duration of 200 with 100 segments and a rabiMax of 10 warn, naming the field and the likely value; it still runs', async () => {
-    const wrong = write('units.json', JSON.stringify({ ...QUICK, duration: 200, rabiMax: 10, optimizer: { ...QUICK.optimizer, starts: 1, maxIterations: 2 } }));
+    // No detuning: under 1 MHz a 2 s segment would turn by 6e6 rad, which the core refuses (SegmentAngleError).
+    const wrong = write('units.json', JSON.stringify({ ...QUICK, ensemble: undefined, duration: 200, rabiMax: 10, optimizer: { ...QUICK.optimizer, starts: 1, maxIterations: 2 } }));
     const r = await run(['design', wrong, '--json']);
     expect(r.code, r.stderr).toBe(0);
     const warnings: string[] = JSON.parse(r.stdout).warnings;
@@ -220,13 +221,13 @@ describe('warnings', () => {
     for (const w of warnings) expect(r.stderr).toContain(w);
   });
 
-  it('an export at a sample rate of 1 warns "did you mean 1 GS/s" and still runs', async () => {
+  it('an export at a sample rate of 1 warns "did you mean 1 GS/s"; judging a 1 s sample under 1 MHz detuning is refused by name', async () => {
     const r = await run(['export', pulsePath, '--format', 'csv', '--sample-rate', '1', '--resample', 'average', '--bits', '14', '--full-scale', '1e7', '--out', join(dir, 'slow.csv'), '--json']);
-    expect(r.code, r.stderr).toBe(0);
-    const json = JSON.parse(r.stdout);
-    expect(json.warnings[0]).toContain('--sample-rate 1 is 1 Hz');
-    expect(json.warnings[0]).toContain('did you mean 1 GS/s, --sample-rate 1e9?');
-    expect(json.description.length).toBe(1); // ceil(200 ns x 1 Hz) samples, as asked
+    expect(r.stderr).toContain('warning: --sample-rate 1 is 1 Hz, probably not meant (values are in Hz): did you mean 1 GS/s, --sample-rate 1e9?');
+    // A 1 s sample under the spec's 1 MHz detuning turns the qubit by 3e6 rad, beyond what the core computes exactly.
+    expect(r.code).toBe(1);
+    expect(r.stderr).toContain('gatesmith: detuning: 1000000 Hz is not allowed with this pulse; a segment of 1 s may turn the qubit by at most 10000 rad');
+    expect(existsSync(join(dir, 'slow.csv'))).toBe(false);
   });
 });
 
