@@ -11,6 +11,7 @@ import { pathToFileURL } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import { bestOfStarts, toProblem } from './api.ts';
 import type { DesignOptions } from './api.ts';
+import { checkProblemAngles } from './limits.ts';
 import type { DesignResult, Problem, Progress, Pulse, StartResult } from './types.ts';
 
 /** Messages from a design thread. */
@@ -41,6 +42,7 @@ export class StoppedBeforeFirstIterationError extends Error {
  */
 export async function designInThreads(spec: unknown, options: ThreadedDesignOptions = {}): Promise<DesignResult> {
   const problem = toProblem(spec);
+  checkProblemAngles(problem);
   const indices = options.startIndices ?? Array.from({ length: problem.optimizer.starts }, (_, k) => k);
   const threads = Math.max(1, Math.min(options.threads ?? availableParallelism(), indices.length));
   const t0 = performance.now();
