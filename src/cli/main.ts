@@ -25,7 +25,7 @@ export const COMMANDS: CommandEntry[] = [
 ];
 
 // Errors that mean the user's input is wrong (by name, so that errors from a worker count too).
-const BAD_INPUT = new Set(['SpecError', 'PulseFormatError', 'ArgumentError', 'ExportError']);
+const BAD_INPUT = new Set(['SpecError', 'PulseFormatError', 'ArgumentError', 'ExportError', 'SegmentAngleError']);
 const FILE_ERRORS = new Set(['ENOENT', 'EISDIR', 'ENOTDIR', 'EACCES', 'EPERM']);
 
 /** Runs the command line with `argv` (without node and the script); returns the exit code. */
