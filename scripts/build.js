@@ -1,6 +1,6 @@
 #!/usr/bin/env node
 // Builds what the package ships:
-//   wasm  assembly/ -> build/gatesmith.wasm (the templates unrolled by bin/unroll.js, then
+//   wasm  assembly/ -> build/gatesmith.wasm (bin/unroll.js expands the kernel templates, then
 //         AssemblyScript, release target)
 //   lib   src/core, src/io, src/cli and the entries src/index.ts, src/node.ts -> dist/, ES
 //         modules with .d.ts files (tsc). tsc rewrites the sources' `.ts` import specifiers
@@ -24,8 +24,8 @@ for (const part of parts.length > 0 ? parts : ['wasm', 'lib']) {
   if (part === 'wasm') {
     const wasm = join(root, 'build/gatesmith.wasm');
     if (ifStale && newerThanSources(wasm, ['assembly', 'asconfig.json', 'bin/unroll.js'])) continue;
-    // The kernel templates (assembly/*.template.ts) expand into assembly/generated/ first.
-    execFileSync(process.execPath, [join(root, 'bin/unroll.js')], { stdio: 'inherit', cwd: root });
+    // The kernel templates expand into assembly/generated/ first (bin/unroll.js).
+    execFileSync(process.execPath, ['bin/unroll.js'], { stdio: 'inherit', cwd: root });
     const asc = join(require.resolve('assemblyscript/package.json'), '..', 'bin/asc.js');
     execFileSync(process.execPath, [asc, 'assembly/index.ts', '--config', 'asconfig.json', '--target', 'release'], { stdio: 'inherit', cwd: root });
   } else if (part === 'lib') {

@@ -6,7 +6,7 @@
 // here are invariants (the same pulse read with and without a byte-order mark gives the
 // same figure to the bit); positions are counted in the test's own text.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { readPulse } from '../../src/io/pulse.ts';
@@ -196,6 +196,16 @@ describe('numbers as people read them', () => {
 });
 
 describe('warnings', () => {
+  it('a segment too long for its detuning is bad input (exit 1, one line), after the unit warning', async () => {
+    const wrong = write('units-detuning.json', JSON.stringify({ ...QUICK, duration: 200 }));
+    const r = await run(['design', wrong]);
+    expect(r.code).toBe(1);
+    const lines = r.stderr.trim().split('\n');
+    expect(lines[0]).toContain('did you mean 200 ns, duration 2e-7?');
+    expect(lines[1]).toMatch(/^gatesmith: .*a segment of 2 s may turn the qubit by at most/);
+    expect(lines).toHaveLength(2);
+  });
+
   it('evaluate --json carries its warnings (a pulse of another length than the spec)', async () => {
     const long = readPulse(readFileSync(pulsePath, 'utf8'));
     const path = write('long.json', JSON.stringify({ dt: long.dt, i: [...long.i, 0, 0], q: [...long.q, 0, 0] }));
@@ -208,8 +218,10 @@ describe('warnings', () => {
   });
 
   it('a duration of 200 with 100 segments and a rabiMax of 10 warn, naming the field and the likely value; it still runs', async () => {
-    // No detuning: under 1 MHz a 2 s segment would turn by 6e6 rad, which the core refuses (SegmentAngleError).
-    const wrong = write('units.json', JSON.stringify({ ...QUICK, ensemble: undefined, duration: 200, rabiMax: 10, optimizer: { ...QUICK.optimizer, starts: 1, maxIterations: 2 } }));
+    // Without detuning members: a 2 s segment under 1 MHz of detuning would turn the qubit by
+    // millions of radians, which the core refuses (a bad input of its own).
+    const ensemble = { amplitudeError: { min: -0.1, max: 0.1, points: 3 } };
+    const wrong = write('units.json', JSON.stringify({ ...QUICK, duration: 200, rabiMax: 10, ensemble, optimizer: { ...QUICK.optimizer, starts: 1, maxIterations: 2 } }));
     const r = await run(['design', wrong, '--json']);
     expect(r.code, r.stderr).toBe(0);
     const warnings: string[] = JSON.parse(r.stdout).warnings;
@@ -221,13 +233,15 @@ describe('warnings', () => {
     for (const w of warnings) expect(r.stderr).toContain(w);
   });
 
-  it('an export at a sample rate of 1 warns "did you mean 1 GS/s"; judging a 1 s sample under 1 MHz detuning is refused by name', async () => {
-    const r = await run(['export', pulsePath, '--format', 'csv', '--sample-rate', '1', '--resample', 'average', '--bits', '14', '--full-scale', '1e7', '--out', join(dir, 'slow.csv'), '--json']);
-    expect(r.stderr).toContain('warning: --sample-rate 1 is 1 Hz, probably not meant (values are in Hz): did you mean 1 GS/s, --sample-rate 1e9?');
-    // A 1 s sample under the spec's 1 MHz detuning turns the qubit by 3e6 rad, beyond what the core computes exactly.
-    expect(r.code).toBe(1);
-    expect(r.stderr).toContain('gatesmith: detuning: 1000000 Hz is not allowed with this pulse; a segment of 1 s may turn the qubit by at most 10000 rad');
-    expect(existsSync(join(dir, 'slow.csv'))).toBe(false);
+  it('an export at a sample rate of 1 warns "did you mean 1 GS/s" and still runs', async () => {
+    // Judged on amplitude errors only: a 1 s sample under 1 MHz of detuning is refused by the core.
+    const judge = write('amplitude-only.json', JSON.stringify({ ...QUICK, ensemble: { amplitudeError: { min: -0.1, max: 0.1, points: 3 } } }));
+    const r = await run(['export', pulsePath, '--format', 'csv', '--sample-rate', '1', '--resample', 'average', '--bits', '14', '--full-scale', '1e7', '--spec', judge, '--out', join(dir, 'slow.csv'), '--json']);
+    expect(r.code, r.stderr).toBe(0);
+    const json = JSON.parse(r.stdout);
+    expect(json.warnings[0]).toContain('--sample-rate 1 is 1 Hz');
+    expect(json.warnings[0]).toContain('did you mean 1 GS/s, --sample-rate 1e9?');
+    expect(json.description.length).toBe(1); // ceil(200 ns x 1 Hz) samples, as asked
   });
 });
 

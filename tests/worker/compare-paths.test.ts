@@ -11,10 +11,10 @@ import { wrap } from 'comlink';
 import { design, evaluate } from '../../src/core/api.ts';
 import { buildComposite } from '../../src/core/composites.ts';
 import { readPulse, writePulse } from '../../src/io/pulse.ts';
-import { targetJson } from '../../src/io/target-json.ts';
 import type { CoreService } from '../../src/worker/protocol.ts';
 import { run } from '../cli/run.ts';
 import { closePorts, serviceEndpoint } from './in-realm.ts';
+import { targetJson } from '../../src/io/target-json.ts';
 
 const SPEC = JSON.parse(readFileSync(new URL('../../examples/transmon-x90.json', import.meta.url), 'utf8'));
 const REGION = { detuning: { min: -1.5e6, max: 1.5e6, points: 15 }, amplitudeError: { min: -0.12, max: 0.12, points: 13 } };
@@ -60,7 +60,7 @@ describe('compare from the command line and from the worker', () => {
     rows.forEach((row, k) => {
       const line = printed.rows[k];
       expect(line.origin, row.name).toBe(row.origin);
-      // The command line prints targets in the spec's form (degrees), the library in the core's.
+      // The command prints the target in the spec's form, its angle in degrees.
       expect(line.target ?? null, row.name).toEqual(row.target ? targetJson(row.target) : null);
       expect(line.note ?? null, row.name).toBe(row.note ?? null);
       expect(line.error ?? null, row.name).toEqual(row.error ?? null);
