@@ -98,7 +98,7 @@ export const compareCommand: Command = defineCommand({
     const rows: Row[] = pulses.map(({ name, source, pulse }) => ({
       name,
       source,
-      ...summarise(spec.problem.target, pulse, region.detuning, region.amplitudeError, { threshold }).summary,
+      ...summarise(spec.problem.target, pulse, region.detuning, region.amplitudeError, { threshold, line: spec.problem.line }).summary,
     }));
     const sorted = compareSummaries(rows, sortBy);
     if (flags.json) {

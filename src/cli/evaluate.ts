@@ -1,6 +1,7 @@
 // `gatesmith evaluate SPEC PULSE [--json]`: the figures of a pulse on a spec's target and
 // ensemble, per member and in summary.
-import type { Evaluation, Problem, Pulse } from '../core/types.ts';
+import { describeLine, lineJson } from '../core/line-spec.ts';
+import type { Evaluation, Line, Problem, Pulse } from '../core/types.ts';
 import { optionsHelp, usageLine } from './args.ts';
 import type { ArgSpec } from './args.ts';
 import { defineCommand } from './command.ts';
@@ -11,15 +12,19 @@ import { formatFrequency, formatInfidelity, formatRelative, formatTarget, format
 const ARGS: ArgSpec = {
   command: 'evaluate',
   positionals: ['SPEC', 'PULSE'],
-  flags: [{ name: 'json', help: 'print {members, meanInfidelity, worstInfidelity} as JSON instead of a table' }],
+  flags: [
+    { name: 'json', help: 'print {members, meanInfidelity, worstInfidelity} as JSON instead of a table' },
+    { name: 'no-line', help: "ignore the spec's line: the figures of the held samples as if the qubit saw them (the naive figure)" },
+  ],
 };
 
 const HELP = `Evaluate a pulse on the target and ensemble of a spec.
 
 Usage: ${usageLine(ARGS)}
 
-SPEC is a design spec (JSON; see docs/spec.md); only its target, ensemble and rabiMax
-are used. PULSE is a pulse file (JSON with "dt" in seconds and arrays "i", "q" in Hz)
+SPEC is a design spec (JSON; see docs/spec.md); its target, ensemble, rabiMax and line
+are used: with a line, the figures are of the drive the qubit sees through it
+(--no-line for the figures without it). PULSE is a pulse file (JSON with "dt" in seconds and arrays "i", "q" in Hz)
 or any waveform that \`gatesmith export\` wrote (csv, npy, raw with its FILE.json
 description, wav), evaluated as the instrument plays it, padding included.
 Prints each member's detuning, amplitude error, weight and infidelity, then the weighted
@@ -42,7 +47,8 @@ export const evaluateCommand: Command = defineCommand({
 
     // Loaded here so that --help and bad input never wait for the wasm core.
     const api = await import('../core/api.ts');
-    const evaluation = api.evaluate(spec.json, pulse);
+    const line = flags['no-line'] ? undefined : spec.problem.line;
+    const evaluation = api.evaluateMembers(spec.problem.target, pulse, spec.problem.members, line);
     if (flags.json) {
       const json = {
         members: evaluation.members.map((m) => ({
@@ -53,10 +59,12 @@ export const evaluateCommand: Command = defineCommand({
         })),
         meanInfidelity: evaluation.meanInfidelity,
         worstInfidelity: evaluation.worstInfidelity,
+        // With a line in the spec: the line the figures went through (null: --no-line).
+        ...(spec.problem.line ? { line: line ? lineJson(line) : null } : {}),
       };
       io.stdout(JSON.stringify(json, null, 2) + '\n');
     } else {
-      io.stdout(evaluationTable(evaluation, spec.problem, pulse));
+      io.stdout(evaluationTable(evaluation, spec.problem, pulse, line));
     }
     return 0;
   },
@@ -78,7 +86,7 @@ function mismatches(pulse: Pulse, problem: Problem): string[] {
   return warnings;
 }
 
-function evaluationTable(ev: Evaluation, problem: Problem, pulse: Pulse): string {
+function evaluationTable(ev: Evaluation, problem: Problem, pulse: Pulse, through: Line | undefined): string {
   const header = ['detuning', 'amplitude error', 'weight', 'infidelity'];
   const rows = ev.members.map((m) => [
     formatFrequency(m.detuning),
@@ -91,6 +99,7 @@ function evaluationTable(ev: Evaluation, problem: Problem, pulse: Pulse): string
   const worst = ev.members[ev.worstIndex];
   return [
     `target: ${formatTarget(problem.target)}; pulse: ${pulse.i.length} samples of ${formatTime(pulse.dt)}`,
+    through ? `through the line: ${describeLine(through)}` : problem.line ? "without the spec's line (--no-line): the held samples as the qubit's drive" : 'no line: the qubit sees the held samples',
     line(header),
     ...rows.map(line),
     '',

@@ -56,7 +56,7 @@ export const mapCommand: Command = defineCommand({
 
     // Loaded here so that --help and bad input never wait for the wasm core.
     const { summarise } = await import('../core/robustness.ts');
-    const { summary, map } = summarise(spec.problem.target, pulse, region.detuning, region.amplitudeError, { threshold });
+    const { summary, map } = summarise(spec.problem.target, pulse, region.detuning, region.amplitudeError, { threshold, line: spec.problem.line });
     if (out !== undefined) {
       const context = { pulseName: pulseName(pulse, pulsePath), target: summary.targetUsed, targetNote: summary.targetNote };
       writeText(out, format === 'csv' ? writeMapCsv(map, context) : writeMapJson(map, context, summary), '--out');

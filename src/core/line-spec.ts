@@ -24,7 +24,7 @@ export function parseLine(value: unknown, dt: number, segments: number, path = '
   const delay = readNumber(obj, 'delay', path, { min: 0, unit: 's' }, LINE_DEFAULTS.delay);
   checkDelay(delay, dt / oversample, childPath(path, 'delay'), oversample);
   const boundOn = readChoice(obj, 'boundOn', path, ['programmed', 'both'] as const, LINE_DEFAULTS.boundOn);
-  const line: Line = { oversample, response, delay, boundOn };
+  const line: Line = { oversample, response, delay, boundOn, fineStep: dt / oversample };
   checkDriveSize(line, dt, segments, path);
   return line;
 }
@@ -124,4 +124,15 @@ export function heldKernel(h: Float64Array, oversample: number): Float64Array {
     c[t] = s;
   }
   return c;
+}
+
+/** The line in words, e.g. "Gaussian 300 MHz (-3 dB), oversample 8, delay 0 s". */
+export function describeLine(line: Line): string {
+  const mhz = (f: number): string => `${Number((f / 1e6).toPrecision(4))} MHz`;
+  const r = line.response;
+  const response = r === null ? 'held samples only'
+    : r.kind === 'gaussian' ? `Gaussian ${mhz(r.bandwidth)} (-3 dB)`
+      : r.kind === 'lowpass' ? `${r.bandwidths.length === 1 ? 'RC lowpass' : `${r.bandwidths.length} RC stages`} ${r.bandwidths.map(mhz).join(', ')} (-3 dB)`
+        : `measured impulse response of ${r.values.length} fine steps${r.source ? ` (${r.source})` : ''}`;
+  return `${response}, oversample ${line.oversample}, delay ${line.delay} s${line.boundOn === 'both' ? ', bound also on the drive' : ''}`;
 }

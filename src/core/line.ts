@@ -30,16 +30,35 @@ export interface LineLayout extends DriveLayout {
   startS: number;
 }
 
+/**
+ * Fine steps per sample of `dt` through a line: its oversampling for the spec's own dt;
+ * for another dt (an exported waveform) the whole number nearest dt / fineStep (at least
+ * 1), where a Gaussian or RC response is discretised afresh. A measured impulse response
+ * is given on its own fine step, so dt must be a whole number of them.
+ */
+export function lineOversample(line: Line, dt: number): number {
+  if (line.fineStep === undefined) return line.oversample;
+  const r = dt / line.fineStep;
+  const whole = Math.round(r);
+  if (whole >= 1 && Math.abs(r - whole) <= 1e-9 * r) return whole;
+  if (line.response?.kind === 'impulse') {
+    throw new ArgumentError(`pulse.dt: ${dt} s is not allowed through the measured impulse response, given on fine steps of ${line.fineStep} s; ` +
+      'the pulse\'s samples must last a whole number of them');
+  }
+  return Math.max(1, whole);
+}
+
 /** The drive map of a line for a block of n samples of dt; `method` forces the direct sum or the FFT (tests, benchmark). */
 export function lineLayout(line: Line, n: number, dt: number, method?: 'direct' | 'fft'): LineLayout {
-  const fine = dt / line.oversample;
+  const oversample = lineOversample(line, dt);
+  const fine = dt / oversample;
   const kernel = kernelOf(line, fine);
-  const c = heldKernel(kernel.h, line.oversample);
-  const samples = (n - 1) * line.oversample + c.length;
+  const c = heldKernel(kernel.h, oversample);
+  const samples = (n - 1) * oversample + c.length;
   const size = 2 ** Math.ceil(Math.log2(samples));
   const fft = method ? method === 'fft' : lineUsesFft(n, c.length, size);
   const values = new Float64Array(8 + c.length + (fft ? 5 * size : 0));
-  values[0] = line.oversample;
+  values[0] = oversample;
   values[1] = c.length;
   values[2] = fft ? 1 : 0;
   values[3] = fft ? size : 0;
@@ -62,7 +81,8 @@ export interface QubitDrive extends Pulse {
 export function qubitDrive(pulse: Pulse, line: Line | undefined, method?: 'direct' | 'fft'): QubitDrive {
   if (!line) return { ...pulse, startS: 0 };
   const n = pulse.i.length;
-  if (n * line.oversample > MAX_DRIVE_SAMPLES) {
+  const oversample = lineOversample(line, pulse.dt);
+  if (n * oversample > MAX_DRIVE_SAMPLES) {
     throw new ArgumentError(`line.oversample: ${line.oversample} with a pulse of ${n} samples gives more than ${MAX_DRIVE_SAMPLES} drive samples; lower it`);
   }
   const layout = lineLayout(line, n, pulse.dt, method);

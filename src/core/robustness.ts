@@ -4,9 +4,10 @@
 // its own ideal operation (the Knill sequence, 90-180-90) is compared with that ideal,
 // and every result says which target it used.
 import { axisValues, robustnessMap, type RobustnessMap } from './api.ts';
+import { qubitDrive } from './line.ts';
 import { ArgumentError, PulseFormatError, describeValue } from './errors.ts';
 import { thresholdInterval, type ErrorAxis, type ThresholdInterval } from './threshold-width.ts';
-import type { GridAxis, Pulse, Target, Vec3 } from './types.ts';
+import type { GridAxis, Line, Pulse, Target, Vec3 } from './types.ts';
 
 export type { ErrorAxis, ThresholdInterval } from './threshold-width.ts';
 
@@ -56,6 +57,8 @@ export interface RobustnessSummary extends PulseFigures, TargetChoice {
 export interface SummaryOptions {
   /** Infidelity threshold of the area and width figures (default 1e-4). */
   threshold?: number;
+  /** The line the pulse is played through: every figure is of the drive the qubit sees. */
+  line?: Line;
 }
 
 /** The infidelity along one error axis with the other error at zero. */
@@ -98,7 +101,7 @@ export function chooseTarget(target: Target, pulse: Pulse): TargetChoice {
   };
 }
 
-/** Summary figures of a map computed against `choice.targetUsed`, plus the pulse's own figures. */
+/** Summary figures of a map computed against `choice.targetUsed` (through `options.line`), plus the figures of the drive the qubit sees. */
 export function summariseMap(map: RobustnessMap, pulse: Pulse, choice: TargetChoice, options: SummaryOptions = {}): RobustnessSummary {
   const threshold = checkThreshold(options.threshold ?? DEFAULT_THRESHOLD);
   const values = map.infidelity;
@@ -116,8 +119,9 @@ export function summariseMap(map: RobustnessMap, pulse: Pulse, choice: TargetCho
   }
   const dv = axisValues(map.detuning)[worst % map.detuning.points];
   const av = axisValues(map.amplitudeError)[Math.floor(worst / map.detuning.points)];
-  const detuningInterval = thresholdInterval(choice.targetUsed, pulse, 'detuning', threshold);
-  const amplitudeInterval = thresholdInterval(choice.targetUsed, pulse, 'amplitudeError', threshold);
+  const drive = qubitDrive(pulse, options.line);
+  const detuningInterval = thresholdInterval(choice.targetUsed, drive, 'detuning', threshold);
+  const amplitudeInterval = thresholdInterval(choice.targetUsed, drive, 'amplitudeError', threshold);
   return {
     ...choice,
     detuning: { ...map.detuning },
@@ -131,7 +135,7 @@ export function summariseMap(map: RobustnessMap, pulse: Pulse, choice: TargetCho
     amplitudeHalfWidth: amplitudeInterval.halfWidth,
     detuningInterval,
     amplitudeInterval,
-    ...pulseFigures(pulse),
+    ...pulseFigures(drive),
   };
 }
 
@@ -144,20 +148,20 @@ export function summarise(
   options: SummaryOptions = {},
 ): { summary: RobustnessSummary; map: RobustnessMap } {
   const choice = chooseTarget(target, pulse);
-  const map = robustnessMap(choice.targetUsed, pulse, detuning, amplitudeError);
+  const map = robustnessMap(choice.targetUsed, pulse, detuning, amplitudeError, options.line);
   return { summary: summariseMap(map, pulse, choice, options), map };
 }
 
-/** Infidelity along one error axis on a uniform grid, the other error held at zero. */
-export function cut(target: Target, pulse: Pulse, axis: ErrorAxis, grid: GridAxis): Cut {
+/** Infidelity along one error axis on a uniform grid, the other error held at zero, through `line` when given. */
+export function cut(target: Target, pulse: Pulse, axis: ErrorAxis, grid: GridAxis, line?: Line): Cut {
   if (axis !== 'detuning' && axis !== 'amplitudeError') {
     throw new ArgumentError(`axis: ${describeValue(axis)} is not allowed; "detuning" or "amplitudeError"`);
   }
   const choice = chooseTarget(target, pulse);
   const zero: GridAxis = { min: 0, max: 0, points: 1 };
   const map = axis === 'detuning'
-    ? robustnessMap(choice.targetUsed, pulse, grid, zero)
-    : robustnessMap(choice.targetUsed, pulse, zero, grid);
+    ? robustnessMap(choice.targetUsed, pulse, grid, zero, line)
+    : robustnessMap(choice.targetUsed, pulse, zero, grid, line);
   return { ...choice, axis, values: axisValues(grid), infidelity: map.infidelity };
 }
 

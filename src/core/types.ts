@@ -62,6 +62,12 @@ export interface Line {
   delay: number;
   /** Where the amplitude bound holds: the programmed samples, or also the drive the qubit sees. */
   boundOn: 'programmed' | 'both';
+  /**
+   * The fine step (s): the spec's dt / oversample. A pulse of another dt (an exported
+   * waveform) is simulated on a whole number of steps per sample near it; absent, on
+   * its own dt / oversample.
+   */
+  fineStep?: number;
 }
 
 /** A validated, normalised design problem (what `parseSpec` returns). */

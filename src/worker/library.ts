@@ -1,6 +1,7 @@
 // The library as the worker serves it: the same functions the command line calls.
 import { blochTrajectory, design, evaluate, evaluateMembers, robustnessMap } from '../core/api.ts';
 import { buildComposite, compositeNames, type CompositeName } from '../core/composites.ts';
+import { qubitDrive } from '../core/line.ts';
 import { cut, summarise } from '../core/robustness.ts';
 import { parseSpec } from '../core/spec.ts';
 import { readPulse, writePulse } from '../io/pulse.ts';
@@ -15,6 +16,7 @@ export const library: CoreLibrary = {
   evaluateMembers,
   robustnessMap,
   blochTrajectory,
+  qubitDrive: (pulse, line) => qubitDrive(pulse, line),
   summarise,
   cut,
   buildComposite: (name, options) => buildComposite(name as CompositeName, options),

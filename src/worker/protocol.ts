@@ -1,7 +1,8 @@
 // What crosses the worker boundary: plain data (typed arrays moved, not copied) and one
 // coarse call per job. The worker implements CoreService (service.ts); the page reaches it
 // only through the client (client.ts).
-import type { DesignResult, Evaluation, GridAxis, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
+import type { QubitDrive } from '../core/line.ts';
+import type { DesignResult, Evaluation, GridAxis, Line, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
 import type { EncodedWaveform, ExportReport, SampleUnits, WaveformFormat } from '../io/export/index.ts';
 
 /** An error as it survives the boundary: its class name, message and, for a SpecError, the field. */
@@ -104,6 +105,8 @@ export interface CompareRequest {
   detuning: GridAxis;
   amplitudeError: GridAxis;
   threshold: number;
+  /** Also give every row's figures without the spec's line (what ignoring it would show). */
+  withoutLine?: boolean;
 }
 
 /** One row of the comparison: a pulse, the target it is judged against, its figures and cuts. */
@@ -117,6 +120,8 @@ export interface CompareRow {
   note?: string;
   figures?: PulseFigures;
   cuts?: Cuts;
+  /** The mean and worst over the spec's ensemble without the line (asked for by withoutLine, and only with a line). */
+  noLine?: { meanInfidelity: number; worstInfidelity: number };
   error?: ErrorInfo;
 }
 
@@ -124,6 +129,8 @@ export interface CompareRow {
 export interface ExportJudge {
   target: Target;
   members: Member[];
+  /** The line the qubit sees the waveform through (the spec's). */
+  line?: Line;
 }
 
 /** The instrument export of a pulse as the export panel shows it. */
@@ -154,13 +161,15 @@ export interface CoreService {
   /** Figures of a pulse on the spec's ensemble and target. */
   evaluate(spec: unknown, pulse: Pulse): Promise<Evaluation>;
   /** Infidelity of a pulse on a grid. */
-  map(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): Promise<MapResult>;
+  map(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): Promise<MapResult>;
   /** Cuts through zero error with the grid's ranges and point counts. */
-  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): Promise<Cuts>;
+  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): Promise<Cuts>;
   /** Summary figures and cuts of the given pulses and composite sequences under the spec's limits. */
   compare(request: CompareRequest): Promise<CompareRow[]>;
   /** Bloch vector after each sample for one member, 3 (N + 1) values. */
-  trajectory(pulse: Pulse, member: Member, from: Vec3): Promise<Float64Array>;
+  trajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line): Promise<Float64Array>;
+  /** The drive the qubit sees when the pulse is played through the line (the one library function, qubitDrive). */
+  drive(pulse: Pulse, line?: Line): Promise<QubitDrive>;
   /** Reads a pulse file's text (PulseFormatError when malformed). */
   readPulse(text: string): Pulse;
   /** Writes a pulse file's text. */

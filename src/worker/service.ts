@@ -3,7 +3,8 @@
 // MessageChannel in one realm, exactly as the worker does across threads.
 import type { DesignOptions, RobustnessMap } from '../core/api.ts';
 import type { Cut, ErrorAxis, RobustnessSummary, SummaryOptions } from '../core/robustness.ts';
-import type { DesignResult, Evaluation, GridAxis, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
+import type { QubitDrive } from '../core/line.ts';
+import type { DesignResult, Evaluation, GridAxis, Line, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
 import type { EncodedWaveform, EncodeOptions, ExportedWaveform, ExportReport, PulseEvaluator, WaveformFormat } from '../io/export/index.ts';
 import type {
   CompareRequest,
@@ -29,13 +30,15 @@ export interface CoreLibrary {
   parseSpec(json: unknown): Problem;
   design(spec: unknown, options?: DesignOptions): Promise<DesignResult>;
   evaluate(spec: unknown, pulse: Pulse): Evaluation;
-  evaluateMembers(target: Target, pulse: Pulse, members: Member[]): Evaluation;
-  robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): RobustnessMap;
-  blochTrajectory(pulse: Pulse, member: Member, from: Vec3): Float64Array;
+  evaluateMembers(target: Target, pulse: Pulse, members: Member[], line?: Line): Evaluation;
+  robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): RobustnessMap;
+  blochTrajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line): Float64Array;
+  /** The drive the qubit sees through a line (the pulse itself without one). */
+  qubitDrive(pulse: Pulse, line: Line | undefined): QubitDrive;
   /** Summary figures of a pulse over a region (against its own ideal when it names one). */
   summarise(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, options?: SummaryOptions): { summary: RobustnessSummary; map: RobustnessMap };
   /** Infidelity along one error axis, the other held at zero. */
-  cut(target: Target, pulse: Pulse, axis: ErrorAxis, grid: GridAxis): Cut;
+  cut(target: Target, pulse: Pulse, axis: ErrorAxis, grid: GridAxis, line?: Line): Cut;
   buildComposite(name: string, options: { angleDeg: number; axisDeg: number; rabiMax: number; dt: number }): Pulse;
   composites: readonly CompositeChoice[];
   readPulse(text: string): Pulse;
@@ -43,7 +46,7 @@ export interface CoreLibrary {
   /** The instrument waveform of a pulse (ExportError when it is refused). */
   exportWaveform(pulse: Pulse, settings: unknown): ExportedWaveform;
   /** The export report; gate figures by `against` (null: the sample figures only). */
-  exportReport(against: PulseEvaluator | null, design: Pulse, waveform: ExportedWaveform): Promise<ExportReport>;
+  exportReport(against: PulseEvaluator | null, design: Pulse, waveform: ExportedWaveform, withoutLine?: PulseEvaluator): Promise<ExportReport>;
   /** A waveform's file bytes, identical to what the command line writes. */
   encodeWaveform(waveform: ExportedWaveform, format: WaveformFormat, options?: EncodeOptions): Promise<EncodedWaveform>;
   /** The waveform as played: I/Q in Hz at the instrument sample period, SSB demodulated, padding kept. */
@@ -111,9 +114,9 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
   // overlap: each job and each design start has its own problem block in the core.
   const withCore = <T>(job: () => T | Promise<T>): Promise<T> => ensureLoaded().then(job);
 
-  const cuts = (target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): Cuts => {
-    const alongDetuning = library.cut(target, pulse, 'detuning', detuning);
-    const alongAmplitude = library.cut(target, pulse, 'amplitudeError', amplitudeError);
+  const cuts = (target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): Cuts => {
+    const alongDetuning = library.cut(target, pulse, 'detuning', detuning, line);
+    const alongAmplitude = library.cut(target, pulse, 'amplitudeError', amplitudeError, line);
     return {
       detuning: alongDetuning.values,
       detuningInfidelity: alongDetuning.infidelity,
@@ -123,11 +126,13 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
   };
 
   const compareRow = (name: string, origin: string, pulse: Pulse, problem: Problem, request: CompareRequest): CompareRow => {
-    const { summary } = library.summarise(problem.target, pulse, request.detuning, request.amplitudeError, { threshold: request.threshold });
+    const line = problem.line;
+    const { summary } = library.summarise(problem.target, pulse, request.detuning, request.amplitudeError, { threshold: request.threshold, line });
     const target = summary.targetUsed;
     // Mean and worst are over the spec's own ensemble (what the design minimised); the
-    // area and half-widths over the region of the request.
-    const evaluation = library.evaluateMembers(target, pulse, problem.members);
+    // area and half-widths over the region of the request. Every figure through the line.
+    const evaluation = library.evaluateMembers(target, pulse, problem.members, line);
+    const naive = request.withoutLine && line ? library.evaluateMembers(target, pulse, problem.members) : null;
     const figures: PulseFigures = {
       meanInfidelity: evaluation.meanInfidelity,
       worstInfidelity: evaluation.worstInfidelity,
@@ -147,7 +152,8 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
       target,
       ...(summary.targetNote ? { note: summary.targetNote } : {}),
       figures,
-      cuts: cuts(target, pulse, request.detuning, request.amplitudeError),
+      cuts: cuts(target, pulse, request.detuning, request.amplitudeError, line),
+      ...(naive ? { noLine: { meanInfidelity: naive.meanInfidelity, worstInfidelity: naive.worstInfidelity } } : {}),
     };
   };
 
@@ -223,23 +229,27 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
       return withCore(() => library.evaluate(spec, pulse));
     },
 
-    map(target, pulse, detuning, amplitudeError) {
+    map(target, pulse, detuning, amplitudeError, line) {
       return withCore((): MapResult => {
-        const map = library.robustnessMap(target, pulse, detuning, amplitudeError);
+        const map = library.robustnessMap(target, pulse, detuning, amplitudeError, line);
         return moved({ detuning: map.detuning, amplitudeError: map.amplitudeError, infidelity: map.infidelity });
       });
     },
 
-    cuts(target, pulse, detuning, amplitudeError) {
-      return withCore(() => moved(cuts(target, pulse, detuning, amplitudeError)));
+    cuts(target, pulse, detuning, amplitudeError, line) {
+      return withCore(() => moved(cuts(target, pulse, detuning, amplitudeError, line)));
     },
 
     compare(request) {
       return withCore(() => compareAll(request));
     },
 
-    trajectory(pulse, member, from) {
-      return withCore(() => moved(library.blochTrajectory(pulse, member, from)));
+    trajectory(pulse, member, from, line) {
+      return withCore(() => moved(library.blochTrajectory(pulse, member, from, line)));
+    },
+
+    drive(pulse, line) {
+      return withCore(() => moved(library.qubitDrive(pulse, line)));
     },
 
     readPulse(text) {
@@ -254,8 +264,9 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
       // The evaluation runs on the core, so the whole job waits its turn like any other.
       return withCore(async (): Promise<ExportPreview> => {
         const waveform = library.exportWaveform(pulse, settings);
-        const evaluate = judge ? (p: Pulse) => library.evaluateMembers(judge.target, p, judge.members) : null;
-        const report = await library.exportReport(evaluate, pulse, waveform);
+        const evaluate = judge ? (p: Pulse) => library.evaluateMembers(judge.target, p, judge.members, judge.line) : null;
+        const naive = judge?.line ? (p: Pulse) => library.evaluateMembers(judge.target, p, judge.members) : undefined;
+        const report = await library.exportReport(evaluate, pulse, waveform, naive);
         return moved({ report, played: library.playedPulse(waveform) });
       });
     },
