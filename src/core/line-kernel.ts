@@ -18,11 +18,11 @@ export interface DiscreteKernel {
 }
 
 /** The discrete kernel of a response on a fine grid of `fine` seconds (null: the held samples alone). */
-export function discreteKernel(response: LineResponse | null, fine: number): DiscreteKernel {
+export function discreteKernel(response: LineResponse | null, fine: number, tail = TAIL_FRACTION): DiscreteKernel {
   if (response === null) return { h: Float64Array.of(1), lead: 0 };
   let k: DiscreteKernel;
-  if (response.kind === 'gaussian') k = gaussianKernel(response.bandwidth, fine);
-  else if (response.kind === 'lowpass') k = lowpassKernel(response.bandwidths, fine);
+  if (response.kind === 'gaussian') k = gaussianKernel(response.bandwidth, fine, tail);
+  else if (response.kind === 'lowpass') k = lowpassKernel(response.bandwidths, fine, tail);
   else k = { h: Float64Array.from(response.values), lead: 0 };
   let sum = 0;
   for (const v of k.h) sum += v;
@@ -35,13 +35,21 @@ export function gaussianSigma(bandwidth: number): number {
   return Math.sqrt(Math.LN2) / (2 * Math.PI * bandwidth);
 }
 
-/** Half-width of the kept Gaussian in sigmas: erfc(x / sqrt 2) / 2 = TAIL_FRACTION. */
-const GAUSSIAN_HALF_WIDTH = 7.034483825826;
+/** Half-width of the kept Gaussian in sigmas, x with erfc(x / sqrt 2) / 2 = tail (7.0345 for 1e-12), by bisection. */
+export function gaussianHalfWidth(tail: number): number {
+  let lo = 0, hi = 40;
+  for (let k = 0; k < 100; k++) {
+    const mid = (lo + hi) / 2;
+    if (erfc(mid / Math.SQRT2) / 2 > tail) lo = mid;
+    else hi = mid;
+  }
+  return hi;
+}
 
-function gaussianKernel(bandwidth: number, fine: number): DiscreteKernel {
+function gaussianKernel(bandwidth: number, fine: number, tail: number): DiscreteKernel {
   const sigma = gaussianSigma(bandwidth);
   // Bins beyond K start farther out than the cut: K delta - delta/2 >= half width.
-  const half = Math.max(0, Math.ceil((GAUSSIAN_HALF_WIDTH * sigma) / fine - 0.5));
+  const half = Math.max(0, Math.ceil((gaussianHalfWidth(tail) * sigma) / fine - 0.5));
   if (2 * half + 1 > MAX_KERNEL_TAPS) throw tooLong('gaussian', bandwidth, fine);
   const h = new Float64Array(2 * half + 1);
   const scale = fine / (sigma * Math.SQRT2);
@@ -67,7 +75,7 @@ function tooLong(kind: string, bandwidth: number, fine: number): ArgumentError {
  * exponential, exact for any mix of equal and different bandwidths; the taps are
  * differences of y, which keeps the tail's digits.
  */
-function lowpassKernel(bandwidths: readonly number[], fine: number): DiscreteKernel {
+function lowpassKernel(bandwidths: readonly number[], fine: number, tail: number): DiscreteKernel {
   const rates = bandwidths.map((f) => 2 * Math.PI * f);
   const d = rates.length;
   const a = (scale: number): number[][] => rates.map((l, i) => rates.map((_, k) => (k === i ? -l * scale : k === i - 1 ? l * scale : 0)));
@@ -75,7 +83,7 @@ function lowpassKernel(bandwidths: readonly number[], fine: number): DiscreteKer
   const step = expm(a(fine));
   let y = apply(half, new Array<number>(d).fill(1));
   const taps = [1 - y[d - 1]];
-  while (y[d - 1] > TAIL_FRACTION) {
+  while (y[d - 1] > tail) {
     if (taps.length >= MAX_KERNEL_TAPS) throw tooLong('lowpass', Math.min(...bandwidths), fine);
     const next = apply(step, y);
     taps.push(y[d - 1] - next[d - 1]);
@@ -110,10 +118,10 @@ function expm(a: number[][]): number[][] {
   return result;
 }
 
-/** The complementary error function, to about 1e-16 relative (series below 3, continued fraction above). */
+/** The complementary error function, to about 1e-15 relative (1 - erf below 2, a continued fraction above). */
 export function erfc(x: number): number {
   if (x < 0) return 2 - erfc(-x);
-  if (x < 3) return 1 - erf(x);
+  if (x < 2) return 1 - erf(x);
   // Lentz's method on erfc(x) = exp(-x^2)/sqrt(pi) * 1/(x + (1/2)/(x + 1/(x + (3/2)/(x + ...)))).
   const tiny = 1e-300;
   let f = x, c = x, dd = 0;
