@@ -14,9 +14,11 @@ import { getCore } from './wasm.ts';
 export const DRIVE_BOUND_WEIGHT = 1e4;
 /**
  * The FFT is used when the direct sum's products per channel, n Lc, exceed this many
- * times N log2 N (N the FFT size): measured by `npm run bench` (the line's crossover).
+ * times N log2 N (N the FFT size). Measured by `npm run bench` (the line's drive map):
+ * the two take equal time near 3.4 on this project's machine (direct wins at 2.7, the
+ * FFT at 4.2); 3 leans to the FFT, whose cost grows more slowly.
  */
-export const FFT_CROSSOVER = 1.5;
+export const FFT_CROSSOVER = 3;
 
 
 /** Whether the line's map runs by FFT for n samples (the measured crossover, FFT_CROSSOVER). */
