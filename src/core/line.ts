@@ -20,7 +20,6 @@ export const DRIVE_BOUND_WEIGHT = 1e4;
  */
 export const FFT_CROSSOVER = 3;
 
-
 /** Whether the line's map runs by FFT for n samples (the measured crossover, FFT_CROSSOVER). */
 export function lineUsesFft(n: number, heldLength: number, fftSize: number): boolean {
   return n * heldLength > FFT_CROSSOVER * fftSize * Math.log2(fftSize);
