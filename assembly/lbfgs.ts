@@ -12,8 +12,11 @@ import { objective } from './control';
 import { Problem, BOUND_BOX } from './problem';
 import { lbfgsbBytes, lbfgsbPlace, lbfgsbStep, lbfgsbPairAdded, projectedGradientNorm } from './lbfgsb';
 
+/** Status of optStep: an iteration was taken. */
 export const STEP_OK: i32 = 0;
+/** Status of optStep: the (projected) gradient is below the tolerance. */
 export const STEP_GRADIENT_TOLERANCE: i32 = 1;
+/** Status of optStep: no step lowered the objective. */
 export const STEP_LINE_SEARCH_FAILED: i32 = 2;
 
 const C1: f64 = 1e-4;
@@ -47,6 +50,7 @@ const MAX_ZOOM: i32 = 30;
 }
 
 @inline function f64s(count: i32): usize { return ((<usize>count << 3) + 15) & ~(<usize>15); }
+/** Address of f64 number k of an array. */
 @inline export function at(p: usize, k: i32): usize { return p + (<usize>k << 3); }
 
 /** Bytes of an optimiser for nVar variables and `mem` pairs (header included). */
@@ -77,12 +81,14 @@ export function lbfgsPlace(o: Lbfgs, nVar: i32, mem: i32, gradientTolerance: f64
 /** The optimiser of a problem block. */
 @inline export function optimiserOf(ptr: usize): Lbfgs { return changetype<Lbfgs>(changetype<Problem>(ptr).opt); }
 
+/** a . b over n values. */
 export function dot(a: usize, b: usize, n: i32): f64 {
   let s: f64 = 0.0;
   for (let k = 0; k < n; k++) s += load<f64>(at(a, k)) * load<f64>(at(b, k));
   return s;
 }
 
+/** Largest |a_k| over n values. */
 export function normInf(a: usize, n: i32): f64 {
   let s: f64 = 0.0;
   for (let k = 0; k < n; k++) s = Math.max(s, Math.abs(load<f64>(at(a, k))));

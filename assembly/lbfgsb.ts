@@ -3,12 +3,13 @@
 // where the projected gradient vanishes.
 // see: Byrd, Lu, Nocedal, Zhu, "A limited memory algorithm for bound constrained
 // optimization", SIAM J. Sci. Comput. 16, 1190 (1995): the compact form B = theta I -
-// W M W^T with W = [Y, theta S] (section 3, from Byrd, Nocedal, Schnabel, Math. Program.
-// 63, 129 (1994)), Algorithm CP (generalised Cauchy point, section 4), the direct primal
-// subspace minimisation (section 5.1) with the step cut to stay in the box, and a line
-// search along x + alpha (xbar - x) kept feasible (section 6).
+// W M W^T with W = [Y, theta S] and M = [[-D, L'], [L, theta S'S]]^-1 (after Byrd,
+// Nocedal, Schnabel, Math. Program. 63, 129 (1994)), the generalised Cauchy point by
+// their Algorithm CP, the direct primal method of subspace minimisation with the step
+// cut to stay in the box, and a line search along x + alpha (xbar - x) kept feasible.
 // The correction pairs, their memory and the line search are lbfgs.ts's; this file keeps
-// their Gram matrices up to date, so that W_Z^T W_Z costs O(|active| m^2), not O(n m^2).
+// their Gram matrices up to date, so that W_Z'W_Z costs O(min(free, held) m^2) per
+// iteration, not O(n m^2).
 
 import { Lbfgs, at, dot, pairAt, forgetPairs, lineSearch, acceptStep, STEP_OK, STEP_GRADIENT_TOLERANCE, STEP_LINE_SEARCH_FAILED } from './lbfgs';
 

@@ -40,10 +40,12 @@
 //         | x g xt gt d [nVar]            |
 //         | S[mem][nVar]  Y[mem][nVar]    |  correction pairs (a ring)
 //         | rho[mem] alpha[mem]           |
-//         | box method only (lbfgsb.ts):  |  Gram matrices SS, SY, YY [mem][mem],
-//         |                               |  middle matrix M and scratch [2mem][2mem],
-//         |                               |  vectors [2mem], breakpoints, heap (i32),
-//         |                               |  Cauchy point, free flags [nVar]
+//         | box method only (lbfgsb.ts):  |  Gram matrices SS, SY, YY [mem][mem];
+//         |                               |  K = M^-1, its LU factors and the reduced
+//         |                               |  system [2mem][2mem]; 8 vectors [2mem]
+//         |                               |  (pivots, W's column pointers among them);
+//         |                               |  breakpoints, Cauchy point [nVar]; heap
+//         |                               |  of breakpoints (i32) [nVar]
 //         +-------------------------------+
 
 let arenaStart: usize = 0;
@@ -74,10 +76,15 @@ export function arenaAlloc(bytes: usize): usize {
   return ptr;
 }
 
-/** Free every block allocated after `used` bytes were in use (jobs nest, last in first out). */
+/**
+ * Free every block allocated after `used` bytes were in use (jobs nest, last in first
+ * out); never below a live held block, which outlives the job that made it.
+ */
 export function arenaRelease(used: usize): void {
   if (arenaStart == 0) arenaReset();
-  arenaTop = arenaStart + used;
+  let top = arenaStart + used;
+  if (lastHeld != 0 && load<usize>(lastHeld, 4) > top) top = load<usize>(lastHeld, 4);
+  arenaTop = top;
 }
 
 /** Bytes in use. */

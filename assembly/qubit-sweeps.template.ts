@@ -11,7 +11,9 @@ import {
   qmulUr, qmulUi, qmulVr, qmulVi,
 } from '../su2';
 
+/** Figure of a gate target (phase-insensitive). */
 export const MODE_GATE: i32 = 0;
+/** Figure of a state transfer. */
 export const MODE_STATE: i32 = 1;
 
 @inline function ld(ptr: usize, j: i32): v128 { return v128.load(ptr + (<usize>j << 3)); }

@@ -16,7 +16,7 @@
 //   JOIN(op, x$)      on a line emitted once: op(xA, op(xB, ...)), or x for one copy
 // Lines outside blocks are copied as they are.
 import { mkdirSync, readFileSync, readdirSync, writeFileSync } from 'node:fs';
-import { fileURLToPath } from 'node:url';
+import { fileURLToPath, pathToFileURL } from 'node:url';
 
 const dir = fileURLToPath(new URL('../assembly/', import.meta.url));
 const suffixes = (copies) => (copies === 1 ? [''] : Array.from({ length: copies }, (_, k) => String.fromCharCode(65 + k)));
@@ -63,8 +63,13 @@ export function expandTemplate(text, source) {
   return out.join('\n');
 }
 
-mkdirSync(new URL('generated/', new URL('../assembly/', import.meta.url)), { recursive: true });
-for (const file of readdirSync(dir).filter((f) => f.endsWith('.template.ts'))) {
-  const text = readFileSync(dir + file, 'utf8');
-  writeFileSync(dir + 'generated/' + file.replace('.template.ts', '.ts'), expandTemplate(text, file));
+/** Expand every template of assembly/ into assembly/generated/. */
+export function expandAll() {
+  mkdirSync(dir + 'generated/', { recursive: true });
+  for (const file of readdirSync(dir).filter((f) => f.endsWith('.template.ts'))) {
+    const text = readFileSync(dir + file, 'utf8');
+    writeFileSync(dir + 'generated/' + file.replace('.template.ts', '.ts'), expandTemplate(text, file));
+  }
 }
+
+if (process.argv[1] && import.meta.url === pathToFileURL(process.argv[1]).href) expandAll();

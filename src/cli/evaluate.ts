@@ -1,7 +1,8 @@
 // `gatesmith evaluate SPEC PULSE [--json]`: the figures of a pulse on a spec's target and
 // ensemble, per member and in summary.
+import type { JudgedEvaluation } from '../core/compare.ts';
 import { describeLine, lineJson } from '../core/line-spec.ts';
-import type { Evaluation, Line, Problem, Pulse } from '../core/types.ts';
+import type { Line, Problem, Pulse } from '../core/types.ts';
 import { optionsHelp, usageLine } from './args.ts';
 import type { ArgSpec } from './args.ts';
 import { defineCommand } from './command.ts';
@@ -13,7 +14,7 @@ const ARGS: ArgSpec = {
   command: 'evaluate',
   positionals: ['SPEC', 'PULSE'],
   flags: [
-    { name: 'json', help: 'print {members, meanInfidelity, worstInfidelity} as JSON instead of a table' },
+    { name: 'json', help: 'print {members, meanInfidelity, worstInfidelity, target, note} as JSON instead of a table' },
     { name: 'no-line', help: "ignore the spec's line: the figures of the held samples as if the qubit saw them (the naive figure)" },
   ],
 };
@@ -28,7 +29,9 @@ are used: with a line, the figures are of the drive the qubit sees through it
 or any waveform that \`gatesmith export\` wrote (csv, npy, raw with its FILE.json
 description, wav), evaluated as the instrument plays it, padding included.
 Prints each member's detuning, amplitude error, weight and infidelity, then the weighted
-mean and the worst member.
+mean and the worst member. The pulse is judged against the spec's target; a pulse whose
+metadata names its own ideal gets a note on how that ideal meets the target (as in map and
+compare; see docs/analysis.md "Which target").
 
 Options:
 ${optionsHelp(ARGS)}
@@ -46,9 +49,9 @@ export const evaluateCommand: Command = defineCommand({
     for (const warning of mismatches(pulse, spec.problem)) io.stderr(`warning: ${warning}\n`);
 
     // Loaded here so that --help and bad input never wait for the wasm core.
-    const api = await import('../core/api.ts');
-    const line = flags['no-line'] ? undefined : spec.problem.line;
-    const evaluation = api.evaluateMembers(spec.problem.target, pulse, spec.problem.members, line);
+    const { evaluateJudged } = await import('../core/compare.ts');
+    const noLine = flags['no-line'] === true;
+    const evaluation = evaluateJudged(spec.problem, pulse, noLine);
     if (flags.json) {
       const json = {
         members: evaluation.members.map((m) => ({
@@ -59,12 +62,14 @@ export const evaluateCommand: Command = defineCommand({
         })),
         meanInfidelity: evaluation.meanInfidelity,
         worstInfidelity: evaluation.worstInfidelity,
+        target: evaluation.target,
+        note: evaluation.note,
         // With a line in the spec: the line the figures went through (null: --no-line).
-        ...(spec.problem.line ? { line: line ? lineJson(line) : null } : {}),
+        ...(spec.problem.line ? { line: noLine ? null : lineJson(spec.problem.line) } : {}),
       };
       io.stdout(JSON.stringify(json, null, 2) + '\n');
     } else {
-      io.stdout(evaluationTable(evaluation, spec.problem, pulse, line));
+      io.stdout(evaluationTable(evaluation, spec.problem, pulse, noLine ? undefined : spec.problem.line));
     }
     return 0;
   },
@@ -86,7 +91,7 @@ function mismatches(pulse: Pulse, problem: Problem): string[] {
   return warnings;
 }
 
-function evaluationTable(ev: Evaluation, problem: Problem, pulse: Pulse, through: Line | undefined): string {
+function evaluationTable(ev: JudgedEvaluation, problem: Problem, pulse: Pulse, through: Line | undefined): string {
   const header = ['detuning', 'amplitude error', 'weight', 'infidelity'];
   const rows = ev.members.map((m) => [
     formatFrequency(m.detuning),
@@ -98,8 +103,9 @@ function evaluationTable(ev: Evaluation, problem: Problem, pulse: Pulse, through
   const line = (cells: string[]) => cells.map((cell, c) => cell.padStart(widths[c])).join('  ');
   const worst = ev.members[ev.worstIndex];
   return [
-    `target: ${formatTarget(problem.target)}; pulse: ${pulse.i.length} samples of ${formatTime(pulse.dt)}`,
+    `target: ${formatTarget(ev.target)}; pulse: ${pulse.i.length} samples of ${formatTime(pulse.dt)}`,
     through ? `through the line: ${describeLine(through)}` : problem.line ? "without the spec's line (--no-line): the held samples as the qubit's drive" : 'no line: the qubit sees the held samples',
+    ...(ev.note ? [`note: ${ev.note}`] : []),
     line(header),
     ...rows.map(line),
     '',

@@ -9,6 +9,8 @@ import { lineJson } from './line-spec.ts';
 import { StartRun } from './run.ts';
 import { checkProblemAngles, checkPulseAngles } from './limits.ts';
 import { checkProblem, checkTarget } from './problem-check.ts';
+import { bestStart } from './best-start.ts';
+import { axisValues, checkRegion } from './grid.ts';
 import { parseSpec } from './spec.ts';
 import type {
   DesignResult, Evaluation, GridAxis, Line, Member, Problem, Progress, Pulse, StartResult, StopReason, Target,
@@ -87,25 +89,6 @@ function figures(target: Target, pulse: Pulse, enc: EncodedMembers): Float64Arra
   });
 }
 
-/** Values of a uniform grid axis (a single point sits at the midpoint). */
-export function axisValues(axis: GridAxis): Float64Array {
-  const v = new Float64Array(axis.points);
-  for (let k = 0; k < axis.points; k++) {
-    v[k] = axis.points === 1 ? (axis.min + axis.max) / 2 : axis.min + ((axis.max - axis.min) * k) / (axis.points - 1);
-  }
-  return v;
-}
-
-function checkAxis(axis: GridAxis, name: string, lowest = -Infinity): void {
-  if (!Number.isInteger(axis.points) || axis.points < 1 || axis.points > 2001) {
-    throw new ArgumentError(`${name}.points: ${describeValue(axis.points)} is not allowed; it must be a whole number from 1 to 2001`);
-  }
-  if (!Number.isFinite(axis.min) || !Number.isFinite(axis.max) || axis.min > axis.max) {
-    throw new ArgumentError(`${name}: ${describeValue([axis.min, axis.max])} is not allowed; min and max must be finite with min <= max`);
-  }
-  if (axis.min <= lowest) throw new ArgumentError(`${name}.min: ${axis.min} is not allowed; it must be above ${lowest}`);
-}
-
 /** Members per core call of a map: bounds the arena and keeps each call short. */
 const MAP_CHUNK = 8192;
 
@@ -113,9 +96,8 @@ const MAP_CHUNK = 8192;
 export function robustnessMap(target: Target, programmed: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): RobustnessMap {
   checkTarget(target);
   checkPulse(programmed);
+  checkRegion({ detuning, amplitudeError });
   const pulse = qubitDrive(programmed, line);
-  checkAxis(detuning, 'detuning');
-  checkAxis(amplitudeError, 'amplitudeError', -1);
   const far = Math.max(Math.abs(detuning.min), Math.abs(detuning.max));
   checkPulseAngles(pulse, [{ detuning: far, amplitudeError: amplitudeError.max, weight: 1 }, { detuning: far, amplitudeError: amplitudeError.min, weight: 1 }]);
   const dv = axisValues(detuning), av = axisValues(amplitudeError);
@@ -200,10 +182,9 @@ async function designNow(problem: Problem, options: DesignOptions): Promise<Desi
   return bestOfStarts(problem, starts, t0);
 }
 
-/** The design result of finished starts: the lowest objective wins and is evaluated. */
-export function bestOfStarts(problem: Problem, starts: StartResult[], t0: number): DesignResult {
-  let best = starts[0];
-  for (const r of starts) if (r.objective < best.objective) best = r;
+/** The design result of finished starts: the best (best-start.ts) is evaluated, through the problem's line. */
+function bestOfStarts(problem: Problem, starts: StartResult[], t0: number): DesignResult {
+  const best = bestStart(starts);
   const evaluation = evaluateMembers(problem.target, best.pulse, problem.members, problem.line);
   if (problem.line) best.pulse.metadata.line = lineJson(problem.line);
   best.pulse.metadata.figures = {

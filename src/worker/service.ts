@@ -2,24 +2,21 @@
 // the command line runs). Built over an injected library so that tests can expose it on a
 // MessageChannel in one realm, exactly as the worker does across threads.
 import type { DesignOptions, RobustnessMap } from '../core/api.ts';
-import type { Cut, ErrorAxis, RobustnessSummary, SummaryOptions } from '../core/robustness.ts';
+import type { CompareOptions, Comparison, NamedPulse } from '../core/compare.ts';
+import type { Cuts } from '../core/robustness.ts';
 import type { QubitDrive } from '../core/line.ts';
 import type { DesignResult, Evaluation, GridAxis, Line, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
 import type { EncodedWaveform, EncodeOptions, ExportedWaveform, ExportReport, PulseEvaluator, WaveformFormat } from '../io/export/index.ts';
 import type {
-  CompareRequest,
-  CompareRow,
   CoreInfo,
   CoreService,
   ExportPreview,
   CompositeChoice,
-  Cuts,
   ErrorInfo,
   LivePulse,
   MapResult,
   ProgressPoint,
   ProgressSink,
-  PulseFigures,
   SpecCheck,
 } from './protocol.ts';
 import { releaseProxy } from 'comlink';
@@ -29,17 +26,17 @@ import { moved } from './transfer.ts';
 export interface CoreLibrary {
   parseSpec(json: unknown): Problem;
   design(spec: unknown, options?: DesignOptions): Promise<DesignResult>;
+  /** Figures on the spec's ensemble against the target the pulse is judged against (core/target-choice.ts). */
   evaluate(spec: unknown, pulse: Pulse): Evaluation;
   evaluateMembers(target: Target, pulse: Pulse, members: Member[], line?: Line): Evaluation;
   robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): RobustnessMap;
   blochTrajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line): Float64Array;
   /** The drive the qubit sees through a line (the pulse itself without one). */
   qubitDrive(pulse: Pulse, line: Line | undefined): QubitDrive;
-  /** Summary figures of a pulse over a region (against its own ideal when it names one). */
-  summarise(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, options?: SummaryOptions): { summary: RobustnessSummary; map: RobustnessMap };
-  /** Infidelity along one error axis, the other held at zero. */
-  cut(target: Target, pulse: Pulse, axis: ErrorAxis, grid: GridAxis, line?: Line): Cut;
-  buildComposite(name: string, options: { angleDeg: number; axisDeg: number; rabiMax: number; dt: number }): Pulse;
+  /** Pulses and composite sequences judged on one spec, best first (what `gatesmith compare` prints). */
+  compare(spec: unknown, pulses: readonly NamedPulse[], options?: CompareOptions): Comparison;
+  /** The cuts through zero error along each axis. */
+  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): Cuts;
   composites: readonly CompositeChoice[];
   readPulse(text: string): Pulse;
   writePulse(pulse: Pulse): string;
@@ -93,12 +90,6 @@ class ProgressBatcher {
   }
 }
 
-/** Axis phase (degrees) and angle of a gate target whose axis lies in the xy-plane, else null. */
-export function planarGate(target: Target): { angleDeg: number; axisDeg: number } | null {
-  if (target.kind !== 'gate' || Math.abs(target.axis[2]) > 1e-9) return null;
-  return { angleDeg: (target.angleRad * 180) / Math.PI, axisDeg: (Math.atan2(target.axis[1], target.axis[0]) * 180) / Math.PI };
-}
-
 /** How a service reaches its core. */
 export interface ServiceOptions {
   /** Prepares the core (fetching the wasm) once, before the first job. */
@@ -113,75 +104,6 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
   // Jobs need the loaded core; stop and checkSpec do not and stay immediate. Jobs may
   // overlap: each job and each design start has its own problem block in the core.
   const withCore = <T>(job: () => T | Promise<T>): Promise<T> => ensureLoaded().then(job);
-
-  const cuts = (target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): Cuts => {
-    const alongDetuning = library.cut(target, pulse, 'detuning', detuning, line);
-    const alongAmplitude = library.cut(target, pulse, 'amplitudeError', amplitudeError, line);
-    return {
-      detuning: alongDetuning.values,
-      detuningInfidelity: alongDetuning.infidelity,
-      amplitudeError: alongAmplitude.values,
-      amplitudeErrorInfidelity: alongAmplitude.infidelity,
-    };
-  };
-
-  const compareRow = (name: string, origin: string, pulse: Pulse, problem: Problem, request: CompareRequest): CompareRow => {
-    const line = problem.line;
-    const { summary } = library.summarise(problem.target, pulse, request.detuning, request.amplitudeError, { threshold: request.threshold, line });
-    const target = summary.targetUsed;
-    // Mean and worst are over the spec's own ensemble (what the design minimised); the
-    // area and half-widths over the region of the request. Every figure through the line.
-    const evaluation = library.evaluateMembers(target, pulse, problem.members, line);
-    const naive = request.withoutLine && line ? library.evaluateMembers(target, pulse, problem.members) : null;
-    const figures: PulseFigures = {
-      meanInfidelity: evaluation.meanInfidelity,
-      worstInfidelity: evaluation.worstInfidelity,
-      regionMeanInfidelity: summary.meanInfidelity,
-      robustArea: summary.areaFraction,
-      detuningHalfWidth: summary.detuningHalfWidth,
-      amplitudeHalfWidth: summary.amplitudeHalfWidth,
-      duration: summary.durationS,
-      peak: summary.peakRabiHz,
-      pulseArea: summary.pulseAreaTurns,
-      energy: summary.energyHz2S,
-    };
-    return {
-      name,
-      origin,
-      pulse,
-      target,
-      ...(summary.targetNote ? { note: summary.targetNote } : {}),
-      figures,
-      cuts: cuts(target, pulse, request.detuning, request.amplitudeError, line),
-      ...(naive ? { noLine: { meanInfidelity: naive.meanInfidelity, worstInfidelity: naive.worstInfidelity } } : {}),
-    };
-  };
-
-  const compareAll = (request: CompareRequest): CompareRow[] => {
-    const problem = library.parseSpec(request.spec);
-    const rows: CompareRow[] = request.pulses.map((p) =>
-      compareRow(p.name, String(p.pulse.metadata.origin ?? 'design'), p.pulse, problem, request),
-    );
-    const gate = planarGate(problem.target);
-    for (const name of request.composites) {
-      const title = library.composites.find((c) => c.name === name)?.title ?? name;
-      if (!gate) {
-        rows.push({
-          name: title,
-          origin: 'composite',
-          error: { name: 'ArgumentError', message: 'composite sequences are built for a gate target whose axis lies in the xy-plane' },
-        });
-        continue;
-      }
-      try {
-        const pulse = library.buildComposite(name, { ...gate, rabiMax: problem.rabiMax, dt: problem.dt });
-        rows.push(compareRow(title, 'composite', pulse, problem, request));
-      } catch (error) {
-        rows.push({ name: title, origin: 'composite', error: errorInfo(error) });
-      }
-    }
-    return moved(rows);
-  };
 
   return {
     async ready(): Promise<CoreInfo> {
@@ -237,11 +159,15 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
     },
 
     cuts(target, pulse, detuning, amplitudeError, line) {
-      return withCore(() => moved(cuts(target, pulse, detuning, amplitudeError, line)));
+      return withCore(() => moved(library.cuts(target, pulse, detuning, amplitudeError, line)));
     },
 
     compare(request) {
-      return withCore(() => compareAll(request));
+      return withCore(() => {
+        const { spec, pulses, composites, detuning, amplitudeError, threshold, withoutLine } = request;
+        const { rows } = library.compare(spec, pulses, { composites, region: { detuning, amplitudeError }, threshold, cuts: true, withoutLine });
+        return moved(rows);
+      });
     },
 
     trajectory(pulse, member, from, line) {

@@ -51,7 +51,7 @@ describe('with the bandwidth going to infinity every figure is the figure withou
       const ca = cut(target, pulse, 'amplitudeError', amp, line), cb = cut(target, pulse, 'amplitudeError', amp);
       ca.infidelity.forEach((v, j) => expectClose(v, cb.infidelity[j], { abs: 1e-13 }, `cut point ${j}`));
       const sa = summarise(target, pulse, det, amp, { line }).summary, sb = summarise(target, pulse, det, amp).summary;
-      expectClose(sa.meanInfidelity, sb.meanInfidelity, { abs: 1e-13 }, 'summary mean');
+      expectClose(sa.regionMeanInfidelity, sb.regionMeanInfidelity, { abs: 1e-13 }, 'summary region mean');
       expectClose(sa.detuningHalfWidth, sb.detuningHalfWidth, { rel: 1e-6 }, 'detuning half-width');
       expectClose(sa.amplitudeHalfWidth, sb.amplitudeHalfWidth, { rel: 1e-6 }, 'amplitude half-width');
       expectClose(sa.pulseAreaTurns, sb.pulseAreaTurns, { rel: 1e-12 }, 'pulse area');
