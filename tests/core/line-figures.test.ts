@@ -8,6 +8,7 @@ import { blochTrajectory, design, evaluate, evaluateMembers, robustnessMap } fro
 import { SpecError } from '../../src/core/errors.ts';
 import { qubitDrive } from '../../src/core/line.ts';
 import { lineJson } from '../../src/core/line-spec.ts';
+import { compare } from '../../src/core/compare.ts';
 import { cut, summarise } from '../../src/core/robustness.ts';
 import { parseSpec } from '../../src/core/spec.ts';
 import type { Line, Member, Pulse, Target } from '../../src/core/types.ts';
@@ -64,6 +65,20 @@ describe('with the bandwidth going to infinity every figure is the figure withou
       }
     });
   }
+
+  it('compare: every row (the pulse and composites) equals the row without the line (1e-13)', () => {
+    const spec = JSON.parse(readFileSync(new URL('../../examples/transmon-x90-line.json', import.meta.url), 'utf8'));
+    const { line: _omit, ...bare } = spec;
+    const wideSpec = { ...bare, line: { oversample: 4, response: { gaussian: { bandwidth: 1e30 } } } };
+    const p = { ...pulse, dt: spec.duration / spec.segments };
+    const options = { composites: ['bb1', 'corpse'], region: { detuning: { min: -1e6, max: 1e6, points: 5 }, amplitudeError: { min: -0.02, max: 0.02, points: 5 } } };
+    const a = compare(wideSpec, [{ name: 'p', pulse: p }], options), b = compare(bare, [{ name: 'p', pulse: p }], options);
+    expect(a.rows.map((r) => r.name)).toEqual(b.rows.map((r) => r.name));
+    a.rows.forEach((r, j) => {
+      expectClose(r.figures!.meanInfidelity, b.rows[j].figures!.meanInfidelity, { abs: 1e-13 }, `${r.name} mean`);
+      expectClose(r.figures!.regionWorstInfidelity, b.rows[j].figures!.regionWorstInfidelity, { abs: 1e-13 }, `${r.name} region worst`);
+    });
+  });
 
   it('export report: the gate figures through the line equal those without it (1e-13), both given', async () => {
     const line = wide[0];

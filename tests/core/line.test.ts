@@ -4,6 +4,10 @@
 // differences, and the discrete kernels against their continuous responses.
 import { describe, expect, it } from 'vitest';
 import { evaluateMembers } from '../../src/core/api.ts';
+import { createBlock } from '../../src/core/block.ts';
+import { encodeMembers } from '../../src/core/encode.ts';
+import { lineLayout } from '../../src/core/line.ts';
+import { getCore } from '../../src/core/wasm.ts';
 import { figureAndGradient } from '../../src/core/gradient.ts';
 import { qubitDrive } from '../../src/core/line.ts';
 import { heldKernel, kernelOf } from '../../src/core/line-spec.ts';
@@ -43,6 +47,10 @@ describe('the line drive map', () => {
         expect(normwiseRelativeError(got.i, want.i), `${method} I`).toBeLessThan(1e-12);
         expect(normwiseRelativeError(got.q, want.q), `${method} Q`).toBeLessThan(1e-12);
       }
+      // And the two methods against each other.
+      const direct = qubitDrive(pulse, line, 'direct'), fft = qubitDrive(pulse, line, 'fft');
+      expect(normwiseRelativeError(fft.i, direct.i)).toBeLessThan(1e-12);
+      expect(normwiseRelativeError(fft.q, direct.q)).toBeLessThan(1e-12);
     });
   }
 
@@ -83,5 +91,48 @@ describe('the line drive map', () => {
         expect(Math.abs(got.mean - figure(pulse))).toBeLessThan(1e-15);
       });
     }
+  }
+});
+
+describe('the design objective through the line with the drive bound ("boundOn": "both")', () => {
+  const line: Line = { oversample: 3, response: { kind: 'impulse', values: [-0.2, 1.4, -0.2] }, delay: 0, boundOn: 'both' };
+  const members: Member[] = [{ detuning: 1e6, amplitudeError: 0.02, weight: 1 }, { detuning: -1e6, amplitudeError: 0, weight: 1 }];
+  const target: Target = { kind: 'gate', axis: [0, 1, 0], angleRad: Math.PI };
+  const rabiMax = 3e7;
+
+  /** Objective and its gradient with respect to the optimiser's variables, from the core. */
+  function objectiveAt(method: 'direct' | 'fft', x: Float64Array): { f: number; fig: number; g: Float64Array } {
+    const core = getCore();
+    return core.job(() => {
+      const p = createBlock(core, {
+        target, segments: 10, dt, members: encodeMembers(members, 2, true), bound: 'disc', rabiMax, drive: lineLayout(line, 10, dt, method),
+      });
+      const xPtr = core.put(x), gPtr = core.alloc(x.length);
+      const f = core.exports.objective(p, xPtr, gPtr);
+      return { f, fig: core.exports.problemInfidelity(p), g: core.read(gPtr, x.length) };
+    });
+  }
+
+  for (const method of ['direct', 'fft'] as const) {
+    it(`${method}: the penalty is active, excluded from the figure, and its gradient matches central differences (1e-6 normwise)`, () => {
+      // Source: central finite differences (Nocedal & Wright, section 8.1). Alternating
+      // samples near the bound make the overshooting line exceed it, so the penalty acts.
+      const x = Float64Array.from({ length: 20 }, (_, v) => (v % 2 === 0 ? (Math.floor(v / 2) % 2 === 0 ? 3 : -3) : uniform(-0.3, 0.3)));
+      const at = objectiveAt(method, x);
+      expect(at.f - at.fig).toBeGreaterThan(1e-3);
+      // The penalty's weight makes the objective large (1e4 per unit excess squared), so
+      // the comparison is normwise: the largest difference over the largest component.
+      const h = 1e-6;
+      let diff = 0, scale = 0;
+      for (let v = 0; v < x.length; v++) {
+        const xp = x.slice(), xm = x.slice();
+        xp[v] += h;
+        xm[v] -= h;
+        const fd = (objectiveAt(method, xp).f - objectiveAt(method, xm).f) / (2 * h);
+        diff = Math.max(diff, Math.abs(at.g[v] - fd));
+        scale = Math.max(scale, Math.abs(fd));
+      }
+      expect(diff / scale).toBeLessThan(1e-6);
+    });
   }
 });
