@@ -7,6 +7,7 @@ import { basename, dirname, extname, join, resolve } from 'node:path';
 import { ArgumentError, PulseFormatError, SpecError } from '../core/errors.ts';
 import { parseSpec, specJsonFromText } from '../core/spec.ts';
 import type { Problem, Pulse } from '../core/types.ts';
+import { resolveImpulseFile } from '../io/line-file.ts';
 import type { CliIO } from './command.ts';
 import { specUnitWarnings } from './unit-warnings.ts';
 
@@ -21,7 +22,8 @@ export interface LoadedSpec {
 export function loadSpec(path: string): LoadedSpec {
   const text = readText(path, 'spec file', 'a design spec (JSON text)');
   try {
-    const json = specJsonFromText(text);
+    // A measured line response named by file is read relative to the spec.
+    const json = resolveImpulseFile(specJsonFromText(text), (file) => readBytes(resolve(dirname(path), file), 'line response file'));
     const problem = parseSpec(json);
     return { json, problem, warnings: specUnitWarnings(problem).map((w) => `${path}: ${w}`) };
   } catch (error) {
