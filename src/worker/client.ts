@@ -18,7 +18,10 @@ import type {
   ExportPreview,
   MapResult,
   ProgressBatch,
+  ShortestOutcome,
+  ShortestRequest,
   SpecCheck,
+  TrialSink,
 } from './protocol.ts';
 
 /** A merged design: the best start over every worker, and whether Stop ended it. */
@@ -113,6 +116,19 @@ export class CoreClient {
     } catch (error) {
       await this.stop();
       throw error;
+    } finally {
+      this.designing = false;
+    }
+  }
+
+  /** The shortest duration meeting a goal, on one design worker; `onTrial` gets each duration tried. Stop ends it keeping what was found. */
+  async shortest(spec: unknown, request: ShortestRequest, onTrial?: TrialSink): Promise<ShortestOutcome> {
+    if (this.designing) throw new Error('a design is already running; stop it first');
+    await this.ready();
+    this.designing = true;
+    this.stopRequested = false;
+    try {
+      return await this.designers[0].shortest(spec, request, onTrial ? proxy(onTrial) : undefined);
     } finally {
       this.designing = false;
     }

@@ -5,6 +5,7 @@ import { compositeNames } from '../core/composites.ts';
 import { qubitDrive } from '../core/line.ts';
 import { cuts } from '../core/robustness.ts';
 import { parseSpec } from '../core/spec.ts';
+import { shortestDuration } from '../core/shortest.ts';
 import { readPulse, writePulse } from '../io/pulse.ts';
 import { encodeWaveform, exportReport, exportWaveform, samplesToPulse, waveformSamples } from '../io/export/index.ts';
 import type { CoreLibrary } from './service.ts';
@@ -13,6 +14,7 @@ import type { CoreLibrary } from './service.ts';
 export const library: CoreLibrary = {
   parseSpec,
   design,
+  shortest: shortestDuration,
   evaluate: evaluateJudged,
   evaluateMembers,
   robustnessMap,

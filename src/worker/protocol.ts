@@ -4,6 +4,7 @@
 import type { QubitDrive } from '../core/line.ts';
 import type { DesignResult, Evaluation, GridAxis, Line, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
 import type { CompareRow, NamedPulse } from '../core/compare.ts';
+import type { DurationTrial, ShortestResult } from '../core/shortest.ts';
 import type { Cuts } from '../core/robustness.ts';
 import type { EncodedWaveform, ExportReport, SampleUnits, WaveformFormat } from '../io/export/index.ts';
 
@@ -103,6 +104,22 @@ export interface ExportFileOptions {
   metadata?: Record<string, unknown>;
 }
 
+/** The goal of a shortest-duration search and its range in whole samples (the library's ShortestOptions without callbacks). */
+export interface ShortestRequest {
+  goalMean: number;
+  goalWorst?: number;
+  minSegments?: number;
+  maxSegments?: number;
+}
+
+/** Each duration tried, as soon as its design ends. */
+export type TrialSink = (trial: DurationTrial) => void;
+
+/** The search's result without the winning design's per-start record (the pulse and figures are kept). */
+export type ShortestOutcome = Omit<ShortestResult, 'design'>;
+
+export type { DurationTrial } from '../core/shortest.ts';
+
 /** The API the worker exposes; every method is one job. */
 export interface CoreService {
   /** Loads the core (once) and lists what it can build. */
@@ -111,6 +128,8 @@ export interface CoreService {
   checkSpec(spec: unknown): SpecCheck;
   /** Designs with the given starts; progress is batched; `stop` ends it early keeping the best pulse. */
   design(spec: unknown, startIndices: number[], onProgress?: ProgressSink, livePulseEveryMs?: number): Promise<DesignShare>;
+  /** The shortest duration whose design meets the goal (the library's shortestDuration); `stop` ends it keeping what was found. */
+  shortest(spec: unknown, request: ShortestRequest, onTrial?: TrialSink): Promise<ShortestOutcome>;
   /** Ends every running design of this worker within one iteration. */
   stop(): number;
   /** Figures of a pulse on the spec's ensemble and target. */

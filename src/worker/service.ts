@@ -2,6 +2,7 @@
 // the command line runs). Built over an injected library so that tests can expose it on a
 // MessageChannel in one realm, exactly as the worker does across threads.
 import type { DesignOptions, RobustnessMap } from '../core/api.ts';
+import type { ShortestOptions, ShortestResult } from '../core/shortest.ts';
 import type { CompareOptions, Comparison, NamedPulse } from '../core/compare.ts';
 import type { Cuts } from '../core/robustness.ts';
 import type { QubitDrive } from '../core/line.ts';
@@ -26,6 +27,8 @@ import { moved } from './transfer.ts';
 export interface CoreLibrary {
   parseSpec(json: unknown): Problem;
   design(spec: unknown, options?: DesignOptions): Promise<DesignResult>;
+  /** The shortest duration at which a design meets a goal (what `gatesmith shortest` runs). */
+  shortest(spec: unknown, options: ShortestOptions): Promise<ShortestResult>;
   /** Figures on the spec's ensemble against the target the pulse is judged against (core/target-choice.ts). */
   evaluate(spec: unknown, pulse: Pulse): Evaluation;
   evaluateMembers(target: Target, pulse: Pulse, members: Member[], line?: Line): Evaluation;
@@ -138,6 +141,30 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
         running.delete(controller);
         // A callback proxied from the page holds a message port open until released.
         (onProgress as { [releaseProxy]?: () => void } | undefined)?.[releaseProxy]?.();
+      });
+    },
+
+    shortest(spec, request, onTrial) {
+      const controller = new AbortController();
+      running.add(controller);
+      return withCore(async () => {
+        const { goalMean, goalWorst, minSegments, maxSegments } = request;
+        const pending: Promise<unknown>[] = [];
+        const { design: _design, ...result } = await library.shortest(spec, {
+          goalMean,
+          goalWorst,
+          minSegments,
+          maxSegments,
+          signal: controller.signal,
+          // A page that has gone away must not fail the search.
+          onTrial: onTrial ? (trial) => void pending.push(Promise.resolve(onTrial({ ...trial })).catch(() => undefined)) : undefined,
+        });
+        // Every trial reaches the page before the result (one channel keeps the order).
+        await Promise.all(pending);
+        return moved(result);
+      }).finally(() => {
+        running.delete(controller);
+        (onTrial as { [releaseProxy]?: () => void } | undefined)?.[releaseProxy]?.();
       });
     },
 
