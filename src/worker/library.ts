@@ -5,7 +5,7 @@ import { compositeNames } from '../core/composites.ts';
 import { qubitDrive } from '../core/line.ts';
 import { cuts } from '../core/robustness.ts';
 import { parseSpec } from '../core/spec.ts';
-import { shortestDuration } from '../core/shortest.ts';
+import { rectangularTime, shortestDuration } from '../core/shortest.ts';
 import { readPulse, writePulse } from '../io/pulse.ts';
 import { encodeWaveform, exportReport, exportWaveform, samplesToPulse, waveformSamples } from '../io/export/index.ts';
 import type { CoreLibrary } from './service.ts';
@@ -15,6 +15,7 @@ export const library: CoreLibrary = {
   parseSpec,
   design,
   shortest: shortestDuration,
+  rectangularTime,
   evaluate: evaluateJudged,
   evaluateMembers,
   robustnessMap,

@@ -112,8 +112,8 @@ export interface ShortestRequest {
   maxSegments?: number;
 }
 
-/** Each duration tried, as soon as its design ends. */
-export type TrialSink = (trial: DurationTrial) => void;
+/** Each duration tried, as soon as its design ends, with the rectangular pulse's time (theta / (2 pi peak Rabi)) to draw beside it. */
+export type TrialSink = (trial: DurationTrial, lowerBoundS: number) => void;
 
 /** The search's result without the winning design's per-start record (the pulse and figures are kept). */
 export type ShortestOutcome = Omit<ShortestResult, 'design'>;

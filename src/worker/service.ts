@@ -29,6 +29,8 @@ export interface CoreLibrary {
   design(spec: unknown, options?: DesignOptions): Promise<DesignResult>;
   /** The shortest duration at which a design meets a goal (what `gatesmith shortest` runs). */
   shortest(spec: unknown, options: ShortestOptions): Promise<ShortestResult>;
+  /** The time of a rectangular pulse of the target's angle at the peak Rabi rate. */
+  rectangularTime(problem: Problem): number;
   /** Figures on the spec's ensemble against the target the pulse is judged against (core/target-choice.ts). */
   evaluate(spec: unknown, pulse: Pulse): Evaluation;
   evaluateMembers(target: Target, pulse: Pulse, members: Member[], line?: Line): Evaluation;
@@ -150,6 +152,13 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
       return withCore(async () => {
         const { goalMean, goalWorst, minSegments, maxSegments } = request;
         const pending: Promise<unknown>[] = [];
+        // A bad spec is named by the search itself below; no bound to send then.
+        let lowerBoundS = NaN;
+        try {
+          lowerBoundS = library.rectangularTime(library.parseSpec(spec));
+        } catch {
+          /* reported by library.shortest */
+        }
         const { design: _design, ...result } = await library.shortest(spec, {
           goalMean,
           goalWorst,
@@ -157,7 +166,7 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
           maxSegments,
           signal: controller.signal,
           // A page that has gone away must not fail the search.
-          onTrial: onTrial ? (trial) => void pending.push(Promise.resolve(onTrial({ ...trial })).catch(() => undefined)) : undefined,
+          onTrial: onTrial ? (trial) => void pending.push(Promise.resolve(onTrial({ ...trial }, lowerBoundS)).catch(() => undefined)) : undefined,
         });
         // Every trial reaches the page before the result (one channel keeps the order).
         await Promise.all(pending);

@@ -21,7 +21,11 @@ describe('the worker\'s shortest search', () => {
 
   it('returns the library\'s result, theta / (2 pi rabiMax) rounded up to whole samples, and streams each trial first', async () => {
     const trials: DurationTrial[] = [];
-    const remote = await core.shortest(rectSpec, { goalMean: 1e-9 }, proxy((t: DurationTrial) => void trials.push(t)));
+    const bounds: number[] = [];
+    const remote = await core.shortest(rectSpec, { goalMean: 1e-9 }, proxy((t: DurationTrial, bound: number) => {
+      trials.push(t);
+      bounds.push(bound);
+    }));
     const direct = await shortestDuration(rectSpec, { goalMean: 1e-9 });
     // docs/physics.md section 1: a resonant constant drive turns by 2 pi Omega t, so
     // (pi/2) / (2 pi 10 MHz) = 25 ns = 12.5 samples of 2 ns -> 13 samples, 26 ns.
@@ -38,6 +42,8 @@ describe('the worker\'s shortest search', () => {
     expect(remote.stopped).toBe(false);
     // Every trial reached the page (in the order tried) before the result.
     expect([...trials].sort((a, b) => a.segments - b.segments)).toEqual(remote.tried);
+    // ... each with the rectangular pulse's time, the result's lower bound.
+    for (const b of bounds) expect(b).toBe(remote.lowerBoundS);
   }, 120_000);
 
   it('names a bad goal in the library\'s words', async () => {
