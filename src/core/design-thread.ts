@@ -15,6 +15,7 @@ try {
     startIndices: workerData.startIndices,
     signal: controller.signal,
     progressPulseEveryMs: workerData.progressPulseEveryMs,
+    stage: workerData.stage,
     onProgress: (progress) => post({ kind: 'progress', progress }),
   });
   post({ kind: 'done', result });

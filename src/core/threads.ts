@@ -6,7 +6,7 @@ import { availableParallelism } from 'node:os';
 import { pathToFileURL } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import { design, toProblem } from './api.ts';
-import { mergeDesigns } from './best-start.ts';
+import { mergeDesigns, mergePruned, prunes, startsToContinue } from './best-start.ts';
 import type { DesignOptions } from './api.ts';
 import { checkProblemAngles } from './limits.ts';
 import type { DesignResult, Progress } from './types.ts';
@@ -31,9 +31,19 @@ export async function designInThreads(spec: unknown, options: ThreadedDesignOpti
   const threads = Math.max(1, Math.min(options.threads ?? availableParallelism(), indices.length));
   if (threads === 1) return design(problem, options);
   const t0 = performance.now();
-  const shares = Array.from({ length: threads }, (_, t) => indices.filter((_, k) => k % threads === t));
-  const runs = shares.map((share) => runThread(problem, share, options));
-  return mergeDesigns(await Promise.all(runs), (performance.now() - t0) / 1000);
+  const spread = (list: number[], stage?: 'probe' | 'finish'): Promise<DesignResult>[] => {
+    const count = Math.min(threads, list.length);
+    return Array.from({ length: count }, (_, t) => runThread(problem, list.filter((_, k) => k % count === t), { ...options, stage }));
+  };
+  if (options.stage !== undefined || !prunes(problem.optimizer, indices.length)) {
+    return mergeDesigns(await Promise.all(spread(indices, options.stage)), (performance.now() - t0) / 1000);
+  }
+  // Pruned: every start to the pruning point, then the best again from their start on
+  // (a start is deterministic, so it retraces its probe and goes on as in one loop).
+  const probes = await Promise.all(spread(indices, 'probe'));
+  const going = startsToContinue(probes.flatMap((share) => share.starts), problem.optimizer.keepStarts);
+  const finished = going.length === 0 ? [] : await Promise.all(spread(going, 'finish'));
+  return mergePruned(probes, finished, (performance.now() - t0) / 1000);
 }
 
 // Threads do not inherit the TypeScript loader: each registers tsx, then loads the thread module.
@@ -49,7 +59,7 @@ function runThread(problem: unknown, startIndices: number[], options: ThreadedDe
   return new Promise((resolve, reject) => {
     const worker = new Worker(threadBootstrap(), {
       eval: true,
-      workerData: { problem, startIndices, progressPulseEveryMs: options.progressPulseEveryMs },
+      workerData: { problem, startIndices, progressPulseEveryMs: options.progressPulseEveryMs, stage: options.stage },
     });
     const stop = (): void => worker.postMessage('stop');
     options.signal?.addEventListener('abort', stop, { once: true });

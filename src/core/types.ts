@@ -42,6 +42,14 @@ export interface OptimizerSettings {
   timeLimit: number;
   /** L-BFGS memory (number of correction pairs). */
   memory: number;
+  /** Iterations over which a start must improve its objective by stallTolerance (0 = never stop on a stall). */
+  stallIterations: number;
+  /** Relative improvement over stallIterations below which a start has stalled. */
+  stallTolerance: number;
+  /** Iterations every start runs before only the keepStarts best go on (0 = no pruning). */
+  pruneAfter: number;
+  /** Starts that go on after pruneAfter iterations: the lowest objectives there. */
+  keepStarts: number;
 }
 
 /** A validated, normalised design problem (what `parseSpec` returns). */
@@ -103,7 +111,9 @@ export type StopReason =
   | 'max-iterations'
   | 'time-limit'
   | 'stopped'
-  | 'line-search-failed';
+  | 'line-search-failed'
+  | 'stalled'
+  | 'pruned';
 
 /** One progress report of a running design. */
 export interface Progress {
@@ -138,6 +148,8 @@ export interface DesignResult {
   best: StartResult;
   starts: StartResult[];
   elapsedS: number;
+  /** Set by a design's probe stage: how many starts go on (best-start.ts startsToContinue). */
+  keepStarts?: number;
 }
 
 /** A uniform grid axis. */

@@ -116,7 +116,7 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
       }
     },
 
-    design(spec, startIndices, onProgress, livePulseEveryMs = 200) {
+    design(spec, startIndices, onProgress, livePulseEveryMs = 200, stage) {
       // Registered before queueing, so that a stop sent while the job waits still ends it.
       const controller = new AbortController();
       running.add(controller);
@@ -125,6 +125,7 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
         const result = await library.design(spec, {
           signal: controller.signal,
           startIndices,
+          stage,
           progressPulseEveryMs: onProgress ? livePulseEveryMs : undefined,
           onProgress: (progress) => batcher.add(progress),
         });
