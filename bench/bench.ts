@@ -124,10 +124,16 @@ for (const file of readdirSync(exampleDir).filter((f) => f.endsWith('.json')).so
 }
 
 // 5. The app in headless Chromium (skipped without /usr/bin/chromium).
-let app: AppFigures | null = null;
+let app: AppFigures | { error: string } | null = null;
 if (!process.argv.includes('--no-app')) {
   log('');
-  app = await appBenchmark(log);
+  // A browser step past its timeout is a figure of the run (the error), not the end of it.
+  try {
+    app = await appBenchmark(log);
+  } catch (error) {
+    app = { error: error instanceof Error ? error.message.split('\n')[0] : String(error) };
+    log(`app benchmark failed: ${app.error}`);
+  }
 }
 
 if (json) {
