@@ -18,6 +18,8 @@ export interface FigureGradient {
 /** A job placed in wasm memory once; `run` recomputes it until `dispose` frees its buffers. */
 export interface GradientJob {
   run(): number;
+  /** The figure alone (the maps' sweep), for the benchmark. */
+  figure(): number;
   result(): FigureGradient;
   /** Series settings of the last run: terms and halvings (assembly/qubit.ts). */
   series(): { terms: number; halvings: number };
@@ -37,6 +39,7 @@ export function prepareGradientJob(target: Target, pulse: Pulse, members: Member
   const run = (): number => core.exports.problemGradient(p);
   return {
     run,
+    figure: () => core.exports.problemFigure(p),
     result: () => ({
       mean: run(),
       perMember: readBuffer(core, p, BUFFER.perMember, enc.count),
