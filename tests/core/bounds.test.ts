@@ -94,7 +94,9 @@ describe('disc bound: no stall where tanh saturates', () => {
     // Measured before the re-centring (same spec and seed): starts 1 and 2 stopped on the
     // gradient tolerance at 2.556e-2 and 2.800e-2 with variables of radius up to 1e10 and
     // a sample-space optimality residual of 2.2e-4 and 4.5e-5.
-    const spec = { ...demo, rabiMax: 5e6, optimizer: { starts: 12, seed: 3, maxIterations: 3000, stallIterations: 0 } };
+    // 5000 iterations: where a start ends depends on the last bits of the arithmetic, and
+    // start 2 needs about 4500 with the current backward sweep.
+    const spec = { ...demo, rabiMax: 5e6, optimizer: { starts: 12, seed: 3, maxIterations: 5000, stallIterations: 0 } };
     const r = await design(spec, { startIndices: [1, 2] });
     for (const s of r.starts) {
       for (let k = 0; k < s.pulse.i.length; k++) expect(Math.hypot(s.pulse.i[k], s.pulse.q[k])).toBeLessThanOrEqual(5e6);
