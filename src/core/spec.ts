@@ -27,12 +27,12 @@ export const DEFAULT_OPTIMIZER: Readonly<OptimizerSettings> = {
   memory: 12,
   // Measured on recorded runs (8 seeds of each demo and of a fast box-bounded X(180)): less
   // than 0.01 % over 100 iterations cost the best start at most 0.03 % of its figure and
-  // saves 11-22 % of the evaluations where starts settle; designs still falling at their
+  // saves 9-15 % of the evaluations where starts settle; designs still falling at their
   // budget (the ion demo) never trigger it.
   stallIterations: 100,
   stallTolerance: 1e-4,
   // Off by default: on the ion demo the order of the starts after 400 of 1000 iterations
-  // was not their final order (the best figure up to 1.6 times higher when pruned).
+  // was not their final order (the best figure up to 2.5 times higher when pruned).
   pruneAfter: 0,
   keepStarts: 2,
 };
