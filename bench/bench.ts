@@ -15,9 +15,14 @@ const log = (text: string): void => {
   if (!json) process.stdout.write(text + '\n');
 };
 
-/** Median of `reps` timings (ms) after `warm` untimed calls. */
+/**
+ * Median of `reps` timings (ms) after `warm` untimed calls and at least 300 ms of them:
+ * V8 first runs wasm from its quick baseline compiler and swaps in the optimised code
+ * later, on a background thread (slow on a loaded machine).
+ */
 function median(fn: () => void, reps: number, warm = 3): number {
-  for (let k = 0; k < warm; k++) fn();
+  const warmStart = performance.now();
+  for (let k = 0; k < warm || (warm > 1 && performance.now() - warmStart < 300); k++) fn();
   const times: number[] = [];
   for (let k = 0; k < reps; k++) {
     const t = performance.now();
