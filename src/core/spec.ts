@@ -4,6 +4,7 @@
 // The format is described for users in docs/spec.md.
 import { SpecError } from './errors.ts';
 import { parseEnsemble } from './spec-ensemble.ts';
+import { parseLine } from './line-spec.ts';
 import { childPath, readBoolean, readChoice, readNumber, readObject, readText, readUnitVector } from './spec-fields.ts';
 import type { NumberRule } from './spec-fields.ts';
 import type { Constraints, OptimizerSettings, Problem, Target } from './types.ts';
@@ -37,7 +38,7 @@ export const DEFAULT_OPTIMIZER: Readonly<OptimizerSettings> = {
   keepStarts: 2,
 };
 
-const TOP_KEYS = ['name', 'description', 'target', 'duration', 'segments', 'rabiMax', 'ensemble', 'constraints', 'optimizer'];
+const TOP_KEYS = ['name', 'description', 'target', 'duration', 'segments', 'rabiMax', 'ensemble', 'constraints', 'optimizer', 'line'];
 
 /** Validates a design spec (parsed JSON) and returns the normalised problem. */
 export function parseSpec(json: unknown): Problem {
@@ -53,7 +54,8 @@ export function parseSpec(json: unknown): Problem {
   const members = parseEnsemble(spec.ensemble);
   const constraints = parseConstraints(spec.constraints, segments);
   const optimizer = parseOptimizer(spec.optimizer);
-  return { target, duration, segments, dt, rabiMax, members, constraints, optimizer };
+  const line = parseLine(spec.line, dt, segments);
+  return { target, duration, segments, dt, rabiMax, members, constraints, optimizer, ...(line ? { line } : {}) };
 }
 
 /** Parses spec text (a file's contents) as JSON, turning a syntax error into a SpecError. */
