@@ -115,7 +115,11 @@ export class CoreClient {
       const going = keep === undefined || this.stopRequested ? [] : startsToContinue(probes.flatMap((s) => s.starts), keep);
       if (going.length === 0) return { ...mergeDesigns(probes, (performance.now() - t0) / 1000), stopped: this.stopRequested };
       const again = shareStarts(going.length, this.designers.length).map((g) => g.map((k) => going[k]));
-      const finished = await Promise.all(again.map((group, w) => this.designers[w].design(spec, group, sink, livePulseEveryMs, 'finish')));
+      // A continued start retraces its probe first: the page has those reports already.
+      const reached = new Map(probes.flatMap((s) => s.starts).map((r) => [r.start, r.iterations]));
+      const fresh = (p: { start: number; iteration: number }): boolean => p.iteration > (reached.get(p.start) ?? -1);
+      const finishSink = onProgress ? proxy((batch: ProgressBatch) => onProgress({ points: batch.points.filter(fresh), live: batch.live.filter(fresh) })) : undefined;
+      const finished = await Promise.all(again.map((group, w) => this.designers[w].design(spec, group, finishSink, livePulseEveryMs, 'finish')));
       return { ...mergePruned(probes, finished, (performance.now() - t0) / 1000), stopped: this.stopRequested };
     } catch (error) {
       await this.stop();
