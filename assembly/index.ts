@@ -8,3 +8,5 @@ export { problemSet, problemVariables, problemInfidelity, controlsFromVariables,
 export {
   optInit, optStep, optObjective, optGradientNorm, optVariables, optEvaluations, optIterations,
 } from './lbfgs';
+export { ladderPropagator } from './ladder';
+export { ladderFigure, ladderGradient, ladderWorkspaceSize } from './ladder-sweep';

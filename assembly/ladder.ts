@@ -1,0 +1,240 @@
+// Exact propagation of one piecewise-constant segment of a driven d-level ladder
+// (a transmon, d = 2..8), in the frame of the drive with |0> the ground state:
+//
+//   H = 2 pi [ Delta n + (alpha/2) n(n-1) + (1+eps)/2 ( conj(W) a + W a^dag ) ],
+//   W = I + i Q,  a = sum_k sqrt(k) |k-1><k|                     (rad/s; Delta, alpha, I, Q in Hz)
+//
+// On levels 0, 1 this is the qubit model of docs/physics.md section 1 up to the energy
+// offset Delta/2 (n = (1 - sz)/2), a global phase that no figure sees.
+//
+// Method: the eigendecomposition of the generator, exp(-i H dt) = Vf exp(-i lam dt) Vf^dag.
+// H is tridiagonal; the diagonal phase gauge D = diag(e^{i k phi}), phi = arg W, makes it
+// real: H = D S D^dag with S real symmetric tridiagonal (off-diagonal pi (1+eps) |W| sqrt(k)).
+// S is diagonalised by cyclic Jacobi rotations (Golub & Van Loan, Matrix Computations,
+// 4th ed., algorithms 8.5.1-8.5.3), which yields orthogonal eigenvectors to rounding for
+// any spectrum, so every segment propagator is unitary to rounding and exact to rounding
+// with no step-size or series-length choice; the same eigenbasis gives the exact
+// derivative by divided differences (ladder-sweep.ts), which a series or Pade
+// exponential would need a second, doubled-size exponential for (Van Loan 1978).
+//
+// Complex blocks are interleaved (re, im) f64 pairs; a d x 2 block ("columns") stores
+// element (r, c) at f64 offset 2 (2 r + c).
+
+/** Largest number of levels the ladder kernels accept. */
+export const LADDER_MAX_LEVELS: i32 = 8;
+
+const TWO_PI: f64 = 2.0 * Math.PI;
+
+@inline export function getf(ptr: usize, k: i32): f64 { return load<f64>(ptr + (<usize>k << 3)); }
+@inline export function setf(ptr: usize, k: i32, v: f64): void { store<f64>(ptr + (<usize>k << 3), v); }
+
+/**
+ * f64 slots of one segment record:
+ *   V[d*d]   V[r*d + j] = component r of eigenvector j of S
+ *   lam[d]   eigenvalues of H (rad/s)
+ *   hc[d] hs[d]   e^{-i lam_j dt/2} = hc_j + i hs_j
+ *   cphi, sphi    the drive phase (cos, sin of arg W; 1, 0 for W = 0)
+ */
+export function recordSize(d: i32): i32 { return d * d + 3 * d + 2; }
+
+/** Offsets within a record (f64 slots). */
+@inline export function recLam(d: i32): i32 { return d * d; }
+@inline export function recHc(d: i32): i32 { return d * d + d; }
+@inline export function recHs(d: i32): i32 { return d * d + 2 * d; }
+@inline export function recPhi(d: i32): i32 { return d * d + 3 * d; }
+
+/**
+ * Diagonalise S (d x d, row-major, overwritten: its diagonal ends as the eigenvalues) by
+ * cyclic Jacobi sweeps, accumulating the rotations into V (set to the identity first).
+ */
+export function jacobiEigen(d: i32, sPtr: usize, vPtr: usize): void {
+  let norm2: f64 = 0.0;
+  for (let r = 0; r < d; r++) {
+    for (let c = 0; c < d; c++) {
+      const x = getf(sPtr, r * d + c);
+      norm2 += x * x;
+      setf(vPtr, r * d + c, r == c ? 1.0 : 0.0);
+    }
+  }
+  // Off-diagonal entries below 1e-18 of the norm change no eigenvalue or eigenvector
+  // component by more than rounding; quadratic convergence reaches it in a few sweeps.
+  const tol = 1e-18 * Math.sqrt(norm2);
+  for (let sweep = 0; sweep < 40; sweep++) {
+    let largest: f64 = 0.0;
+    for (let p = 0; p < d - 1; p++) {
+      for (let q = p + 1; q < d; q++) {
+        const x = Math.abs(getf(sPtr, p * d + q));
+        if (x > largest) largest = x;
+      }
+    }
+    if (largest <= tol) break;
+    for (let p = 0; p < d - 1; p++) {
+      for (let q = p + 1; q < d; q++) {
+        const apq = getf(sPtr, p * d + q);
+        if (Math.abs(apq) <= tol) continue;
+        const app = getf(sPtr, p * d + p);
+        const aqq = getf(sPtr, q * d + q);
+        const theta = (aqq - app) / (2.0 * apq);
+        // t = tan of the rotation angle, the smaller root (stable for any theta).
+        let t: f64;
+        if (Math.abs(theta) > 1e150) t = 0.5 / theta;
+        else t = (theta >= 0.0 ? 1.0 : -1.0) / (Math.abs(theta) + Math.sqrt(theta * theta + 1.0));
+        const c = 1.0 / Math.sqrt(t * t + 1.0);
+        const s = t * c;
+        setf(sPtr, p * d + p, app - t * apq);
+        setf(sPtr, q * d + q, aqq + t * apq);
+        setf(sPtr, p * d + q, 0.0);
+        setf(sPtr, q * d + p, 0.0);
+        for (let k = 0; k < d; k++) {
+          if (k != p && k != q) {
+            const akp = getf(sPtr, k * d + p), akq = getf(sPtr, k * d + q);
+            const nkp = c * akp - s * akq, nkq = s * akp + c * akq;
+            setf(sPtr, k * d + p, nkp); setf(sPtr, p * d + k, nkp);
+            setf(sPtr, k * d + q, nkq); setf(sPtr, q * d + k, nkq);
+          }
+          const vkp = getf(vPtr, k * d + p), vkq = getf(vPtr, k * d + q);
+          setf(vPtr, k * d + p, c * vkp - s * vkq);
+          setf(vPtr, k * d + q, s * vkp + c * vkq);
+        }
+      }
+    }
+  }
+}
+
+/**
+ * Fill a segment record (see recordSize) for drive (iHz, qHz), detuning, scale = 1 + eps
+ * and anharmonicity alpha (Hz), segment length dt; sPtr is d*d f64 of scratch.
+ */
+export function segmentEigen(
+  d: i32, dt: f64, iHz: f64, qHz: f64, detuning: f64, scale: f64, alpha: f64,
+  recPtr: usize, sPtr: usize,
+): void {
+  const r = Math.sqrt(iHz * iHz + qHz * qHz);
+  const cphi = r > 0.0 ? iHz / r : 1.0;
+  const sphi = r > 0.0 ? qHz / r : 0.0;
+  for (let k = 0; k < d * d; k++) setf(sPtr, k, 0.0);
+  for (let k = 0; k < d; k++) {
+    const fk = <f64>k;
+    setf(sPtr, k * d + k, TWO_PI * (detuning * fk + 0.5 * alpha * fk * (fk - 1.0)));
+  }
+  const drive = Math.PI * scale * r;
+  for (let k = 1; k < d; k++) {
+    const off = drive * Math.sqrt(<f64>k);
+    setf(sPtr, (k - 1) * d + k, off);
+    setf(sPtr, k * d + k - 1, off);
+  }
+  jacobiEigen(d, sPtr, recPtr);
+  const lam = recLam(d), hc = recHc(d), hs = recHs(d);
+  for (let j = 0; j < d; j++) {
+    const l = getf(sPtr, j * d + j);
+    setf(recPtr, lam + j, l);
+    setf(recPtr, hc + j, Math.cos(0.5 * l * dt));
+    setf(recPtr, hs + j, -Math.sin(0.5 * l * dt));
+  }
+  setf(recPtr, recPhi(d), cphi);
+  setf(recPtr, recPhi(d) + 1, sphi);
+}
+
+/**
+ * out (d x 2 complex) = V^T D^dag x: the columns x in the eigenbasis of the record's H.
+ * out must not alias x.
+ */
+export function toEigenbasis(d: i32, recPtr: usize, xPtr: usize, outPtr: usize): void {
+  const cphi = getf(recPtr, recPhi(d)), sphi = getf(recPtr, recPhi(d) + 1);
+  for (let j = 0; j < 4 * d; j++) setf(outPtr, j, 0.0);
+  // e^{-i k phi} by repeated multiplication; d <= 8 keeps the rounding at a few ulps.
+  let ck: f64 = 1.0, sk: f64 = 0.0;
+  for (let k = 0; k < d; k++) {
+    for (let col = 0; col < 2; col++) {
+      const o = 2 * (2 * k + col);
+      const xr = getf(xPtr, o), xi = getf(xPtr, o + 1);
+      const yr = ck * xr + sk * xi, yi = ck * xi - sk * xr;
+      for (let j = 0; j < d; j++) {
+        const v = getf(recPtr, k * d + j);
+        const p = 2 * (2 * j + col);
+        setf(outPtr, p, getf(outPtr, p) + v * yr);
+        setf(outPtr, p + 1, getf(outPtr, p + 1) + v * yi);
+      }
+    }
+    const nc = ck * cphi - sk * sphi;
+    sk = sk * cphi + ck * sphi;
+    ck = nc;
+  }
+}
+
+/**
+ * x (d x 2 complex) <- exp(-i H dt) x, or exp(+i H dt) x when `inverse`, from a record;
+ * tmpPtr holds 4 d f64.
+ */
+export function applySegment(d: i32, recPtr: usize, xPtr: usize, inverse: bool, tmpPtr: usize): void {
+  toEigenbasis(d, recPtr, xPtr, tmpPtr);
+  const hc = recHc(d), hs = recHs(d);
+  for (let j = 0; j < d; j++) {
+    const c = getf(recPtr, hc + j), s = getf(recPtr, hs + j);
+    const pr = c * c - s * s;
+    const pi = inverse ? -2.0 * c * s : 2.0 * c * s;
+    for (let col = 0; col < 2; col++) {
+      const o = 2 * (2 * j + col);
+      const zr = getf(tmpPtr, o), zi = getf(tmpPtr, o + 1);
+      setf(tmpPtr, o, pr * zr - pi * zi);
+      setf(tmpPtr, o + 1, pr * zi + pi * zr);
+    }
+  }
+  const cphi = getf(recPtr, recPhi(d)), sphi = getf(recPtr, recPhi(d) + 1);
+  let ck: f64 = 1.0, sk: f64 = 0.0;
+  for (let k = 0; k < d; k++) {
+    for (let col = 0; col < 2; col++) {
+      let yr: f64 = 0.0, yi: f64 = 0.0;
+      for (let j = 0; j < d; j++) {
+        const v = getf(recPtr, k * d + j);
+        const p = 2 * (2 * j + col);
+        yr += v * getf(tmpPtr, p);
+        yi += v * getf(tmpPtr, p + 1);
+      }
+      const o = 2 * (2 * k + col);
+      setf(xPtr, o, ck * yr - sk * yi);
+      setf(xPtr, o + 1, ck * yi + sk * yr);
+    }
+    const nc = ck * cphi - sk * sphi;
+    sk = sk * cphi + ck * sphi;
+    ck = nc;
+  }
+}
+
+/**
+ * The full propagator exp(-i H dt) of one segment, d x d complex, row-major, interleaved
+ * (re, im) at outPtr (2 d^2 f64); workPtr holds recordSize(d) + d*d f64.
+ */
+export function ladderPropagator(
+  d: i32, dt: f64, iHz: f64, qHz: f64, detuning: f64, scale: f64, alpha: f64,
+  outPtr: usize, workPtr: usize,
+): void {
+  const rec = workPtr;
+  segmentEigen(d, dt, iHz, qHz, detuning, scale, alpha, rec, workPtr + (<usize>recordSize(d) << 3));
+  const cphi = getf(rec, recPhi(d)), sphi = getf(rec, recPhi(d) + 1);
+  const hc = recHc(d), hs = recHs(d);
+  for (let r = 0; r < d; r++) {
+    for (let c = 0; c < d; c++) {
+      let ur: f64 = 0.0, ui: f64 = 0.0;
+      for (let j = 0; j < d; j++) {
+        const h = getf(rec, hc + j), s = getf(rec, hs + j);
+        const vv = getf(rec, r * d + j) * getf(rec, c * d + j);
+        ur += vv * (h * h - s * s);
+        ui += vv * (2.0 * h * s);
+      }
+      // D_r conj(D_c) = e^{i (r - c) phi}
+      const ang = <f64>(r - c);
+      let pc: f64 = 1.0, ps: f64 = 0.0;
+      const steps = r > c ? r - c : c - r;
+      for (let k = 0; k < steps; k++) {
+        const nc = pc * cphi - ps * sphi;
+        ps = ps * cphi + pc * sphi;
+        pc = nc;
+      }
+      if (ang < 0.0) ps = -ps;
+      const o = 2 * (r * d + c);
+      setf(outPtr, o, pc * ur - ps * ui);
+      setf(outPtr, o + 1, pc * ui + ps * ur);
+    }
+  }
+}
