@@ -25,7 +25,7 @@ function mathjsHamiltonian(d: number, i: number, q: number, member: LadderMember
   const n = mmul(adag, a) as Matrix;
   const nn1 = mmul(n, add(n, mmul(-1, mIdentity(d)) as Matrix)) as Matrix;
   const w = complex(i, q);
-  const drive = add(mmul(w.conjugate(), a), mmul(w, adag)) as Matrix;
+  const drive = add(mmul(complex(i, -q), a), mmul(w, adag)) as Matrix;
   const h = add(add(mmul(member.detuning, n), mmul(alpha / 2, nn1)), mmul((1 + member.amplitudeError) / 2, drive)) as Matrix;
   return mmul(TWO_PI, h) as Matrix;
 }
