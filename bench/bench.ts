@@ -6,6 +6,7 @@
 import { readFileSync, readdirSync } from 'node:fs';
 import { design, evaluateMembers, robustnessMap } from '../src/core/api.ts';
 import { prepareGradientJob } from '../src/core/gradient.ts';
+import { asLadderMembers, evaluateLadder, prepareLadderGradientJob } from '../src/core/ladder.ts';
 import type { Member, Pulse, Target } from '../src/core/types.ts';
 import { getCore } from '../src/core/wasm.ts';
 import { ensembleGradient as oracleGradient, memberInfidelity } from '../tests/reference/oracle.ts';
@@ -81,6 +82,32 @@ for (const segments of [100, 1000]) {
   }
 }
 
+// 1b. The transmon ladder (scalar f64, one member at a time) beside the two-level kernels.
+log('\ntransmon ladder: figure and objective + exact gradient, medians (ns per segment-member; two-level kernels alongside)');
+log('levels  segments  members   figure ms   gradient ms   figure ns   gradient ns   two-level gradient ns');
+const ladder: { levels: number; segments: number; members: number; figureMs: number; gradientMs: number; figureNs: number; gradientNs: number; twoLevelGradientNs: number }[] = [];
+for (const levels of [3, 5]) {
+  for (const segments of [20, 100]) {
+    for (const count of [1, 25]) {
+      const members = asLadderMembers(gridMembers(count));
+      const pulse = smoothPulse(segments, 2e-8 * (segments / 100), 1e8);
+      const system = { levels, anharmonicity: -2.12e8 };
+      const job = prepareLadderGradientJob(gate, pulse, members, system);
+      const gradientMs = median(() => job.run(), repsFor(() => job.run(), 300));
+      job.dispose();
+      const figureRun = (): void => void evaluateLadder(gate, pulse, members, system);
+      const figureMs = median(figureRun, repsFor(figureRun, 300));
+      const qubit = prepareGradientJob(gate, pulse, members);
+      const qubitMs = median(() => qubit.run(), repsFor(() => qubit.run(), 100));
+      qubit.dispose();
+      const per = 1e6 / (segments * count);
+      const row = { levels, segments, members: count, figureMs, gradientMs, figureNs: figureMs * per, gradientNs: gradientMs * per, twoLevelGradientNs: qubitMs * per };
+      ladder.push(row);
+      log(`${String(levels).padStart(6)}  ${String(segments).padStart(8)}  ${String(count).padStart(7)}   ${figureMs.toFixed(4).padStart(9)}   ${gradientMs.toFixed(4).padStart(11)}   ${row.figureNs.toFixed(0).padStart(9)}   ${row.gradientNs.toFixed(0).padStart(11)}   ${row.twoLevelGradientNs.toFixed(1).padStart(21)}`);
+    }
+  }
+}
+
 // 2. Robustness maps (figure only).
 log('\nrobustness maps (figure only), medians');
 log('grid        segments   ms        ns per member-segment');
@@ -128,5 +155,5 @@ if (!process.argv.includes('--no-app')) {
 }
 
 if (json) {
-  process.stdout.write(JSON.stringify({ objectiveGradient, design: designs, maps, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs }, app }) + '\n');
+  process.stdout.write(JSON.stringify({ objectiveGradient, ladder, design: designs, maps, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs }, app }) + '\n');
 }
