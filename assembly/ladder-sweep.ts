@@ -9,7 +9,7 @@
 // Workspace (f64 slots, ladderWorkspaceSize(n, d)):
 //   records[n * recordSize(d)]   each segment's eigendecomposition (gradient only)
 //   states[(n + 1) * 4 d]        X_k = U_k ... U_1 H0 (d x 2 complex) before segment k+1
-//   scratch[8 d^2 + 32 d + 16]   Jacobi matrix, adjoint, eigenbasis blocks, Y, T
+//   scratch[8 d^2 + 32 d + 16]   tridiagonal matrix, adjoint, eigenbasis blocks, Y, T
 //
 // Gradient (GRAPE, Khaneja et al., J. Magn. Reson. 172, 296, 2005): with the adjoint
 // L_k = (U_n ... U_{k+1})^dag blockdiag(G,1)^dag E (ladder-figure.ts),
@@ -120,11 +120,18 @@ export function ladderGradient(
   return mean;
 }
 
-/** sin(x)/x, by its series where the quotient loses digits. */
-@inline function sinc(x: f64): f64 {
+/**
+ * sin(x)/x for x = x_j - x_k, given cos x_j, -sin x_j, cos x_k, -sin x_k: by its series
+ * below 0.5 (the first omitted term, x^14/15!, is below 1e-16 relative), else from the
+ * difference formula, whose rounding is a few ulps of |x_j| + |x_k| over |x| >= 0.5. No
+ * sine call per pair of eigenvalues.
+ */
+@inline function sincOfDifference(x: f64, cj: f64, sj: f64, ck: f64, sk: f64): f64 {
   const x2 = x * x;
-  if (x2 < 1e-4) return 1.0 - x2 / 6.0 * (1.0 - x2 / 20.0 * (1.0 - x2 / 42.0));
-  return Math.sin(x) / x;
+  if (x2 < 0.25) {
+    return 1.0 - x2 / 6.0 * (1.0 - x2 / 20.0 * (1.0 - x2 / 42.0 * (1.0 - x2 / 72.0 * (1.0 - x2 / 110.0 * (1.0 - x2 / 156.0)))));
+  }
+  return (cj * sk - sj * ck) / x;
 }
 
 /**
@@ -150,7 +157,7 @@ function segmentSlope(
         xi += lr * ai - li * ar;
       }
       const ck = getf(rec, hc + k), sk = getf(rec, hs + k);
-      const f = dt * sinc(0.5 * (lj - getf(rec, lam + k)) * dt);
+      const f = dt * sincOfDifference(0.5 * (lj - getf(rec, lam + k)) * dt, cj, sj, ck, sk);
       const fr = f * (cj * ck - sj * sk), fi = f * (cj * sk + sj * ck);
       // (-i)(fr + i fi) = fi - i fr
       const pr = fi, pi = -fr;

@@ -10,10 +10,10 @@
 // Method: the eigendecomposition of the generator, exp(-i H dt) = Vf exp(-i lam dt) Vf^dag.
 // H is tridiagonal; the diagonal phase gauge D = diag(e^{i k phi}), phi = arg W, makes it
 // real: H = D S D^dag with S real symmetric tridiagonal (off-diagonal pi (1+eps) |W| sqrt(k)).
-// S is diagonalised by cyclic Jacobi rotations (Golub & Van Loan, Matrix Computations,
-// 4th ed., algorithms 8.5.1-8.5.3), which yields orthogonal eigenvectors to rounding for
-// any spectrum, so every segment propagator is unitary to rounding and exact to rounding
-// with no step-size or series-length choice; the same eigenbasis gives the exact
+// S is diagonalised by the implicit QL algorithm with shifts (tql2), which yields
+// orthonormal eigenvectors to rounding for any spectrum, so every segment propagator is
+// unitary to rounding and exact to rounding with no step-size or series-length choice; the
+// same eigenbasis gives the exact
 // derivative by divided differences (ladder-sweep.ts), which a series or Pade
 // exponential would need a second, doubled-size exponential for (Van Loan 1978).
 //
@@ -44,66 +44,66 @@ export function recordSize(d: i32): i32 { return d * d + 3 * d + 2; }
 @inline export function recPhi(d: i32): i32 { return d * d + 3 * d; }
 
 /**
- * Diagonalise S (d x d, row-major, overwritten: its diagonal ends as the eigenvalues) by
- * cyclic Jacobi sweeps, accumulating the rotations into V (set to the identity first).
+ * Diagonalise the symmetric tridiagonal matrix with diagonal diag[d] and off-diagonal
+ * off[d] (off[k] couples k and k+1; off[d-1] is scratch) by the implicit QL algorithm with
+ * shifts (EISPACK tql2; Press et al., Numerical Recipes, 3rd ed., section 11.4, routine
+ * tqli): diag ends as the eigenvalues, and the rotations accumulate into V (set to the
+ * identity first), so V's columns are orthonormal eigenvectors to rounding.
  */
-export function jacobiEigen(d: i32, sPtr: usize, vPtr: usize): void {
-  let norm2: f64 = 0.0;
-  for (let r = 0; r < d; r++) {
-    for (let c = 0; c < d; c++) {
-      const x = getf(sPtr, r * d + c);
-      norm2 += x * x;
-      setf(vPtr, r * d + c, r == c ? 1.0 : 0.0);
-    }
-  }
-  // Off-diagonal entries below 1e-18 of the norm change no eigenvalue or eigenvector
-  // component by more than rounding; quadratic convergence reaches it in a few sweeps.
-  const tol = 1e-18 * Math.sqrt(norm2);
-  for (let sweep = 0; sweep < 40; sweep++) {
-    let largest: f64 = 0.0;
-    for (let p = 0; p < d - 1; p++) {
-      for (let q = p + 1; q < d; q++) {
-        const x = Math.abs(getf(sPtr, p * d + q));
-        if (x > largest) largest = x;
+export function tridiagonalEigen(d: i32, diagPtr: usize, offPtr: usize, vPtr: usize): void {
+  for (let r = 0; r < d; r++) for (let c = 0; c < d; c++) setf(vPtr, r * d + c, r == c ? 1.0 : 0.0);
+  setf(offPtr, d - 1, 0.0);
+  for (let l = 0; l < d; l++) {
+    for (let iteration = 0; iteration < 60; iteration++) {
+      // The first negligible off-diagonal element at or after l splits the matrix there.
+      let m = l;
+      for (; m < d - 1; m++) {
+        const dd = Math.abs(getf(diagPtr, m)) + Math.abs(getf(diagPtr, m + 1));
+        if (Math.abs(getf(offPtr, m)) <= 1.1102230246251565e-16 * dd) break;
       }
-    }
-    if (largest <= tol) break;
-    for (let p = 0; p < d - 1; p++) {
-      for (let q = p + 1; q < d; q++) {
-        const apq = getf(sPtr, p * d + q);
-        if (Math.abs(apq) <= tol) continue;
-        const app = getf(sPtr, p * d + p);
-        const aqq = getf(sPtr, q * d + q);
-        const theta = (aqq - app) / (2.0 * apq);
-        // t = tan of the rotation angle, the smaller root (stable for any theta).
-        let t: f64;
-        if (Math.abs(theta) > 1e150) t = 0.5 / theta;
-        else t = (theta >= 0.0 ? 1.0 : -1.0) / (Math.abs(theta) + Math.sqrt(theta * theta + 1.0));
-        const c = 1.0 / Math.sqrt(t * t + 1.0);
-        const s = t * c;
-        setf(sPtr, p * d + p, app - t * apq);
-        setf(sPtr, q * d + q, aqq + t * apq);
-        setf(sPtr, p * d + q, 0.0);
-        setf(sPtr, q * d + p, 0.0);
+      if (m == l) break;
+      // Shift from the leading 2 x 2 block (Wilkinson's choice).
+      let g = (getf(diagPtr, l + 1) - getf(diagPtr, l)) / (2.0 * getf(offPtr, l));
+      let r = Math.sqrt(g * g + 1.0);
+      g = getf(diagPtr, m) - getf(diagPtr, l) + getf(offPtr, l) / (g + (g >= 0.0 ? r : -r));
+      let s: f64 = 1.0, c: f64 = 1.0, p: f64 = 0.0;
+      let underflow = false;
+      for (let i = m - 1; i >= l; i--) {
+        let f = s * getf(offPtr, i);
+        const b = c * getf(offPtr, i);
+        r = Math.sqrt(f * f + g * g);
+        setf(offPtr, i + 1, r);
+        if (r == 0.0) {
+          setf(diagPtr, i + 1, getf(diagPtr, i + 1) - p);
+          setf(offPtr, m, 0.0);
+          underflow = true;
+          break;
+        }
+        s = f / r;
+        c = g / r;
+        g = getf(diagPtr, i + 1) - p;
+        r = (getf(diagPtr, i) - g) * s + 2.0 * c * b;
+        p = s * r;
+        setf(diagPtr, i + 1, g + p);
+        g = c * r - b;
         for (let k = 0; k < d; k++) {
-          if (k != p && k != q) {
-            const akp = getf(sPtr, k * d + p), akq = getf(sPtr, k * d + q);
-            const nkp = c * akp - s * akq, nkq = s * akp + c * akq;
-            setf(sPtr, k * d + p, nkp); setf(sPtr, p * d + k, nkp);
-            setf(sPtr, k * d + q, nkq); setf(sPtr, q * d + k, nkq);
-          }
-          const vkp = getf(vPtr, k * d + p), vkq = getf(vPtr, k * d + q);
-          setf(vPtr, k * d + p, c * vkp - s * vkq);
-          setf(vPtr, k * d + q, s * vkp + c * vkq);
+          f = getf(vPtr, k * d + i + 1);
+          const z = getf(vPtr, k * d + i);
+          setf(vPtr, k * d + i + 1, s * z + c * f);
+          setf(vPtr, k * d + i, c * z - s * f);
         }
       }
+      if (underflow) continue;
+      setf(diagPtr, l, getf(diagPtr, l) - p);
+      setf(offPtr, l, g);
+      setf(offPtr, m, 0.0);
     }
   }
 }
 
 /**
  * Fill a segment record (see recordSize) for drive (iHz, qHz), detuning, scale = 1 + eps
- * and anharmonicity alpha (Hz), segment length dt; sPtr is d*d f64 of scratch.
+ * and anharmonicity alpha (Hz), segment length dt; sPtr is 2 d f64 of scratch.
  */
 export function segmentEigen(
   d: i32, dt: f64, iHz: f64, qHz: f64, detuning: f64, scale: f64, alpha: f64,
@@ -112,24 +112,22 @@ export function segmentEigen(
   const r = Math.sqrt(iHz * iHz + qHz * qHz);
   const cphi = r > 0.0 ? iHz / r : 1.0;
   const sphi = r > 0.0 ? qHz / r : 0.0;
-  for (let k = 0; k < d * d; k++) setf(sPtr, k, 0.0);
+  const diagPtr = sPtr, offPtr = sPtr + (<usize>d << 3);
   for (let k = 0; k < d; k++) {
     const fk = <f64>k;
-    setf(sPtr, k * d + k, TWO_PI * (detuning * fk + 0.5 * alpha * fk * (fk - 1.0)));
+    setf(diagPtr, k, TWO_PI * (detuning * fk + 0.5 * alpha * fk * (fk - 1.0)));
   }
   const drive = Math.PI * scale * r;
-  for (let k = 1; k < d; k++) {
-    const off = drive * Math.sqrt(<f64>k);
-    setf(sPtr, (k - 1) * d + k, off);
-    setf(sPtr, k * d + k - 1, off);
-  }
-  jacobiEigen(d, sPtr, recPtr);
+  for (let k = 1; k < d; k++) setf(offPtr, k - 1, drive * Math.sqrt(<f64>k));
+  tridiagonalEigen(d, diagPtr, offPtr, recPtr);
   const lam = recLam(d), hc = recHc(d), hs = recHs(d);
   for (let j = 0; j < d; j++) {
-    const l = getf(sPtr, j * d + j);
+    const l = getf(diagPtr, j);
     setf(recPtr, lam + j, l);
-    setf(recPtr, hc + j, Math.cos(0.5 * l * dt));
-    setf(recPtr, hs + j, -Math.sin(0.5 * l * dt));
+    // One range reduction for both (musl's sincos).
+    NativeMath.sincos(0.5 * l * dt);
+    setf(recPtr, hc + j, NativeMath.sincos_cos);
+    setf(recPtr, hs + j, -NativeMath.sincos_sin);
   }
   setf(recPtr, recPhi(d), cphi);
   setf(recPtr, recPhi(d) + 1, sphi);

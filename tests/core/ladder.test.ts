@@ -81,7 +81,7 @@ describe('ladder segment propagator', () => {
     }
   });
 
-  // Source: mathjs expm, at zero drive (diagonal H: the Jacobi sweep must stop at once);
+  // Source: mathjs expm, at zero drive (diagonal H: the QL iteration must stop at once);
   // phases up to 8 rad on the top level, so rounding of a few 1e-15.
   it('matches mathjs expm at zero drive', () => {
     const member: LadderMember = { detuning: 3e6, amplitudeError: 0, anharmonicityError: 0, weight: 1 };
@@ -241,6 +241,24 @@ describe('ladder gradient', () => {
       });
     }
   }
+
+  // Source: the oracle, where the divided differences meet equal eigenvalues: samples of zero
+  // drive, and a member whose levels 1 and 2 coincide in the frame (Delta = -alpha).
+  it('equals the oracle at zero-drive samples and degenerate levels', () => {
+    const system: LadderSystem = { levels: 4, anharmonicity: -2e8 };
+    const pulse = randomPulse(8, 5e-10, 1e8);
+    pulse.i[0] = pulse.q[0] = pulse.i[5] = pulse.q[5] = 0;
+    const members: LadderMember[] = [
+      { detuning: 2e8, amplitudeError: 0, anharmonicityError: 0, weight: 1 },
+      { detuning: 0, amplitudeError: 0.05, anharmonicityError: 0, weight: 1 },
+    ];
+    for (const { target, free } of targets) {
+      const got = ladderFigureAndGradient(target, pulse, members, system, { freePhaseAfter: free });
+      const want = oracle.ladderEnsembleGradient(target, pulse, members, system, free);
+      expectClose(got.mean, want.mean, { rel: 1e-12 }, 'mean');
+      expect(normwiseRelativeError([...got.gradI, ...got.gradQ], [...want.gradI, ...want.gradQ])).toBeLessThan(1e-12);
+    }
+  });
 
   // Source: central finite differences of the kernels' own figure (O(h^2) error).
   it('equals central differences to 1e-6 relative (4 levels, free phase, three members)', () => {
