@@ -68,10 +68,13 @@ function ladderCore(core: Core): LadderExports {
   return core.exports as unknown as LadderExports;
 }
 
-/** Check a system description (levels 2..8, finite anharmonicity). */
-export function checkSystem(system: LadderSystem): void {
-  if (!Number.isInteger(system.levels) || system.levels < MIN_LEVELS || system.levels > MAX_LEVELS) {
-    throw new ArgumentError(`system.levels: ${describeValue(system.levels)} is not allowed; an integer from ${MIN_LEVELS} to ${MAX_LEVELS}`);
+/** Most levels of the truncation check (levels + 2 of the largest system). */
+export const TRUNCATION_CHECK_MAX_LEVELS = MAX_LEVELS + 2;
+
+/** Check a system description (levels 2..maxLevels, finite anharmonicity). */
+export function checkSystem(system: LadderSystem, maxLevels = MAX_LEVELS): void {
+  if (!Number.isInteger(system.levels) || system.levels < MIN_LEVELS || system.levels > maxLevels) {
+    throw new ArgumentError(`system.levels: ${describeValue(system.levels)} is not allowed; an integer from ${MIN_LEVELS} to ${maxLevels}`);
   }
   if (!Number.isFinite(system.anharmonicity)) {
     throw new ArgumentError(`system.anharmonicity: ${describeValue(system.anharmonicity)} is not a finite number of Hz`);
@@ -128,8 +131,37 @@ export function asLadderMembers(members: readonly Member[]): LadderMember[] {
 export function evaluateLadder(
   target: Target, pulse: Pulse, members: readonly LadderMember[], system: LadderSystem, options: LadderOptions = {},
 ): LadderEvaluation {
+  return evaluateUpTo(target, pulse, members, system, options, MAX_LEVELS);
+}
+
+/** The figures of a pulse on `levels + 2` levels beside those on `levels`, to see whether the truncation matters. */
+export interface TruncationCheck {
+  levels: number;
+  meanInfidelity: number;
+  meanLeakage: number;
+  /** True when the mean infidelity or the mean leakage changes by more than a factor two. */
+  differs: boolean;
+}
+
+/** Re-evaluate on two more levels (up to 10) and compare with the evaluation on the system's levels. */
+export function truncationCheck(
+  target: Target, pulse: Pulse, members: readonly LadderMember[], system: LadderSystem, options: LadderOptions = {},
+  evaluation = evaluateLadder(target, pulse, members, system, options),
+): TruncationCheck {
+  const more = evaluateUpTo(target, pulse, members, { ...system, levels: system.levels + 2 }, options, TRUNCATION_CHECK_MAX_LEVELS);
+  // Below 1e-15 a change is rounding, not truncation.
+  const apart = (a: number, b: number): boolean => a > 2 * b + 1e-15 || b > 2 * a + 1e-15;
+  return {
+    levels: more.levels, meanInfidelity: more.meanInfidelity, meanLeakage: more.meanLeakage,
+    differs: apart(more.meanInfidelity, evaluation.meanInfidelity) || apart(more.meanLeakage, evaluation.meanLeakage),
+  };
+}
+
+function evaluateUpTo(
+  target: Target, pulse: Pulse, members: readonly LadderMember[], system: LadderSystem, options: LadderOptions, maxLevels: number,
+): LadderEvaluation {
   checkPulse(pulse);
-  checkSystem(system);
+  checkSystem(system, maxLevels);
   const enc = encodeLadderMembers(members, system);
   const core = getCore();
   const ex = ladderCore(core);

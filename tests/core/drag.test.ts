@@ -5,7 +5,7 @@
 import { describe, expect, it } from 'vitest';
 import { ArgumentError } from '../../src/core/errors.ts';
 import { calibrateDrag, dragPulse, peakAmplitude, type DragEnvelope } from '../../src/core/drag.ts';
-import { evaluateLadder, type LadderMember } from '../../src/core/ladder.ts';
+import { evaluateLadder, truncationCheck, type LadderMember } from '../../src/core/ladder.ts';
 import { parseLadderSpec } from '../../src/core/spec-system.ts';
 import type { Target } from '../../src/core/types.ts';
 import { expectClose } from '../reference/tolerance.ts';
@@ -99,5 +99,26 @@ describe('DRAG calibration', () => {
       expect(drag.parameters.beta).toBeLessThan(1.5);
       expect(drag.pulse.metadata.figures?.meanLeakage).toBe(drag.evaluation.meanLeakage);
     }
+  });
+
+  // Source: the ladder model itself: on three levels |2> is the top, so its shift by |3>
+  // (coupling sqrt(3)|W|/2 at 2 alpha) is missing; a pulse tuned there to 2e-8 is flagged by
+  // the check on five levels, while a slow pulse tuned on five levels agrees on seven.
+  it('truncation check flags a pulse tuned on too few levels, and not a converged one', () => {
+    const at = (duration: number, segments: number, levels: number) => {
+      const ladder = parseLadderSpec({ target: { gate: { axis: [1, 0, 0], angleDeg: 180 } }, duration, segments, rabiMax: 2.5e8, system: { levels, anharmonicity: -2.12e8 } });
+      const drag = calibrateDrag(ladder, { envelope: 'cosine' });
+      return { drag, check: truncationCheck(ladder.problem.target, drag.pulse, ladder.members, ladder.system, {}, drag.evaluation), ladder };
+    };
+    const tuned = at(2e-8, 48, 3);
+    expect(tuned.drag.evaluation.meanInfidelity).toBeLessThan(1e-7);
+    expect(tuned.check.levels).toBe(5);
+    expect(tuned.check.meanInfidelity).toBeGreaterThan(10 * tuned.drag.evaluation.meanInfidelity);
+    expect(tuned.check.differs).toBe(true);
+    const five = evaluateLadder(tuned.ladder.problem.target, tuned.drag.pulse, tuned.ladder.members, { levels: 5, anharmonicity: -2.12e8 });
+    expect(tuned.check.meanInfidelity).toBe(five.meanInfidelity);
+    const slow = at(5e-8, 120, 5);
+    expect(slow.check.differs).toBe(false);
+    expectClose(slow.check.meanInfidelity, slow.drag.evaluation.meanInfidelity, { rel: 0.1 }, 'five and seven levels');
   });
 });
