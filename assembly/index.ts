@@ -9,4 +9,4 @@ export {
   optInit, optStep, optObjective, optGradientNorm, optVariables, optEvaluations, optIterations,
 } from './lbfgs';
 export { ladderPropagator } from './ladder';
-export { ladderFigure, ladderGradient, ladderWorkspaceSize } from './ladder-sweep';
+export { ladderFigure, ladderGradient, ladderPopulations, ladderWorkspaceSize } from './ladder-sweep';

@@ -199,3 +199,28 @@ function segmentSlope(
   store<f64>(gI, load<f64>(gI) + dI);
   store<f64>(gQ, load<f64>(gQ) + dQ);
 }
+
+/**
+ * Populations of every level after each sample for one member, starting from the state
+ * H|0> of the target block (8 f64, as for the figures): out[(n + 1) d], sample-major.
+ * Workspace: ladderWorkspaceSize(1, d) f64.
+ */
+export function ladderPopulations(
+  iPtr: usize, qPtr: usize, n: i32, dt: f64, d: i32,
+  scale: f64, detuning: f64, alpha: f64, targetPtr: usize, outPtr: usize, workPtr: usize,
+): void {
+  const rec = workPtr;
+  const x = at(rec, recordSize(d));
+  const s = at(x, 4 * d);
+  const tmp = at(s, d * d);
+  ladderStart(d, targetPtr, x);
+  for (let k = 0; k <= n; k++) {
+    for (let r = 0; r < d; r++) {
+      const re = getf(x, 4 * r), im = getf(x, 4 * r + 1);
+      setf(outPtr, k * d + r, re * re + im * im);
+    }
+    if (k == n) break;
+    segmentEigen(d, dt, getf(iPtr, k), getf(qPtr, k), detuning, scale, alpha, rec, s);
+    applySegment(d, rec, x, false, tmp);
+  }
+}

@@ -4,7 +4,7 @@
 // Validation happens here; the kernels trust their inputs.
 import { ArgumentError, describeValue } from './errors.ts';
 import { checkPulse, encodeTarget } from './encode.ts';
-import type { Member, Pulse, Target } from './types.ts';
+import type { Member, Pulse, Target, Vec3 } from './types.ts';
 import { getCore, type Core } from './wasm.ts';
 
 /** Fewest and most levels of a ladder. */
@@ -61,6 +61,8 @@ interface LadderExports {
   ladderGradient(iPtr: number, qPtr: number, n: number, dt: number, d: number, scalePtr: number, detPtr: number,
     alphaPtr: number, wPtr: number, m: number, targetPtr: number, mode: number, outPtr: number,
     gIPtr: number, gQPtr: number, workPtr: number): number;
+  ladderPopulations(iPtr: number, qPtr: number, n: number, dt: number, d: number, scale: number, detuning: number,
+    alpha: number, targetPtr: number, outPtr: number, workPtr: number): void;
   ladderWorkspaceSize(n: number, d: number): number;
 }
 
@@ -279,4 +281,25 @@ export function ladderSegmentPropagator(
     return core.read(outPtr, 2 * d * d);
   });
   return Array.from({ length: d }, (_, r) => Array.from({ length: d }, (_, c) => [flat[2 * (r * d + c)], flat[2 * (r * d + c) + 1]] as [number, number]));
+}
+
+/** Population of every level after each sample for one member, from the qubit state with Bloch vector `from`: (N+1) x levels, sample-major. */
+export function ladderPopulations(pulse: Pulse, member: LadderMember, system: LadderSystem, from: Vec3 = [0, 0, 1]): Float64Array {
+  checkPulse(pulse);
+  checkSystem(system);
+  const norm = Math.hypot(from[0], from[1], from[2]);
+  if (!(norm > 0) || !Number.isFinite(norm)) throw new ArgumentError(`from: ${describeValue(from)} is not allowed; give a non-zero Bloch vector`);
+  const enc = encodeLadderMembers([{ ...member, weight: 1 }], system);
+  const core = getCore();
+  const ex = ladderCore(core);
+  const n = pulse.i.length, d = system.levels;
+  return core.job(() => {
+    const iPtr = core.put(pulse.i), qPtr = core.put(pulse.q);
+    // H rotates |0> onto `from`; G is unused.
+    const tPtr = core.put(encodeTarget({ kind: 'state', from, to: from }));
+    const outPtr = core.alloc((n + 1) * d);
+    const workPtr = core.alloc(ex.ladderWorkspaceSize(1, d));
+    ex.ladderPopulations(iPtr, qPtr, n, pulse.dt, d, enc.scale[0], enc.detuning[0], enc.alpha[0], tPtr, outPtr, workPtr);
+    return core.read(outPtr, (n + 1) * d);
+  });
 }

@@ -7,11 +7,12 @@ import { describe, expect, it } from 'vitest';
 import { add, complex, expm, identity as mIdentity, matrix, multiply as mmul, type Complex, type Matrix } from 'mathjs';
 import { evaluateMembers } from '../../src/core/api.ts';
 import {
-  evaluateLadder, ladderFigureAndGradient, ladderSegmentPropagator, type LadderMember, type LadderSystem,
+  evaluateLadder, ladderFigureAndGradient, ladderPopulations, ladderSegmentPropagator, type LadderMember, type LadderSystem,
 } from '../../src/core/ladder.ts';
 import { mulberry32 } from '../../src/core/start.ts';
 import type { Pulse, Target } from '../../src/core/types.ts';
 import * as oracle from '../reference/ladder-oracle.ts';
+import { blochToSpinor } from '../reference/oracle.ts';
 import { expectClose, normwiseRelativeError } from '../reference/tolerance.ts';
 
 const rand = mulberry32(20261202);
@@ -215,6 +216,30 @@ describe('ladder figures', () => {
     }
     const best = oracle.ladderFigures(oracle.mul(rz(4, got.phaseAfter ?? NaN), u), target).infidelity;
     expectClose(got.infidelity, best, { abs: 1e-14 }, 'figure at the reported phase');
+  });
+});
+
+describe('ladder populations', () => {
+  // Source: the oracle's propagators of the pulse's first k samples applied to the start
+  // state; populations sum to 1 (unitarity).
+  it('after each sample equal the oracle\'s, from any qubit state', () => {
+    const system: LadderSystem = { levels: 5, anharmonicity: -2e8 };
+    const pulse = randomPulse(9, 1e-9, 8e7);
+    const member = randomMembers(1)[0];
+    const from: [number, number, number] = [0.3, -0.5, 0.8];
+    const got = ladderPopulations(pulse, member, system, from);
+    const psi = blochToSpinor(from);
+    for (let k = 0; k <= 9; k++) {
+      const u = oracle.ladderPulsePropagator({ ...pulse, i: pulse.i.slice(0, k), q: pulse.q.slice(0, k) }, member, system);
+      let total = 0;
+      for (let r = 0; r < 5; r++) {
+        const re = u.re[r * 5] * psi.re[0] - u.im[r * 5] * psi.im[0] + u.re[r * 5 + 1] * psi.re[1] - u.im[r * 5 + 1] * psi.im[1];
+        const im = u.re[r * 5] * psi.im[0] + u.im[r * 5] * psi.re[0] + u.re[r * 5 + 1] * psi.im[1] + u.im[r * 5 + 1] * psi.re[1];
+        expectClose(got[k * 5 + r], re * re + im * im, { abs: 1e-13 }, `level ${r} after ${k} samples`);
+        total += got[k * 5 + r];
+      }
+      expectClose(total, 1, { abs: 1e-14 }, 'total population');
+    }
   });
 });
 
