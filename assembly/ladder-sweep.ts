@@ -49,7 +49,7 @@ export function ladderFigure(
   const x = at(rec, recordSize(d));
   const s = at(x, 4 * d);
   const tmp = at(s, d * d);
-  const adj = at(tmp, 4 * d);
+  const adj = at(tmp, 8 * d);
   const res = at(adj, 4 * d);
   const g = at(res, 4);
   let mean: f64 = 0.0;
@@ -84,7 +84,7 @@ export function ladderGradient(
   const states = at(recs, n * rs);
   const s = at(states, (n + 1) * 4 * d);
   const tmp = at(s, d * d);
-  const adj = at(tmp, 4 * d);
+  const adj = at(tmp, 8 * d);
   const res = at(adj, 4 * d);
   const g = at(res, 4);
   const la = at(g, 8);
@@ -142,8 +142,9 @@ function segmentSlope(
   d: i32, dt: f64, scale: f64, rec: usize, xPtr: usize, lPtr: usize,
   la: usize, ll: usize, y: usize, t: usize, gI: usize, gQ: usize,
 ): void {
-  toEigenbasis(d, rec, xPtr, la);
-  toEigenbasis(d, rec, lPtr, ll);
+  // t is free until T = V Y below: scratch for the changes of basis.
+  toEigenbasis(d, rec, xPtr, la, t);
+  toEigenbasis(d, rec, lPtr, ll, t);
   const lam = recLam(d), hc = recHc(d), hs = recHs(d);
   // Y_jk = -i F_jk sum_c conj(l'_jc) a'_kc
   for (let j = 0; j < d; j++) {

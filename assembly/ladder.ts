@@ -135,37 +135,42 @@ export function segmentEigen(
 
 /**
  * out (d x 2 complex) = V^T D^dag x: the columns x in the eigenbasis of the record's H.
- * out must not alias x.
+ * yPtr holds 4 d f64 of scratch; out must alias neither x nor y.
  */
-export function toEigenbasis(d: i32, recPtr: usize, xPtr: usize, outPtr: usize): void {
+export function toEigenbasis(d: i32, recPtr: usize, xPtr: usize, outPtr: usize, yPtr: usize): void {
   const cphi = getf(recPtr, recPhi(d)), sphi = getf(recPtr, recPhi(d) + 1);
-  for (let j = 0; j < 4 * d; j++) setf(outPtr, j, 0.0);
-  // e^{-i k phi} by repeated multiplication; d <= 8 keeps the rounding at a few ulps.
+  // y = D^dag x, with e^{-i k phi} by repeated multiplication (d <= 10: a few ulps).
   let ck: f64 = 1.0, sk: f64 = 0.0;
   for (let k = 0; k < d; k++) {
     for (let col = 0; col < 2; col++) {
       const o = 2 * (2 * k + col);
       const xr = getf(xPtr, o), xi = getf(xPtr, o + 1);
-      const yr = ck * xr + sk * xi, yi = ck * xi - sk * xr;
-      for (let j = 0; j < d; j++) {
-        const v = getf(recPtr, k * d + j);
-        const p = 2 * (2 * j + col);
-        setf(outPtr, p, getf(outPtr, p) + v * yr);
-        setf(outPtr, p + 1, getf(outPtr, p + 1) + v * yi);
-      }
+      setf(yPtr, o, ck * xr + sk * xi);
+      setf(yPtr, o + 1, ck * xi - sk * xr);
     }
     const nc = ck * cphi - sk * sphi;
     sk = sk * cphi + ck * sphi;
     ck = nc;
   }
+  // out_j = sum_k V_kj y_k, both columns at once, summed in locals.
+  for (let j = 0; j < d; j++) {
+    let ar: f64 = 0.0, ai: f64 = 0.0, br: f64 = 0.0, bi: f64 = 0.0;
+    for (let k = 0; k < d; k++) {
+      const v = getf(recPtr, k * d + j);
+      ar += v * getf(yPtr, 4 * k); ai += v * getf(yPtr, 4 * k + 1);
+      br += v * getf(yPtr, 4 * k + 2); bi += v * getf(yPtr, 4 * k + 3);
+    }
+    setf(outPtr, 4 * j, ar); setf(outPtr, 4 * j + 1, ai);
+    setf(outPtr, 4 * j + 2, br); setf(outPtr, 4 * j + 3, bi);
+  }
 }
 
 /**
  * x (d x 2 complex) <- exp(-i H dt) x, or exp(+i H dt) x when `inverse`, from a record;
- * tmpPtr holds 4 d f64.
+ * tmpPtr holds 8 d f64.
  */
 export function applySegment(d: i32, recPtr: usize, xPtr: usize, inverse: bool, tmpPtr: usize): void {
-  toEigenbasis(d, recPtr, xPtr, tmpPtr);
+  toEigenbasis(d, recPtr, xPtr, tmpPtr, tmpPtr + (<usize>(4 * d) << 3));
   const hc = recHc(d), hs = recHs(d);
   for (let j = 0; j < d; j++) {
     const c = getf(recPtr, hc + j), s = getf(recPtr, hs + j);
