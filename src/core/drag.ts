@@ -136,7 +136,8 @@ export interface DragCalibration {
  */
 export function calibrateDrag(spec: LadderSpec, options: DragCalibrationOptions): DragCalibration {
   const { problem, system, members, freePhaseAfter } = spec;
-  const tune = options.tune ?? ['amplitudeScale', 'beta', 'driveDetuning'];
+  // Without an anharmonicity there is no DRAG quadrature to tune.
+  const tune = (options.tune ?? ['amplitudeScale', 'beta', 'driveDetuning']).filter((knob) => knob !== 'beta' || system.anharmonicity !== 0);
   const limits: DragLimits = { duration: problem.duration, segments: problem.segments, rabiMax: problem.rabiMax };
   const base: DragParameters = {
     envelope: options.envelope, amplitudeScale: 1, beta: system.anharmonicity === 0 ? 0 : 1, driveDetuning: 0, ...options.start,
@@ -155,13 +156,13 @@ export function calibrateDrag(spec: LadderSpec, options: DragCalibrationOptions)
     throw new ArgumentError(`rabiMax: ${problem.rabiMax} Hz is too low for a ${options.envelope} pulse of this angle in ${problem.duration} s ` +
       `(its peak is ${peakAmplitude(nominal).toPrecision(3)} Hz); raise rabiMax or the duration`);
   }
-  const options2 = { freePhaseAfter };
+  const figureOptions = { freePhaseAfter };
   const figure = (x: number[]): number => {
     const pulse = dragPulse(problem.target, limits, system.anharmonicity, parametersOf(x));
     const peak = peakAmplitude(pulse);
     // Above the limit: worse than any allowed pulse, and more so the further above.
     if (peak > problem.rabiMax) return 1 + peak / problem.rabiMax;
-    return evaluateLadder(problem.target, pulse, members, system, options2).meanInfidelity;
+    return evaluateLadder(problem.target, pulse, members, system, figureOptions).meanInfidelity;
   };
   const x0 = tune.map((knob) => base[knob] / scale[knob]);
   const result = nelderMead(figure, x0, {
@@ -174,7 +175,7 @@ export function calibrateDrag(spec: LadderSpec, options: DragCalibrationOptions)
     throw new ArgumentError(`rabiMax: ${problem.rabiMax} Hz is too low for the ${options.envelope} DRAG pulse in ${problem.duration} s ` +
       `(the search found no pulse under it); raise rabiMax or the duration`);
   }
-  const evaluation = evaluateLadder(problem.target, pulse, members, system, options2);
+  const evaluation = evaluateLadder(problem.target, pulse, members, system, figureOptions);
   pulse.metadata.figures = { meanInfidelity: evaluation.meanInfidelity, worstInfidelity: evaluation.worstInfidelity, meanLeakage: evaluation.meanLeakage };
   return { pulse, parameters, evaluation, evaluations: result.evaluations, atPeakLimit: peakAmplitude(pulse) > 0.999 * problem.rabiMax };
 }

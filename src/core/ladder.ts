@@ -7,8 +7,9 @@ import { checkPulse, encodeTarget } from './encode.ts';
 import type { Member, Pulse, Target, Vec3 } from './types.ts';
 import { getCore, type Core } from './wasm.ts';
 
-/** Fewest and most levels of a ladder. */
+/** Fewest levels of a ladder (2: the qubit). */
 export const MIN_LEVELS = 2;
+/** Most levels of a ladder in a spec. */
 export const MAX_LEVELS = 8;
 
 /** The system driven: `levels` of a ladder with anharmonicity (Hz; negative for a transmon). */

@@ -101,6 +101,17 @@ describe('DRAG calibration', () => {
     }
   });
 
+  // Source: docs/physics.md section 1 (the resonant area rotates by the target angle): on a
+  // qubit spec (no system section) there is no quadrature to tune, and the calibrated pulse
+  // is the exact rotation.
+  it('on a qubit spec tunes amplitude and detuning only, and reaches the exact rotation', () => {
+    const qubit = parseLadderSpec({ target: { gate: { axis: [0, 1, 0], angleDeg: 90 } }, duration: 4e-8, segments: 40, rabiMax: 5e7 });
+    const drag = calibrateDrag(qubit, { envelope: 'gaussian', maxEvaluations: 60 });
+    expect(drag.parameters.beta).toBe(0);
+    expect(drag.evaluation.meanInfidelity).toBeLessThan(1e-12);
+    expect(drag.evaluation.meanLeakage).toBe(0);
+  });
+
   // Source: the ladder model itself: on three levels |2> is the top, so its shift by |3>
   // (coupling sqrt(3)|W|/2 at 2 alpha) is missing; a pulse tuned there to 2e-8 is flagged by
   // the check on five levels, while a slow pulse tuned on five levels agrees on seven.
