@@ -1,12 +1,14 @@
 // The benchmark: speed figures measured in one run, printed as a table (or one JSON
 // object with --json). Never a test: figures vary 10-30 % with the machine's load.
 //   npm run bench            table for people
-//   npm run bench -- --json  {"objectiveGradient": [...], "design": [...], "maps": [...], "app": {...}}
+//   npm run bench -- --json  {"objectiveGradient": [...], "ladder": [...], "dragCalibration": [...], "design": [...], "maps": [...], "app": {...}}
 //   npm run bench -- --no-app  without the browser figures (bench/app-bench.ts)
 import { readFileSync, readdirSync } from 'node:fs';
 import { design, evaluateMembers, robustnessMap } from '../src/core/api.ts';
 import { prepareGradientJob } from '../src/core/gradient.ts';
+import { calibrateDrag } from '../src/core/drag.ts';
 import { asLadderMembers, evaluateLadder, prepareLadderGradientJob } from '../src/core/ladder.ts';
+import { parseLadderSpec } from '../src/core/spec-system.ts';
 import type { Member, Pulse, Target } from '../src/core/types.ts';
 import { getCore } from '../src/core/wasm.ts';
 import { ensembleGradient as oracleGradient, memberInfidelity } from '../tests/reference/oracle.ts';
@@ -108,6 +110,21 @@ for (const levels of [3, 5]) {
   }
 }
 
+// 1c. Calibration of the DRAG family on an invented lab's 15 ns transmon X(180) (5 levels, 3 members).
+const dragSpec = parseLadderSpec({
+  target: { gate: { axis: [1, 0, 0], angleDeg: 180 } }, duration: 1.5e-8, segments: 36, rabiMax: 2.5e8,
+  system: { levels: 5, anharmonicity: -2e8 }, ensemble: { amplitudeError: { min: -0.01, max: 0.01, points: 3 } },
+});
+const dragCalibration: { envelope: string; ms: number; evaluations: number; meanInfidelity: number; meanLeakage: number }[] = [];
+log('\nDRAG calibration (amplitude, beta, drive detuning by Nelder-Mead), 15 ns X(180), 5 levels x 3 members, medians');
+for (const envelope of ['gaussian', 'cosine'] as const) {
+  let last = calibrateDrag(dragSpec, { envelope });
+  const ms = median(() => void (last = calibrateDrag(dragSpec, { envelope })), 9, 1);
+  const row = { envelope, ms, evaluations: last.evaluations, meanInfidelity: last.evaluation.meanInfidelity, meanLeakage: last.evaluation.meanLeakage };
+  dragCalibration.push(row);
+  log(`${envelope.padEnd(9)} ${ms.toFixed(1).padStart(7)} ms   ${row.evaluations} evaluations   mean infidelity ${row.meanInfidelity.toExponential(2)}   leakage ${row.meanLeakage.toExponential(2)}`);
+}
+
 // 2. Robustness maps (figure only).
 log('\nrobustness maps (figure only), medians');
 log('grid        segments   ms        ns per member-segment');
@@ -155,5 +172,5 @@ if (!process.argv.includes('--no-app')) {
 }
 
 if (json) {
-  process.stdout.write(JSON.stringify({ objectiveGradient, ladder, design: designs, maps, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs }, app }) + '\n');
+  process.stdout.write(JSON.stringify({ objectiveGradient, ladder, dragCalibration, design: designs, maps, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs }, app }) + '\n');
 }
