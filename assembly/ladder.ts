@@ -20,9 +20,6 @@
 // Complex blocks are interleaved (re, im) f64 pairs; a d x 2 block ("columns") stores
 // element (r, c) at f64 offset 2 (2 r + c).
 
-/** Largest number of levels the ladder kernels accept. */
-export const LADDER_MAX_LEVELS: i32 = 8;
-
 const TWO_PI: f64 = 2.0 * Math.PI;
 
 @inline export function getf(ptr: usize, k: i32): f64 { return load<f64>(ptr + (<usize>k << 3)); }
