@@ -1,5 +1,6 @@
 // Exact propagation of one piecewise-constant segment of a driven d-level ladder
-// (a transmon, d = 2..8), in the frame of the drive with |0> the ground state:
+// (a transmon; specs allow d = 2..8, the truncation check two more), in the frame of the
+// drive with |0> the ground state:
 //
 //   H = 2 pi [ Delta n + (alpha/2) n(n-1) + (1+eps)/2 ( conj(W) a + W a^dag ) ],
 //   W = I + i Q,  a = sum_k sqrt(k) |k-1><k|                     (rad/s; Delta, alpha, I, Q in Hz)
