@@ -82,6 +82,22 @@ describe('ladder segment propagator', () => {
     }
   });
 
+  // Source: the oracle's Taylor exponential with scaling and squaring: at |H| dt of hundreds
+  // of radians both are exact to rounding, a few ulps times |H| dt.
+  it('stays exact to rounding at large |H| dt (the oracle, 1e-14 |H| dt)', () => {
+    for (const [d, i, q, dt] of [[8, 3e8, -2e8, 2e-8], [6, 1e9, 5e8, 1e-8], [3, 5e7, 0, 1e-6]] as const) {
+      const member: LadderMember = { detuning: 3e7, amplitudeError: 0.1, anharmonicityError: 0, weight: 1 };
+      const system: LadderSystem = { levels: d, anharmonicity: -2e8 };
+      const ours = ladderSegmentPropagator(d, dt, i, q, member, -2e8);
+      const want = oracle.ladderSegment(d, dt, i, q, member, system);
+      const angle = TWO_PI * 1.1 * Math.hypot(i, q) * Math.sqrt(d) * dt;
+      expect(angle).toBeGreaterThan(100);
+      let worst = 0;
+      ours.forEach((row, r) => row.forEach(([re, im], c) => (worst = Math.max(worst, Math.hypot(re - want.re[r * d + c], im - want.im[r * d + c])))));
+      expect(worst, `d = ${d}, |H| dt about ${angle.toFixed(0)}`).toBeLessThan(1e-14 * angle);
+    }
+  });
+
   // Source: mathjs expm, at zero drive (diagonal H: the QL iteration must stop at once);
   // phases up to 8 rad on the top level, so rounding of a few 1e-15.
   it('matches mathjs expm at zero drive', () => {
