@@ -9,8 +9,9 @@
 // times a calibrated factor. In our convention beta = 1 cancels the |1>-|2> transition's
 // drive at first order (docs/transmon.md). The drive may be detuned by delta (Hz) to follow
 // the AC Stark shift of the qubit (Gambetta, Motzoi, Merkel, Wilhelm, PRA 83, 012308,
-// 2011): a drive at f_d + delta is, in the frame of f_d, W(t) e^{-i 2 pi delta (t - T/2)},
-// the phase ramp centred so that the pulse's axis is the target axis at its middle.
+// 2011): a drive at f_d + delta is, in the frame of f_d, W(t) e^{-i 2 pi delta (t - T/2)}
+// (docs/physics.md section 1: phase and frequency of the drive go together), the phase
+// ramp centred so that the pulse's axis is the target axis at its middle.
 // Samples are the envelope at each sample's midpoint.
 import { ArgumentError, describeValue } from './errors.ts';
 import { evaluateLadder, type LadderEvaluation } from './ladder.ts';
