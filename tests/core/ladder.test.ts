@@ -235,6 +235,20 @@ describe('ladder figures', () => {
   });
 });
 
+describe('ladder input checks', () => {
+  // The library names the field, the value and what is allowed (README: bad input).
+  it('name the field, the value and what is allowed', () => {
+    const pulse = randomPulse(3, 1e-9, 1e7);
+    const members = randomMembers(2);
+    const target = targets[0].target;
+    expect(() => evaluateLadder(target, pulse, members, { levels: 9, anharmonicity: -2e8 })).toThrow(/^system\.levels: 9 is not allowed; an integer from 2 to 8$/);
+    expect(() => evaluateLadder(target, pulse, members, { levels: 3, anharmonicity: Infinity })).toThrow(/^system\.anharmonicity: Infinity is not a finite number of Hz$/);
+    const bad = [members[0], { ...members[1], anharmonicityError: NaN }];
+    expect(() => evaluateLadder(target, pulse, bad, { levels: 3, anharmonicity: -2e8 })).toThrow(/^members\[1\]\.anharmonicityError: NaN is not a finite number of Hz$/);
+    expect(() => ladderPopulations(pulse, members[0], { levels: 3, anharmonicity: -2e8 }, [0, 0, 0])).toThrow(/^from: \[0,0,0\] is not allowed/);
+  });
+});
+
 describe('ladder populations', () => {
   // Source: the oracle's propagators of the pulse's first k samples applied to the start
   // state; populations sum to 1 (unitarity).
