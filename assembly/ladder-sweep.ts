@@ -138,7 +138,7 @@ export function ladderGradient(
  * Add Re Tr(L^dag dU/dI X) and the same for Q (per Hz) to gI, gQ for one segment: X the
  * block before the segment, L the adjoint after it (both d x 2 complex).
  */
-function segmentSlope(
+export function segmentSlope(
   d: i32, dt: f64, scale: f64, rec: usize, xPtr: usize, lPtr: usize,
   la: usize, ll: usize, y: usize, t: usize, gI: usize, gQ: usize,
 ): void {
