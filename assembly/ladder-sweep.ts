@@ -25,6 +25,12 @@ import {
   getf, setf, recordSize, recLam, recHc, recHs, recPhi, segmentEigen, applySegment, toEigenbasis,
 } from './ladder';
 import { ladderFinal, ladderStart } from './ladder-figure';
+import { Problem } from './problem';
+
+/** Member parameters per member of the ladder: scale, detuning, anharmonicity (Hz). */
+export const LADDER_PARAMS: i32 = 3;
+/** Output per member: figure, leakage, free phase. */
+export const LADDER_MEMBER_VALUES: i32 = 3;
 
 /** Scratch f64 slots of the ladder kernels for d levels. */
 function scratchSize(d: i32): i32 { return 8 * d * d + 32 * d + 16; }
@@ -224,4 +230,20 @@ export function ladderPopulations(
     segmentEigen(d, dt, getf(iPtr, k), getf(qPtr, k), detuning, scale, alpha, rec, s);
     applySegment(d, rec, x, false, tmp);
   }
+}
+
+/** The problem's ensemble figure on a ladder of p.dim levels (system seam: figure). */
+export function ladderSystemFigure(p: Problem): f64 {
+  const m = p.m;
+  const det = p.members + (<usize>m << 3), alpha = p.members + (<usize>(2 * m) << 3);
+  return ladderFigure(p.driveI, p.driveQ, p.nDrive, p.driveDt, p.dim, p.members, det, alpha, p.weight, m,
+    p.target, p.mode, p.perMember, p.work);
+}
+
+/** The problem's ensemble figure on a ladder and its gradient with respect to the drive (system seam: gradient). */
+export function ladderSystemGradient(p: Problem): f64 {
+  const m = p.m;
+  const det = p.members + (<usize>m << 3), alpha = p.members + (<usize>(2 * m) << 3);
+  return ladderGradient(p.driveI, p.driveQ, p.nDrive, p.driveDt, p.dim, p.members, det, alpha, p.weight, m,
+    p.target, p.mode, p.perMember, p.gradDriveI, p.gradDriveQ, p.work);
 }

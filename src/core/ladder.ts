@@ -4,7 +4,7 @@
 // Validation happens here; the kernels trust their inputs.
 import { ArgumentError, describeValue } from './errors.ts';
 import { checkPulse, encodeTarget } from './encode.ts';
-import type { Member, Pulse, Target, Vec3 } from './types.ts';
+import type { LadderSystem, Member, Pulse, Target, TruncationCheck, Vec3 } from './types.ts';
 import { getCore, type Core } from './wasm.ts';
 
 /** Fewest levels of a ladder (2: the qubit). */
@@ -12,11 +12,7 @@ export const MIN_LEVELS = 2;
 /** Most levels of a ladder in a spec. */
 export const MAX_LEVELS = 8;
 
-/** The system driven: `levels` of a ladder with anharmonicity (Hz; negative for a transmon). */
-export interface LadderSystem {
-  levels: number;
-  anharmonicity: number;
-}
+export type { LadderSystem, TruncationCheck } from './types.ts';
 
 /** An ensemble member of a ladder: a qubit member plus an error of the anharmonicity (Hz). */
 export interface LadderMember extends Member {
@@ -135,15 +131,6 @@ export function evaluateLadder(
   target: Target, pulse: Pulse, members: readonly LadderMember[], system: LadderSystem, options: LadderOptions = {},
 ): LadderEvaluation {
   return evaluateUpTo(target, pulse, members, system, options, MAX_LEVELS);
-}
-
-/** The figures of a pulse on `levels + 2` levels beside those on `levels`, to see whether the truncation matters. */
-export interface TruncationCheck {
-  levels: number;
-  meanInfidelity: number;
-  meanLeakage: number;
-  /** True when the mean infidelity or the mean leakage changes by more than a factor two. */
-  differs: boolean;
 }
 
 /** Re-evaluate on two more levels (up to 10) and compare with the evaluation on the system's levels. */

@@ -2,7 +2,7 @@
 // read, freed. Runs share nothing but the core's arena, so any number of them (and maps
 // between their steps) interleave in one core and each gives the pulse it gives alone.
 import { createBlock, freeBlock, readBuffer, BUFFER } from './block.ts';
-import { encodeMembers } from './encode.ts';
+import { blockSystem, encodeSystem } from './system.ts';
 import { initialVariables } from './start.ts';
 import type { Problem, StopReason } from './types.ts';
 import { getCore, STEP_GRADIENT_TOLERANCE, STEP_LINE_SEARCH_FAILED, type Core } from './wasm.ts';
@@ -39,10 +39,10 @@ export class StartRun {
     this.core = core;
     this.problem = problem;
     this.start = start;
-    const enc = encodeMembers(problem.members, 2, true);
+    const enc = encodeSystem(problem.target, problem.members, problem.system);
     const { segments: n, dt, rabiMax, constraints, optimizer } = problem;
     this.ptr = createBlock(core, {
-      target: problem.target, segments: n, dt, members: enc, bound: constraints.bound, zeroEdges: constraints.zeroEdges,
+      ...blockSystem(enc), target: problem.target, segments: n, dt, bound: constraints.bound, zeroEdges: constraints.zeroEdges,
       rabiMax, smoothness: constraints.smoothness, optimizer, held: true,
     });
     try {

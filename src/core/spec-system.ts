@@ -7,7 +7,7 @@ import { SpecError } from './errors.ts';
 import { MAX_LEVELS, MIN_LEVELS, type LadderMember, type LadderSystem } from './ladder.ts';
 import { MAX_MEMBERS, normaliseWeights, parseAxis } from './spec-ensemble.ts';
 import { childPath, isObject, readBoolean, readNumber, readObject, type JsonObject } from './spec-fields.ts';
-import { parseSpec } from './spec.ts';
+import { parseQubitSpec } from './spec.ts';
 import type { Problem } from './types.ts';
 
 /** The qubit: what a spec without a system section describes. */
@@ -39,7 +39,7 @@ export function parseSystem(value: unknown, path = 'system'): LadderSystem {
 
 /** Validates a whole spec that may carry a system section (see the file comment). */
 export function parseLadderSpec(json: unknown): LadderSpec {
-  if (!isObject(json)) return fromProblem(parseSpec(json));
+  if (!isObject(json)) return fromProblem(parseQubitSpec(json));
   const { system: systemJson, ...rest } = json;
   const stripped: JsonObject = { ...rest };
   let freePhaseAfter = false;
@@ -68,7 +68,7 @@ export function parseLadderSpec(json: unknown): LadderSpec {
     }
     stripped.ensemble = ensemble;
   }
-  const problem = parseSpec(stripped);
+  const problem = parseQubitSpec(stripped);
   const system = parseSystem(systemJson);
   if (memberErrors) {
     const members = problem.members.map((m, k) => ({ ...m, anharmonicityError: memberErrors![k] }));
