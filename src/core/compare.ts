@@ -19,6 +19,9 @@ export interface CompareFigures extends Omit<RobustnessSummary, keyof TargetChoi
   /** Worst member of the spec's ensemble. */
   worstInfidelity: number;
   worstMember: Member;
+  /** On a ladder: weighted mean and worst leakage over the spec's ensemble. */
+  meanLeakage?: number;
+  worstLeakage?: number;
 }
 
 /** One pulse's judgement: the target used and the note beside it, its figures, its map over the region. */
@@ -48,7 +51,7 @@ export interface JudgedEvaluation extends Evaluation {
 export function evaluateJudged(spec: unknown, pulse: Pulse): JudgedEvaluation {
   const problem = toProblem(spec);
   const choice = chooseTarget(problem.target, pulse);
-  return { ...evaluateMembers(choice.targetUsed, pulse, problem.members), target: choice.targetUsed, note: choice.targetNote };
+  return { ...evaluateMembers(choice.targetUsed, pulse, problem.members, problem.system), target: choice.targetUsed, note: choice.targetNote };
 }
 
 /** The figures of a pulse against a spec (or problem): on its ensemble and over a region. */
@@ -57,8 +60,8 @@ export function judgePulse(spec: unknown, pulse: Pulse, options: JudgeOptions = 
   const region = options.region ?? ensembleRegion(problem);
   checkRegion(region);
   const choice = chooseTarget(problem.target, pulse);
-  const map = robustnessMap(choice.targetUsed, pulse, region.detuning, region.amplitudeError);
-  const summary = summariseMap(map, pulse, choice, options);
+  const map = robustnessMap(choice.targetUsed, pulse, region.detuning, region.amplitudeError, problem.system);
+  const summary = summariseMap(map, pulse, choice, { ...options, system: problem.system });
   const ensemble = evaluateJudged(problem, pulse);
   const worst = ensemble.members[ensemble.worstIndex];
   const figures: CompareFigures = {
@@ -78,6 +81,10 @@ export function judgePulse(spec: unknown, pulse: Pulse, options: JudgeOptions = 
     pulseAreaTurns: summary.pulseAreaTurns,
     energyHz2S: summary.energyHz2S,
   };
+  if (ensemble.meanLeakage !== undefined) {
+    figures.meanLeakage = ensemble.meanLeakage;
+    figures.worstLeakage = ensemble.worstLeakage;
+  }
   return { choice, figures, map, region, threshold: summary.threshold };
 }
 
@@ -180,7 +187,7 @@ export function compare(spec: unknown, pulses: readonly NamedPulse[], options: C
       target: choice.targetUsed,
       note: choice.targetNote,
       figures,
-      ...(options.cuts ? { cuts: cutsThroughZero(choice.targetUsed, pulse, region.detuning, region.amplitudeError) } : {}),
+      ...(options.cuts ? { cuts: cutsThroughZero(choice.targetUsed, pulse, region.detuning, region.amplitudeError, problem.system) } : {}),
     };
   };
   const rows: CompareRow[] = [

@@ -7,7 +7,7 @@ import { axisValues } from './grid.ts';
 import { ArgumentError, describeValue } from './errors.ts';
 import { thresholdInterval, type ErrorAxis, type ThresholdInterval } from './threshold-width.ts';
 import { chooseTarget, type TargetChoice } from './target-choice.ts';
-import type { GridAxis, Pulse, Target } from './types.ts';
+import type { GridAxis, LadderSystem, Pulse, Target } from './types.ts';
 
 export type { ErrorAxis, ThresholdInterval } from './threshold-width.ts';
 export type { TargetChoice } from './target-choice.ts';
@@ -51,6 +51,8 @@ export interface RobustnessSummary extends PulseFigures, TargetChoice {
 export interface SummaryOptions {
   /** Infidelity threshold of the area and width figures (default 1e-4). */
   threshold?: number;
+  /** A ladder of more than two levels (the spec's system); absent: the qubit. */
+  system?: LadderSystem;
 }
 
 /** The infidelity along one error axis with the other error at zero. */
@@ -92,8 +94,8 @@ export function summariseMap(map: RobustnessMap, pulse: Pulse, choice: TargetCho
   }
   const dv = axisValues(map.detuning)[worst % map.detuning.points];
   const av = axisValues(map.amplitudeError)[Math.floor(worst / map.detuning.points)];
-  const detuningInterval = thresholdInterval(choice.targetUsed, pulse, 'detuning', threshold);
-  const amplitudeInterval = thresholdInterval(choice.targetUsed, pulse, 'amplitudeError', threshold);
+  const detuningInterval = thresholdInterval(choice.targetUsed, pulse, 'detuning', threshold, options.system);
+  const amplitudeInterval = thresholdInterval(choice.targetUsed, pulse, 'amplitudeError', threshold, options.system);
   return {
     ...choice,
     detuning: { ...map.detuning },
@@ -120,20 +122,20 @@ export function summarise(
   options: SummaryOptions = {},
 ): { summary: RobustnessSummary; map: RobustnessMap } {
   const choice = chooseTarget(target, pulse);
-  const map = robustnessMap(choice.targetUsed, pulse, detuning, amplitudeError);
+  const map = robustnessMap(choice.targetUsed, pulse, detuning, amplitudeError, options.system);
   return { summary: summariseMap(map, pulse, choice, options), map };
 }
 
 /** Infidelity along one error axis on a uniform grid, the other error held at zero. */
-export function cut(target: Target, pulse: Pulse, axis: ErrorAxis, grid: GridAxis): Cut {
+export function cut(target: Target, pulse: Pulse, axis: ErrorAxis, grid: GridAxis, system?: LadderSystem): Cut {
   if (axis !== 'detuning' && axis !== 'amplitudeError') {
     throw new ArgumentError(`axis: ${describeValue(axis)} is not allowed; "detuning" or "amplitudeError"`);
   }
   const choice = chooseTarget(target, pulse);
   const zero: GridAxis = { min: 0, max: 0, points: 1 };
   const map = axis === 'detuning'
-    ? robustnessMap(choice.targetUsed, pulse, grid, zero)
-    : robustnessMap(choice.targetUsed, pulse, zero, grid);
+    ? robustnessMap(choice.targetUsed, pulse, grid, zero, system)
+    : robustnessMap(choice.targetUsed, pulse, zero, grid, system);
   return { ...choice, axis, values: axisValues(grid), infidelity: map.infidelity };
 }
 
@@ -146,9 +148,9 @@ export interface Cuts {
 }
 
 /** The cut along detuning (no amplitude error) and along amplitude error (no detuning). */
-export function cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): Cuts {
-  const alongDetuning = cut(target, pulse, 'detuning', detuning);
-  const alongAmplitude = cut(target, pulse, 'amplitudeError', amplitudeError);
+export function cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, system?: LadderSystem): Cuts {
+  const alongDetuning = cut(target, pulse, 'detuning', detuning, system);
+  const alongAmplitude = cut(target, pulse, 'amplitudeError', amplitudeError, system);
   return {
     detuning: alongDetuning.values,
     detuningInfidelity: alongDetuning.infidelity,
