@@ -5,7 +5,9 @@
 // ensemble (weighted, as the design minimises them); the map region's are "region mean"
 // and "region worst".
 import { evaluateMembers, robustnessMap, toProblem, type RobustnessMap } from './api.ts';
-import { compositesFor } from './composite-targets.ts';
+import { compositesFor, isCompositeName } from './composite-targets.ts';
+import { compositeNames } from './composites.ts';
+import { dragFamily, dragFamilyFor, isDragName } from './drag-family.ts';
 import { ArgumentError, describeValue } from './errors.ts';
 import { checkRegion, ensembleRegion, type Region } from './grid.ts';
 import { DEFAULT_THRESHOLD, checkThreshold, cuts as cutsThroughZero, summariseMap, type Cuts, type RobustnessSummary } from './robustness.ts';
@@ -153,7 +155,10 @@ export interface CompareRow {
 
 /** Options of compare. */
 export interface CompareOptions extends JudgeOptions {
-  /** Composite sequences to build for the spec's target under its rabiMax and dt (names as in compositeNames). */
+  /**
+   * Composite sequences to build for the spec's target under its rabiMax and dt (names as in
+   * compositeNames), and members of the DRAG family (dragFamily) calibrated on the spec.
+   */
   composites?: readonly string[];
   /** The figure that orders the rows, best first (default "mean"). */
   sortBy?: SortFigure;
@@ -177,7 +182,14 @@ export function compare(spec: unknown, pulses: readonly NamedPulse[], options: C
   const region = options.region ?? ensembleRegion(problem);
   checkRegion(region);
   const threshold = checkThreshold(options.threshold ?? DEFAULT_THRESHOLD);
-  const built = compositesFor(problem.target, options.composites ?? [], problem);
+  const names = options.composites ?? [];
+  for (const name of names) {
+    if (!isCompositeName(name) && !isDragName(name)) {
+      throw new ArgumentError(`composites: "${name}" is not a known sequence; one of ${[...compositeNames, ...dragFamily].map((c) => c.name).join(', ')}`);
+    }
+  }
+  const built = compositesFor(problem.target, names.filter((n) => !isDragName(n)), problem);
+  const drags = dragFamilyFor(problem, names.filter(isDragName));
   const judge = (name: string, pulse: Pulse): CompareRow => {
     const { choice, figures } = judgePulse(problem, pulse, { region, threshold });
     return {
@@ -193,6 +205,7 @@ export function compare(spec: unknown, pulses: readonly NamedPulse[], options: C
   const rows: CompareRow[] = [
     ...pulses.map((p) => judge(p.name, p.pulse)),
     ...built.map((b) => (b.pulse ? judge(b.title, b.pulse) : { name: b.title, origin: 'composite', error: b.error })),
+    ...drags.map((d) => (d.pulse ? judge(d.title, d.pulse) : { name: d.title, origin: 'drag', error: d.error })),
   ];
   return { target: problem.target, ...region, threshold, sortBy, rows: sortRows(rows, sortBy) };
 }

@@ -2,6 +2,7 @@
 import { blochTrajectory, design, evaluateMembers, robustnessMap } from '../core/api.ts';
 import { compare, evaluateJudged } from '../core/compare.ts';
 import { compositeNames } from '../core/composites.ts';
+import { dragFamily } from '../core/drag-family.ts';
 import { cuts } from '../core/robustness.ts';
 import { parseSpec } from '../core/spec.ts';
 import { readPulse, writePulse } from '../io/pulse.ts';
@@ -18,7 +19,7 @@ export const library: CoreLibrary = {
   blochTrajectory,
   compare,
   cuts,
-  composites: compositeNames,
+  composites: [...compositeNames, ...dragFamily],
   readPulse,
   writePulse,
   exportWaveform,
