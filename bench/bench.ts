@@ -7,7 +7,7 @@ import { readFileSync, readdirSync } from 'node:fs';
 import { design, evaluateMembers, robustnessMap } from '../src/core/api.ts';
 import { prepareGradientJob } from '../src/core/gradient.ts';
 import { calibrateDrag } from '../src/core/drag.ts';
-import { asLadderMembers, evaluateLadder, prepareLadderGradientJob } from '../src/core/ladder.ts';
+import { asLadderMembers } from '../src/core/ladder.ts';
 import { parseLadderSpec } from '../src/core/spec-system.ts';
 import type { Member, Pulse, Target } from '../src/core/types.ts';
 import { ensembleGradient as oracleGradient, memberInfidelity } from '../tests/reference/oracle.ts';
@@ -83,8 +83,9 @@ for (const segments of [100, 1000]) {
   }
 }
 
-// 1b. The transmon ladder (scalar f64, one member at a time) beside the two-level kernels.
-log('\ntransmon ladder: figure and objective + exact gradient, medians (ns per segment-member; two-level kernels alongside)');
+// 1b. The transmon ladder through the system seam (a problem block of the ladder kind, as
+// design and the maps use it; scalar f64, one member at a time) beside the two-level kernels.
+log('\ntransmon ladder through the system seam: figure and objective + exact gradient, medians (ns per segment-member; two-level kernels alongside)');
 log('levels  segments  members   figure ms   gradient ms   figure ns   gradient ns   two-level gradient ns');
 const ladder: { levels: number; segments: number; members: number; figureMs: number; gradientMs: number; figureNs: number; gradientNs: number; twoLevelGradientNs: number }[] = [];
 for (const levels of [3, 5]) {
@@ -93,10 +94,10 @@ for (const levels of [3, 5]) {
       const members = asLadderMembers(gridMembers(count));
       const pulse = smoothPulse(segments, 2e-8 * (segments / 100), 1e8);
       const system = { levels, anharmonicity: -2.12e8 };
-      const job = prepareLadderGradientJob(gate, pulse, members, system);
+      const job = prepareGradientJob(gate, pulse, members, system);
       const gradientMs = median(() => job.run(), repsFor(() => job.run(), 300));
       job.dispose();
-      const figureRun = (): void => void evaluateLadder(gate, pulse, members, system);
+      const figureRun = (): void => void evaluateMembers(gate, pulse, members, system);
       const figureMs = median(figureRun, repsFor(figureRun, 300));
       const qubit = prepareGradientJob(gate, pulse, members);
       const qubitMs = median(() => qubit.run(), repsFor(() => qubit.run(), 100));
@@ -153,8 +154,8 @@ log(`\nseries sine/cosine against Math.sin/cos (oracle), 121 members x 200 segme
 
 // 4. Designs of the demo specs.
 log('\ndemo designs (whole design(), every start, one thread)');
-log('name                       wall s   mean infidelity   worst infidelity   iterations (best start)');
-const designs: { name: string; wallS: number; meanInfidelity: number; worstInfidelity: number; iterations: number; starts: number }[] = [];
+log('name                       wall s   mean infidelity   worst infidelity   iterations (best start)   leakage, on levels + 2');
+const designs: { name: string; wallS: number; meanInfidelity: number; worstInfidelity: number; iterations: number; starts: number; meanLeakage?: number; truncationCheck?: unknown }[] = [];
 const exampleDir = new URL('../examples/', import.meta.url);
 for (const file of readdirSync(exampleDir).filter((f) => f.endsWith('.json')).sort()) {
   const spec = JSON.parse(readFileSync(new URL(file, exampleDir), 'utf8'));
@@ -162,9 +163,14 @@ for (const file of readdirSync(exampleDir).filter((f) => f.endsWith('.json')).so
   const t = performance.now();
   const r = await design(spec);
   const wallS = (performance.now() - t) / 1000;
-  const row = { name: file.replace(/\.json$/, ''), wallS, meanInfidelity: r.evaluation.meanInfidelity, worstInfidelity: r.evaluation.worstInfidelity, iterations: r.best.iterations, starts: r.starts.length };
+  const row = {
+    name: file.replace(/\.json$/, ''), wallS, meanInfidelity: r.evaluation.meanInfidelity, worstInfidelity: r.evaluation.worstInfidelity, iterations: r.best.iterations, starts: r.starts.length,
+    ...(r.evaluation.meanLeakage !== undefined ? { meanLeakage: r.evaluation.meanLeakage, truncationCheck: r.truncationCheck } : {}),
+  };
   designs.push(row);
-  log(`${row.name.padEnd(26)} ${wallS.toFixed(3).padStart(6)}   ${row.meanInfidelity.toExponential(2).padStart(15)}   ${row.worstInfidelity.toExponential(2).padStart(16)}   ${row.iterations}`);
+  const ladderText = row.meanLeakage !== undefined
+    ? `   leakage ${row.meanLeakage.toExponential(2)}; on ${r.truncationCheck!.levels} levels ${r.truncationCheck!.meanInfidelity.toExponential(2)}, leakage ${r.truncationCheck!.meanLeakage.toExponential(2)}` : '';
+  log(`${row.name.padEnd(26)} ${wallS.toFixed(3).padStart(6)}   ${row.meanInfidelity.toExponential(2).padStart(15)}   ${row.worstInfidelity.toExponential(2).padStart(16)}   ${String(row.iterations).padStart(4)}${ladderText}`);
 }
 
 // 5. The app in headless Chromium (skipped without /usr/bin/chromium).
