@@ -66,6 +66,17 @@ describe('the command line on a ladder spec', () => {
     }
   });
 
+  it('map takes a DRAG name for PULSE: the pulse compare builds, with leakage in the figures and a leakage column', async () => {
+    const csv = join(dir, 'drag.csv');
+    const out = await run(['map', spec, 'drag-cosine', '--json', '--out', csv]);
+    expect(out.code).toBe(0);
+    const summary = JSON.parse(out.stdout);
+    const compared = JSON.parse((await run(['compare', spec, '--composites', 'drag-cosine', '--json'])).stdout).rows[0];
+    expect(summary.meanInfidelity).toBe(compared.figures.meanInfidelity);
+    expect(summary.meanLeakage).toBe(compared.figures.meanLeakage);
+    expect(readFileSync(csv, 'utf8')).toMatch(/^detuning_hz,amplitude_error,infidelity,leakage$/m);
+  });
+
   it('composite --list names the DRAG family; building one alone is refused with the way to get it', async () => {
     expect((await run(['composite', '--list'])).stdout).toMatch(/drag-gaussian {2}\(DRAG Gaussian\)[\s\S]*Motzoi/);
     const alone = await run(['composite', 'drag-cosine', '--angle-deg', '90', '--rabi-max', '1e8', '--dt', '1e-9']);
