@@ -44,6 +44,20 @@ describe('the command line on a ladder spec', () => {
     expect(out.truncationCheck).toEqual({ levels: 7, meanInfidelity: on7.meanInfidelity, meanLeakage: on7.meanLeakage });
   });
 
+  it('design with freePhaseAfter reports each member\'s phase after the pulse, as the library evaluates it', async () => {
+    const freeSpec = { ...SPEC, target: { gate: { axis: [1, 0, 0], angleDeg: 90, freePhaseAfter: true } }, optimizer: { starts: 1, seed: 2, maxIterations: 200 } };
+    const file = join(dir, 'free.json'), out = join(dir, 'free-pulse.json');
+    writeFileSync(file, JSON.stringify(freeSpec));
+    const result = await run(['design', file, '--out', out, '--json']);
+    expect(result.code).toBe(0);
+    const json = JSON.parse(result.stdout);
+    const ev = evaluate(freeSpec, readPulse(readFileSync(out, 'utf8')));
+    expect(json.members.map((m: { phaseAfter: number }) => m.phaseAfter)).toEqual(ev.members.map((m) => m.phaseAfter));
+    expect(ev.members.every((m) => Number.isFinite(m.phaseAfter))).toBe(true);
+    const table = await run(['evaluate', file, out]);
+    expect(table.stdout).toMatch(/phase after[\s\S]*-?\d+\.\d{3} deg/);
+  });
+
   it('evaluate prints the leakage in its table and its JSON', async () => {
     const table = await run(['evaluate', spec, pulse]);
     expect(table.code).toBe(0);
