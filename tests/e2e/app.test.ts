@@ -256,6 +256,11 @@ describe.skipIf(reason !== null)('the app in Chromium', () => {
     await page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement).disabled);
     expect(await page.locator('#f-alpha-error').count()).toBe(0);
     await screenshot(page, 'e2e-06b-system');
+    await page.getByRole('tab', { name: 'Bloch sphere' }).click();
+    // Two levels only on the sphere (the library refuses a Bloch path on more: src/core/api.ts).
+    expect(await page.getByTestId('bloch-levels-note').textContent()).toContain('applies to two levels only: the spec drives 5 levels');
+    await screenshot(page, 'e2e-06c-bloch-levels');
+    await page.getByRole('tab', { name: 'Design' }).click();
     await typeInto(page, '#f-levels', '');
     await typeInto(page, '#f-alpha', '');
     await recordViolations(page);
