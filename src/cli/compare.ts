@@ -9,6 +9,7 @@ import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
 import { loadPulse, loadSpec } from './files.ts';
 import { formatFrequency, formatInfidelity, formatTarget, formatTime } from './format.ts';
+import { describeLine } from '../core/line-spec.ts';
 
 // Kept in step with SORT_FIGURES in src/core/compare.ts (checked by the tests); listed
 // here so that --help needs no import of the core.
@@ -157,6 +158,7 @@ function compareTable(comparison: Comparison, rows: Omit<CompareRow, 'pulse' | '
   const members = problem.members.length;
   return [
     `target: ${formatTarget(comparison.target)}`,
+    ...(problem.line ? [`every figure through the line: ${describeLine(problem.line)} (duration: the drive the qubit sees, tails included)`] : []),
     `mean, worst: over the spec's ensemble (${members} member${members === 1 ? '' : 's'}, weighted mean)` +
       (problem.system ? `; on ${problem.system.levels} levels, anharmonicity ${formatFrequency(problem.system.anharmonicity)}` : ''),
     `region: detuning ${formatGrid(comparison.detuning, 'detuning')}; amplitude error ${formatGrid(comparison.amplitudeError, 'amplitudeError')}`,

@@ -2,6 +2,7 @@
 // progress on stderr, prints the figures on stdout and writes the best pulse.
 import { availableParallelism } from 'node:os';
 import { ArgumentError } from '../core/errors.ts';
+import { describeLine } from '../core/line-spec.ts';
 import type { DesignResult, MemberFigure, Problem, Pulse } from '../core/types.ts';
 import { writePulse } from '../io/pulse.ts';
 import { flagValue, optionsHelp, usageLine } from './args.ts';
@@ -189,6 +190,7 @@ function designTable(result: DesignResult, problem: Problem, peak: number, out: 
   const rows: [string, string][] = [
     ['target', formatTarget(problem.target)],
     ['ensemble', `${ev.members.length} member${ev.members.length === 1 ? '' : 's'}`],
+    ...(problem.line ? [['line', `${describeLine(problem.line)}: the figures are of the drive the qubit sees`] as [string, string]] : []),
     ['mean infidelity', formatInfidelity(ev.meanInfidelity)],
     ['worst infidelity', `${formatInfidelity(ev.worstInfidelity)} at detuning ${formatFrequency(worst.detuning)}, amplitude error ${formatRelative(worst.amplitudeError)}`],
     ...ladderRows(result, problem),

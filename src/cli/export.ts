@@ -246,6 +246,13 @@ export function reportText(r: ExportReport, c: TextContext): string {
       row('exported, as played', r.gate.exported),
       row('exported, pulse only', r.gate.exportedPulseOnly),
     );
+    if (r.gate.withoutLine) {
+      lines.push(
+        `  the figures above are through the spec's line; without it (what ignoring the line would show):`,
+        row('design, no line', r.gate.withoutLine.design),
+        row('exported, no line', r.gate.withoutLine.exported),
+      );
+    }
   } else {
     lines.push(`gate          not evaluated: ${c.note}`);
   }

@@ -5,6 +5,7 @@ import { dirname, resolve } from 'node:path';
 import { ArgumentError, PulseFormatError, SpecError } from '../core/errors.ts';
 import { parseSpec, specJsonFromText } from '../core/spec.ts';
 import type { Problem, Pulse } from '../core/types.ts';
+import { resolveImpulseFile } from '../io/line-file.ts';
 import { readPulse } from '../io/pulse.ts';
 
 /** A spec file as given (parsed JSON, passed on to the API) and as validated. */
@@ -17,7 +18,8 @@ export interface LoadedSpec {
 export function loadSpec(path: string): LoadedSpec {
   const text = readText(path, 'spec');
   try {
-    const json = specJsonFromText(text);
+    // A measured line response named by file is read relative to the spec.
+    const json = resolveImpulseFile(specJsonFromText(text), (file) => readBytes(resolve(dirname(path), file)));
     return { json, problem: parseSpec(json) };
   } catch (error) {
     throw withFileName(error, path);
@@ -62,6 +64,14 @@ export function writeText(path: string, text: string, flag: string): void {
     writeFileSync(path, text);
   } catch (error) {
     throw new ArgumentError(`${flag} ${path}: cannot write (${systemReason(error)})`);
+  }
+}
+
+function readBytes(path: string): Uint8Array {
+  try {
+    return readFileSync(path);
+  } catch (error) {
+    throw new ArgumentError(`cannot read ${path} (${systemReason(error)})`);
   }
 }
 

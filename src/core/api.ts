@@ -5,6 +5,8 @@ import { ArgumentError, describeValue } from './errors.ts';
 import { BUFFER, createBlock, readBuffer, setSamples } from './block.ts';
 import { checkPulse, encodeMembers, encodeTarget } from './encode.ts';
 import { blockSystem, encodeSystem, MAX_CHECK_LEVELS, type SystemEncoding } from './system.ts';
+import { qubitDrive } from './line.ts';
+import { lineJson } from './line-spec.ts';
 import { StartRun } from './run.ts';
 import { checkProblemAngles, checkPulseAngles } from './limits.ts';
 import { checkProblem, checkTarget } from './problem-check.ts';
@@ -12,7 +14,7 @@ import { bestStart } from './best-start.ts';
 import { axisValues, checkRegion } from './grid.ts';
 import { parseSpec } from './spec.ts';
 import type {
-  DesignResult, Evaluation, GridAxis, LadderSystem, Member, MemberFigure, Problem, Progress, Pulse, StartResult, StopReason, Target,
+  DesignResult, Evaluation, GridAxis, LadderSystem, Line, Member, MemberFigure, Problem, Progress, Pulse, StartResult, StopReason, Target,
   TruncationCheck,
 } from './types.ts';
 import { getCore, loadCore } from './wasm.ts';
@@ -55,22 +57,24 @@ export function toProblem(spec: unknown): Problem {
   return isProblem(spec) ? checkProblem(spec) : parseSpec(spec);
 }
 
-/** Evaluate a pulse on a spec's (or problem's) ensemble, target and system. */
+/** Evaluate a pulse on a spec's (or problem's) ensemble, target and system, through its line (if any). */
 export function evaluate(spec: unknown, pulse: Pulse): Evaluation {
   const problem = toProblem(spec);
-  return evaluateMembers(problem.target, pulse, problem.members, problem.system);
+  return evaluateMembers(problem.target, pulse, problem.members, problem.line, problem.system);
 }
 
 /**
- * Evaluate a pulse for a target on explicit members (weights normalised here), on the
- * qubit or, with `system`, on a ladder (then with leakage per member and over the ensemble).
+ * Evaluate a pulse for a target on explicit members (weights normalised here), through
+ * `line` when given, on the qubit or, with `system`, on a ladder (then with leakage per
+ * member and over the ensemble).
  */
-export function evaluateMembers(target: Target, pulse: Pulse, members: Member[], system?: LadderSystem, maxLevels?: number): Evaluation {
+export function evaluateMembers(target: Target, pulse: Pulse, members: Member[], line?: Line, system?: LadderSystem, maxLevels?: number): Evaluation {
   checkTarget(target);
   checkPulse(pulse);
   const enc = encodeSystem(target, members, system, maxLevels);
-  checkPulseAngles(pulse, members);
-  const values = figures(target, pulse, enc);
+  const drive = qubitDrive(pulse, line);
+  checkPulseAngles(drive, members);
+  const values = figures(target, drive, enc);
   const weight = enc.members.weight;
   const m = enc.members.padded;
   let mean = 0, meanLeakage = 0, meanAverage = 0, worstLeakage = 0;
@@ -103,8 +107,8 @@ const TRUNCATION_FLOOR = 1e-15;
  * A ladder evaluation repeated on two more levels: `differs` when the mean infidelity or
  * the mean leakage changes by more than a factor two (the truncation matters).
  */
-export function truncationCheck(target: Target, pulse: Pulse, members: Member[], system: LadderSystem, evaluation: Evaluation): TruncationCheck {
-  const more = evaluateMembers(target, pulse, members, { ...system, levels: system.levels + 2 }, MAX_CHECK_LEVELS);
+export function truncationCheck(target: Target, pulse: Pulse, members: Member[], system: LadderSystem, evaluation: Evaluation, line?: Line): TruncationCheck {
+  const more = evaluateMembers(target, pulse, members, line, { ...system, levels: system.levels + 2 }, MAX_CHECK_LEVELS);
   const apart = (a: number, b: number): boolean => a > 2 * b + TRUNCATION_FLOOR || b > 2 * a + TRUNCATION_FLOOR;
   const leakage = more.meanLeakage ?? 0;
   return {
@@ -128,11 +132,12 @@ function figures(target: Target, pulse: Pulse, enc: SystemEncoding): Float64Arra
 /** Members per core call of a map: bounds the arena and keeps each call short. */
 const MAP_CHUNK = 8192;
 
-/** Infidelity of a pulse on a detuning x amplitude-error grid (on a ladder with `system`, and its leakage). */
-export function robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, system?: LadderSystem): RobustnessMap {
+/** Infidelity of a pulse on a detuning x amplitude-error grid, through `line` when given (on a ladder with `system`, and its leakage). */
+export function robustnessMap(target: Target, programmed: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line, system?: LadderSystem): RobustnessMap {
   checkTarget(target);
-  checkPulse(pulse);
+  checkPulse(programmed);
   checkRegion({ detuning, amplitudeError });
+  const pulse = qubitDrive(programmed, line);
   const far = Math.max(Math.abs(detuning.min), Math.abs(detuning.max));
   checkPulseAngles(pulse, [{ detuning: far, amplitudeError: amplitudeError.max, weight: 1 }, { detuning: far, amplitudeError: amplitudeError.min, weight: 1 }]);
   const dv = axisValues(detuning), av = axisValues(amplitudeError);
@@ -158,14 +163,16 @@ export function robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, 
 }
 
 /**
- * Bloch vector after each sample, 3*(N+1) values starting with `from`. Two levels only:
- * on a ladder the state leaves the qubit's sphere (use ladderPopulations).
+ * Bloch vector after each sample of the drive the qubit sees (the pulse itself without a
+ * line), 3*(N+1) values starting with `from`. Two levels only: on a ladder the state
+ * leaves the qubit's sphere (use ladderPopulations).
  */
-export function blochTrajectory(pulse: Pulse, member: Member, from: [number, number, number], system?: LadderSystem): Float64Array {
+export function blochTrajectory(programmed: Pulse, member: Member, from: [number, number, number], line?: Line, system?: LadderSystem): Float64Array {
   if (system !== undefined && system.levels > 2) {
     throw new ArgumentError(`system.levels: ${describeValue(system.levels)} is not allowed for a Bloch trajectory; the Bloch sphere holds two levels only (ask for the populations of every level against time instead)`);
   }
-  checkPulse(pulse);
+  checkPulse(programmed);
+  const pulse = qubitDrive(programmed, line);
   encodeMembers([member], 2, false);
   checkPulseAngles(pulse, [member]);
   const norm = Math.hypot(from[0], from[1], from[2]);
@@ -227,10 +234,11 @@ async function designNow(problem: Problem, options: DesignOptions): Promise<Desi
   return bestOfStarts(problem, starts, t0);
 }
 
-/** The design result of finished starts: the best (best-start.ts) is evaluated. */
+/** The design result of finished starts: the best (best-start.ts) is evaluated, through the problem's line. */
 function bestOfStarts(problem: Problem, starts: StartResult[], t0: number): DesignResult {
   const best = bestStart(starts);
-  const evaluation = evaluateMembers(problem.target, best.pulse, problem.members, problem.system);
+  const evaluation = evaluateMembers(problem.target, best.pulse, problem.members, problem.line, problem.system);
+  if (problem.line) best.pulse.metadata.line = lineJson(problem.line);
   const figures: Record<string, number | string> = {
     meanInfidelity: evaluation.meanInfidelity,
     worstInfidelity: evaluation.worstInfidelity,
@@ -244,7 +252,7 @@ function bestOfStarts(problem: Problem, starts: StartResult[], t0: number): Desi
     figures.worstLeakage = evaluation.worstLeakage!;
   }
   if (problem.system) {
-    const check = truncationCheck(problem.target, best.pulse, problem.members, problem.system, evaluation);
+    const check = truncationCheck(problem.target, best.pulse, problem.members, problem.system, evaluation, problem.line);
     result.truncationCheck = check;
     figures.truncationCheckLevels = check.levels;
     figures.truncationCheckMeanInfidelity = check.meanInfidelity;
@@ -295,12 +303,31 @@ async function runStart(problem: Problem, start: number, options: DesignOptions,
     const samples = run.samples();
     const pulse: Pulse = { dt, i: samples.i, q: samples.q, metadata: { origin: 'design', name: `design start ${start}` } };
     holdBound(pulse, rabiMax, constraints.bound);
+    if (problem.line?.boundOn === 'both') holdDriveBound(pulse, problem.line, rabiMax);
     return {
       start, pulse, meanInfidelity: run.infidelity, objective: run.objective,
       iterations: run.iterations, evaluations: run.evaluations, stopReason, elapsedS: (performance.now() - tStart) / 1000,
     };
   } finally {
     run.dispose();
+  }
+}
+
+/**
+ * Guarantee the bound on the drive the qubit sees ("boundOn": "both"): the design holds
+ * it by a penalty (assembly/line.ts), which leaves an excess of the order of the figure's
+ * gradient over its weight; the line is linear, so scaling the samples by rabiMax over
+ * the drive's peak removes it (the figures reported are of the scaled pulse).
+ */
+function holdDriveBound(pulse: Pulse, line: Line, rabiMax: number): void {
+  const drive = qubitDrive(pulse, line);
+  let peak = 0;
+  for (let j = 0; j < drive.i.length; j++) peak = Math.max(peak, Math.hypot(drive.i[j], drive.q[j]));
+  if (peak <= rabiMax) return;
+  const f = (rabiMax / peak) * (1 - 2 ** -52);
+  for (let k = 0; k < pulse.i.length; k++) {
+    pulse.i[k] *= f;
+    pulse.q[k] *= f;
   }
 }
 

@@ -4,8 +4,9 @@ import { BUFFER, createBlock, readBuffer, setSamples } from './block.ts';
 import { checkPulse } from './encode.ts';
 import { blockSystem, encodeSystem } from './system.ts';
 import { checkPulseAngles } from './limits.ts';
+import { lineLayout, qubitDrive } from './line.ts';
 import { checkTarget } from './problem-check.ts';
-import type { LadderSystem, Member, Pulse, Target } from './types.ts';
+import type { LadderSystem, Line, Member, Pulse, Target } from './types.ts';
 import { getCore } from './wasm.ts';
 
 /** Figure and gradient of the weighted mean infidelity with respect to every sample (per Hz). */
@@ -27,16 +28,22 @@ export interface GradientJob {
   dispose(): void;
 }
 
-/** Place pulse, members, target (and a ladder system) in a held problem block for repeated gradient evaluations. */
-export function prepareGradientJob(target: Target, pulse: Pulse, members: Member[], system?: LadderSystem): GradientJob {
+/**
+ * Place pulse, members, target (and a ladder system) in a held problem block for repeated
+ * gradient evaluations; through `line` (its direct sum or FFT forced by `method`) when given.
+ */
+export function prepareGradientJob(
+  target: Target, pulse: Pulse, members: Member[], line?: Line, method?: 'direct' | 'fft', system?: LadderSystem,
+): GradientJob {
   checkTarget(target);
   checkPulse(pulse);
   const core = getCore();
   const n = pulse.i.length;
   const enc = encodeSystem(target, members, system);
   const m = enc.members.count, padded = enc.members.padded;
-  checkPulseAngles(pulse, members);
-  const p = createBlock(core, { ...blockSystem(enc), target, segments: n, dt: pulse.dt, held: true });
+  checkPulseAngles(qubitDrive(pulse, line), members);
+  const drive = line ? { drive: lineLayout(line, n, pulse.dt, method) } : {};
+  const p = createBlock(core, { ...blockSystem(enc), target, segments: n, dt: pulse.dt, held: true, ...drive });
   setSamples(core, p, pulse.i, pulse.q);
   const run = (): number => core.exports.problemGradient(p);
   return {
@@ -58,9 +65,11 @@ export function prepareGradientJob(target: Target, pulse: Pulse, members: Member
   };
 }
 
-/** Figure and exact gradient of a pulse on an ensemble (weights normalised). */
-export function figureAndGradient(target: Target, pulse: Pulse, members: Member[], system?: LadderSystem): FigureGradient {
-  const job = prepareGradientJob(target, pulse, members, system);
+/** Figure and exact gradient of a pulse on an ensemble (weights normalised), through `line` when given, on a ladder with `system`. */
+export function figureAndGradient(
+  target: Target, pulse: Pulse, members: Member[], line?: Line, method?: 'direct' | 'fft', system?: LadderSystem,
+): FigureGradient {
+  const job = prepareGradientJob(target, pulse, members, line, method, system);
   try {
     return job.result();
   } finally {

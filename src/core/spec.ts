@@ -5,6 +5,7 @@
 import { SpecError } from './errors.ts';
 import { parseLadderSpec } from './spec-system.ts';
 import { parseEnsemble } from './spec-ensemble.ts';
+import { parseLine } from './line-spec.ts';
 import { childPath, readBoolean, readChoice, readNumber, readObject, readText, readUnitVector } from './spec-fields.ts';
 import type { NumberRule } from './spec-fields.ts';
 import type { Constraints, OptimizerSettings, Problem, Target } from './types.ts';
@@ -28,7 +29,7 @@ export const DEFAULT_OPTIMIZER: Readonly<OptimizerSettings> = {
   memory: 12,
 };
 
-const TOP_KEYS = ['name', 'description', 'target', 'duration', 'segments', 'rabiMax', 'ensemble', 'constraints', 'optimizer', 'system'];
+const TOP_KEYS = ['name', 'description', 'target', 'duration', 'segments', 'rabiMax', 'ensemble', 'constraints', 'optimizer', 'line', 'system'];
 
 /**
  * Validates a design spec (parsed JSON) and returns the normalised problem: the qubit,
@@ -58,7 +59,8 @@ export function parseQubitSpec(json: unknown): Problem {
   const members = parseEnsemble(spec.ensemble);
   const constraints = parseConstraints(spec.constraints, segments);
   const optimizer = parseOptimizer(spec.optimizer);
-  return { target, duration, segments, dt, rabiMax, members, constraints, optimizer };
+  const line = parseLine(spec.line, dt, segments);
+  return { target, duration, segments, dt, rabiMax, members, constraints, optimizer, ...(line ? { line } : {}) };
 }
 
 /** Parses spec text (a file's contents) as JSON, turning a syntax error into a SpecError. */

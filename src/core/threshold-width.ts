@@ -70,7 +70,7 @@ export function thresholdInterval(target: Target, pulse: Pulse, axis: ErrorAxis,
           ? { detuning: sign * x, amplitudeError: 0, weight: 1 }
           : { detuning: 0, amplitudeError: sign * x, weight: 1 },
       );
-      const figures = evaluateMembers(target, pulse, members, system).members;
+      const figures = evaluateMembers(target, pulse, members, undefined, system).members;
       return Float64Array.from(figures, (m) => Math.sqrt(m.infidelity));
     };
     return firstCrossing(g, bound, rootThreshold, limit);

@@ -3,6 +3,7 @@ import { blochTrajectory, design, evaluateMembers, robustnessMap } from '../core
 import { compare, evaluateJudged } from '../core/compare.ts';
 import { compositeNames } from '../core/composites.ts';
 import { dragFamily } from '../core/drag-family.ts';
+import { qubitDrive } from '../core/line.ts';
 import { cuts } from '../core/robustness.ts';
 import { parseSpec } from '../core/spec.ts';
 import { readPulse, writePulse } from '../io/pulse.ts';
@@ -17,6 +18,7 @@ export const library: CoreLibrary = {
   evaluateMembers,
   robustnessMap,
   blochTrajectory,
+  qubitDrive: (pulse, line) => qubitDrive(pulse, line),
   compare,
   cuts,
   composites: [...compositeNames, ...dragFamily],

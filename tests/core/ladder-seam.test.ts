@@ -33,7 +33,7 @@ describe('the ladder through the system seam', () => {
   it('evaluates per member as the ladder oracle does (infidelity, leakage, free phase)', () => {
     const pulse = randomPulse(12, 0.5e-9, 1.5e8);
     for (const target of [X180, { ...X180, freePhaseAfter: true }, { kind: 'state', from: [0, 0, 1], to: [0, 0, -1] } as Target]) {
-      const ev = evaluateMembers(target, pulse, members, TRANSMON);
+      const ev = evaluateMembers(target, pulse, members, undefined, TRANSMON);
       const free = target.kind === 'gate' && target.freePhaseAfter === true;
       ev.members.forEach((fig, j) => {
         const u = oracle.ladderPulsePropagator(pulse, { ...members[j], anharmonicityError: members[j].anharmonicityError! }, TRANSMON);
@@ -49,7 +49,7 @@ describe('the ladder through the system seam', () => {
 
   it('gives the gradient of the problem block as the oracle and central differences do', () => {
     const pulse = randomPulse(8, 0.6e-9, 1.2e8);
-    const fg = figureAndGradient(X180, pulse, members, TRANSMON);
+    const fg = figureAndGradient(X180, pulse, members, undefined, undefined, TRANSMON);
     const ref = oracle.ladderEnsembleGradient(X180, pulse, members.map((m) => ({ ...m, anharmonicityError: m.anharmonicityError! })), TRANSMON);
     expectClose(fg.mean, ref.mean, { abs: 1e-12 }, 'mean');
     expect(normwiseRelativeError(fg.gradI, ref.gradI)).toBeLessThan(1e-10);
@@ -59,7 +59,7 @@ describe('the ladder through the system seam', () => {
     const at = (di: number): number => {
       const p = { ...pulse, i: pulse.i.slice() };
       p.i[k] += di;
-      return evaluateMembers(X180, p, members, TRANSMON).meanInfidelity;
+      return evaluateMembers(X180, p, members, undefined, TRANSMON).meanInfidelity;
     };
     expectClose(fg.gradI[k], (at(h) - at(-h)) / (2 * h), { rel: 1e-6 }, 'central difference');
   });
@@ -100,8 +100,8 @@ describe('the ladder through the system seam', () => {
   it('maps infidelity and leakage on the grid as evaluateMembers gives them at each point', () => {
     const pulse = randomPulse(10, 0.6e-9, 1.2e8);
     const det = { min: -5e6, max: 5e6, points: 3 }, amp = { min: -0.05, max: 0.05, points: 2 };
-    const map = robustnessMap(X180, pulse, det, amp, TRANSMON);
-    const point = evaluateMembers(X180, pulse, [{ detuning: 5e6, amplitudeError: 0.05, weight: 1 }], TRANSMON).members[0];
+    const map = robustnessMap(X180, pulse, det, amp, undefined, TRANSMON);
+    const point = evaluateMembers(X180, pulse, [{ detuning: 5e6, amplitudeError: 0.05, weight: 1 }], undefined, TRANSMON).members[0];
     expect(map.infidelity[5]).toBe(point.infidelity);
     expect(map.leakage![5]).toBe(point.leakage);
     expect(robustnessMap(X180, pulse, det, amp).leakage).toBeUndefined();
@@ -109,6 +109,6 @@ describe('the ladder through the system seam', () => {
 
   it('refuses a Bloch trajectory on more than two levels, naming the field', () => {
     const pulse = randomPulse(4, 1e-9, 1e8);
-    expect(() => blochTrajectory(pulse, members[0], [0, 0, 1], TRANSMON)).toThrow(/system\.levels: 5 .*two levels only/);
+    expect(() => blochTrajectory(pulse, members[0], [0, 0, 1], undefined, TRANSMON)).toThrow(/system\.levels: 5 .*two levels only/);
   });
 });
