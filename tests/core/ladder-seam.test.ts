@@ -4,6 +4,7 @@
 // (tests/reference/ladder-oracle.ts), central differences, the qubit kernels on two levels,
 // and the transmon issue's statement that the X(180) below reaches 1e-6 on 7 levels
 // (checked there with an independent implementation).
+import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { blochTrajectory, design, evaluate, evaluateMembers, robustnessMap } from '../../src/core/api.ts';
 import { figureAndGradient } from '../../src/core/gradient.ts';
@@ -105,6 +106,18 @@ describe('the ladder through the system seam', () => {
     expect(map.infidelity[5]).toBe(point.infidelity);
     expect(map.leakage![5]).toBe(point.leakage);
     expect(robustnessMap(X180, pulse, det, amp).leakage).toBeUndefined();
+  });
+
+  it('through a line: the drive map of the block into the ladder gives the figure of the drive evaluated on the ladder', () => {
+    // Two paths: the drive map inside the problem block (assembly/drive.ts, then the ladder
+    // kernels) and the line's drive computed in TypeScript (qubitDrive), then evaluated.
+    const spec = JSON.parse(readFileSync(new URL('../../examples/transmon-x90-line.json', import.meta.url), 'utf8'));
+    const problem = parseSpec({ ...spec, system: TRANSMON });
+    const pulse = randomPulse(problem.segments, problem.dt, 3e7);
+    const viaBlock = figureAndGradient(problem.target, pulse, problem.members, problem.line, undefined, problem.system);
+    const viaDrive = evaluateMembers(problem.target, pulse, problem.members, problem.line, problem.system);
+    expectClose(viaBlock.mean, viaDrive.meanInfidelity, { rel: 1e-10 }, 'figure through the line');
+    expect(normwiseRelativeError(viaBlock.leakage!, viaDrive.members.map((m) => m.leakage!))).toBeLessThan(1e-10);
   });
 
   it('refuses a Bloch trajectory on more than two levels, naming the field', () => {
