@@ -3,6 +3,7 @@
 //   npm run bench            table for people
 //   npm run bench -- --json  {"objectiveGradient": [...], "ladder": [...], "dragCalibration": [...], "design": [...], "maps": [...], "line": {...}, "app": {...}}
 //   npm run bench -- --no-app  without the browser figures (bench/app-bench.ts)
+//   npm run bench -- --no-command  without the command's start-up and Ctrl-C figures (bench/command-bench.ts)
 import { readFileSync, readdirSync } from 'node:fs';
 import { design, evaluateMembers, robustnessMap } from '../src/core/api.ts';
 import { createBlock, freeBlock, setSamples } from '../src/core/block.ts';
@@ -16,6 +17,7 @@ import type { Line, Member, Pulse, Target } from '../src/core/types.ts';
 import { getCore } from '../src/core/wasm.ts';
 import { ensembleGradient as oracleGradient, memberInfidelity } from '../tests/reference/oracle.ts';
 import { appBenchmark, type AppFigures } from './app-bench.ts';
+import { commandBenchmark, type CommandFigures } from './command-bench.ts';
 
 const json = process.argv.includes('--json');
 const log = (text: string): void => {
@@ -177,7 +179,7 @@ for (const file of readdirSync(exampleDir).filter((f) => f.endsWith('.json')).so
   log(`${row.name.padEnd(26)} ${wallS.toFixed(3).padStart(6)}   ${row.meanInfidelity.toExponential(2).padStart(15)}   ${row.worstInfidelity.toExponential(2).padStart(16)}   ${String(row.iterations).padStart(4)}${ladderText}`);
 }
 
-// 6. The line: the drive map's two methods (the FFT crossover), and designs with and without a line.
+// 5. The line: the drive map's two methods (the FFT crossover), and designs with and without a line.
 log('\nthe line\'s drive map, samples -> drive (one block, forward map alone): direct sum against FFT');
 log('samples  kernel (held)  FFT size   direct us      FFT us   n Lc / (N log2 N)');
 const lineMaps: { samples: number; heldKernel: number; fftSize: number; directUs: number; fftUs: number; ratio: number }[] = [];
@@ -227,7 +229,14 @@ for (const file of readdirSync(exampleDir).filter((f) => f.endsWith('.json')).so
   log(`${row.name.padEnd(26)} ${row.withoutS.toFixed(3).padStart(9)}  ${row.withS.toFixed(3).padStart(7)}   ${row.meanWithout.toExponential(2)} / ${row.meanWith.toExponential(2)}`);
 }
 
-// 5. The app in headless Chromium (skipped without /usr/bin/chromium).
+// 6. The compiled command: start-up against bare Node, Ctrl-C latency.
+let command: CommandFigures | null = null;
+if (!process.argv.includes('--no-command')) {
+  log('');
+  command = await commandBenchmark(log);
+}
+
+// 7. The app in headless Chromium (skipped without /usr/bin/chromium).
 let app: AppFigures | null = null;
 if (!process.argv.includes('--no-app')) {
   log('');
@@ -235,5 +244,5 @@ if (!process.argv.includes('--no-app')) {
 }
 
 if (json) {
-  process.stdout.write(JSON.stringify({ objectiveGradient, ladder, dragCalibration, design: designs, maps, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs }, line: { maps: lineMaps, crossover, designs: lineDesigns }, app }) + '\n');
+  process.stdout.write(JSON.stringify({ objectiveGradient, ladder, dragCalibration, design: designs, maps, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs }, line: { maps: lineMaps, crossover, designs: lineDesigns }, command, app }) + '\n');
 }

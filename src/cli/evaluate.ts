@@ -3,18 +3,19 @@
 import type { JudgedEvaluation } from '../core/compare.ts';
 import { describeLine, lineJson } from '../core/line-spec.ts';
 import type { Line, Problem, Pulse } from '../core/types.ts';
+import { targetJson } from '../io/target-json.ts';
 import { optionsHelp, usageLine } from './args.ts';
 import type { ArgSpec } from './args.ts';
 import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
-import { loadSpec, loadWaveform } from './files.ts';
+import { loadSpec, loadWaveform, printWarnings } from './files.ts';
 import { formatFrequency, formatInfidelity, formatRelative, formatTarget, formatTime } from './format.ts';
 
 const ARGS: ArgSpec = {
   command: 'evaluate',
   positionals: ['SPEC', 'PULSE'],
   flags: [
-    { name: 'json', help: 'print {members, meanInfidelity, worstInfidelity, target, note} as JSON instead of a table' },
+    { name: 'json', help: 'print {members, meanInfidelity, worstInfidelity, target, note, warnings} as JSON instead of a table' },
     { name: 'no-line', help: "ignore the spec's line: the figures of the held samples as if the qubit saw them (the naive figure)" },
   ],
 };
@@ -46,7 +47,8 @@ export const evaluateCommand: Command = defineCommand({
   async body([specPath, pulsePath], flags, io: CliIO): Promise<number> {
     const spec = loadSpec(specPath);
     const pulse = await loadWaveform(pulsePath);
-    for (const warning of mismatches(pulse, spec.problem)) io.stderr(`warning: ${warning}\n`);
+    const warnings = [...spec.warnings, ...mismatches(pulse, spec.problem)];
+    printWarnings(io, warnings);
 
     // Loaded here so that --help and bad input never wait for the wasm core.
     const { evaluateJudged } = await import('../core/compare.ts');
@@ -67,10 +69,11 @@ export const evaluateCommand: Command = defineCommand({
         ...(evaluation.meanLeakage !== undefined
           ? { levels: evaluation.levels, meanLeakage: evaluation.meanLeakage, worstLeakage: evaluation.worstLeakage, meanAverageInfidelity: evaluation.meanAverageInfidelity }
           : {}),
-        target: evaluation.target,
+        target: targetJson(evaluation.target),
         note: evaluation.note,
         // With a line in the spec: the line the figures went through (null: --no-line).
         ...(spec.problem.line ? { line: noLine ? null : lineJson(spec.problem.line) } : {}),
+        warnings,
       };
       io.stdout(JSON.stringify(json, null, 2) + '\n');
     } else {
@@ -87,7 +90,9 @@ function mismatches(pulse: Pulse, problem: Problem): string[] {
   let peak = 0;
   for (let k = 0; k < pulse.i.length; k++) peak = Math.max(peak, Math.hypot(pulse.i[k], pulse.q[k]));
   if (peak > problem.rabiMax * (1 + 1e-12)) {
-    warnings.push(`the pulse peaks at ${formatFrequency(peak)}, above the spec's rabiMax ${formatFrequency(problem.rabiMax)}`);
+    // The excess in words too: a quantised waveform may pass rabiMax by a fraction of a code.
+    const excess = Number((((peak - problem.rabiMax) / problem.rabiMax) * 100).toPrecision(2));
+    warnings.push(`the pulse peaks at ${peak} Hz, ${excess} % above the spec's rabiMax ${formatFrequency(problem.rabiMax)}`);
   }
   const length = pulse.dt * pulse.i.length;
   if (Math.abs(length - problem.duration) > 1e-9 * problem.duration) {

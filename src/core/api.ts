@@ -41,9 +41,15 @@ export interface RobustnessMap {
   leakage?: Float64Array;
 }
 
+/**
+ * The core's wasm: its bytes, a URL to fetch it from, or a compiled WebAssembly.Module (typed
+ * without the DOM's names, so that a Node-only TypeScript project checks these declarations).
+ */
+export type CoreSource = ArrayBuffer | ArrayBufferView | URL | string | object;
+
 /** Load the wasm core from a URL, bytes or module (browsers; Node loads it by itself). */
-export async function initCore(source: BufferSource | WebAssembly.Module | URL | string): Promise<void> {
-  await loadCore(source);
+export async function initCore(source: CoreSource): Promise<void> {
+  await loadCore(source as Parameters<typeof loadCore>[0]);
 }
 
 function isProblem(spec: unknown): spec is Problem {
@@ -235,7 +241,7 @@ async function designNow(problem: Problem, options: DesignOptions): Promise<Desi
 }
 
 /** The design result of finished starts: the best (best-start.ts) is evaluated, through the problem's line. */
-function bestOfStarts(problem: Problem, starts: StartResult[], t0: number): DesignResult {
+export function bestOfStarts(problem: Problem, starts: StartResult[], t0: number): DesignResult {
   const best = bestStart(starts);
   const evaluation = evaluateMembers(problem.target, best.pulse, problem.members, problem.line, problem.system);
   if (problem.line) best.pulse.metadata.line = lineJson(problem.line);

@@ -4,6 +4,7 @@
 // The format is described for users in docs/spec.md.
 import { SpecError } from './errors.ts';
 import { parseLadderSpec } from './spec-system.ts';
+import { parseJsonText } from './json-text.ts';
 import { parseEnsemble } from './spec-ensemble.ts';
 import { parseLine } from './line-spec.ts';
 import { childPath, readBoolean, readChoice, readNumber, readObject, readText, readUnitVector } from './spec-fields.ts';
@@ -66,10 +67,12 @@ export function parseQubitSpec(json: unknown): Problem {
 /** Parses spec text (a file's contents) as JSON, turning a syntax error into a SpecError. */
 export function specJsonFromText(text: string): unknown {
   try {
-    return JSON.parse(text);
+    return parseJsonText(text);
   } catch (error) {
-    const reason = error instanceof Error ? error.message : String(error);
-    throw new SpecError('spec', text.trim().slice(0, 30), `the spec must be valid JSON (${reason})`);
+    // The syntax error says where; the text itself is not echoed (it may not be text at all).
+    const e = new SpecError('spec', undefined, '');
+    e.message = (error as Error).message;
+    throw e;
   }
 }
 
