@@ -27,6 +27,7 @@ try {
       // A stage of a pruned design (api.ts DesignOptions.stage): each start alone to the
       // pruning point, or on to its end.
       stage: workerData.stage,
+      initialPulse: workerData.initialPulse,
       onProgress: (progress) => post({ kind: 'progress', progress }),
     });
     post({ kind: 'start', result: result.starts[0] });
