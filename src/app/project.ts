@@ -20,8 +20,9 @@ export interface StoredPulse {
   id: string;
   label: string;
   dt: number;
-  i: number[];
-  q: number[];
+  /** Plain arrays in a file; typed arrays in the browser's store, which copies them in one piece. */
+  i: number[] | Float64Array;
+  q: number[] | Float64Array;
   metadata: Record<string, unknown>;
   evaluation?: Pick<Evaluation, 'meanInfidelity' | 'worstInfidelity'>;
 }
@@ -78,7 +79,11 @@ function finite(value: unknown, where: string, check: (x: number) => boolean = (
   return value;
 }
 
-function samples(value: unknown, where: string): number[] {
+function samples(value: unknown, where: string): number[] | Float64Array {
+  if (value instanceof Float64Array && value.length > 0) {
+    for (let k = 0; k < value.length; k++) if (!Number.isFinite(value[k])) fail(`${where}[${k}]`, value[k], 'expected a finite number');
+    return value;
+  }
   if (!Array.isArray(value) || value.length === 0) fail(where, value, 'expected a non-empty array of numbers (Hz)');
   value.forEach((x, k) => finite(x, `${where}[${k}]`));
   return value as number[];

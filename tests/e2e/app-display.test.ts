@@ -201,4 +201,48 @@ describe.skipIf(reason !== null)('what the app draws, in Chromium', () => {
     expect({ pad50, pad99, at145, at135, design145 }).toEqual({ pad50: false, pad99: false, at145: true, at135: false, design145: true });
     await screenshot(page, 'display-03-export-padding');
   }, 120_000);
+
+  it('shows, while a run goes, the figures of the pulse it draws, and every start\'s whole curve', async () => {
+    const { page } = await fresh();
+    // 5 starts of at most 300 iterations each: every start ends on the budget (or earlier).
+    await typeInto(page, '#f-iterations', '300');
+    await page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement).disabled);
+    await page.getByTestId('run').click();
+    // Sampled while the run goes: the pulse the figures are of is the pulse drawn.
+    const seen: Array<{ figures: string; caption: string }> = [];
+    for (let k = 0; k < 40; k++) {
+      const state = await page.evaluate(() => {
+        const figures = document.querySelector('[data-testid=run-figures]');
+        const caption = document.querySelector('[data-testid=live-caption]');
+        const status = document.querySelector('[data-testid=run-status]')?.textContent ?? '';
+        const of = (e: Element | null) => (e ? `${e.getAttribute('data-start')}/${e.getAttribute('data-iteration')}` : '');
+        return { figures: of(figures), caption: of(caption), done: /^(done|stopped)/.test(status) };
+      });
+      if (state.done) break;
+      if (state.caption) seen.push({ figures: state.figures, caption: state.caption });
+      await page.waitForTimeout(60);
+    }
+    expect(seen.length).toBeGreaterThan(0);
+    for (const s of seen) expect(s.figures).toBe(s.caption);
+    await page.waitForFunction(() => /^done/.test(document.querySelector('[data-testid=run-status]')?.textContent ?? ''), undefined, { timeout: 90_000 });
+    await page.waitForTimeout(600);
+    // Every start's curve runs from iteration 0 to the iterations the starts table gives it.
+    const rows = await page.locator('table.starts tbody tr').evaluateAll((trs) =>
+      trs.map((tr) => ({ start: parseInt(tr.children[0].textContent ?? '', 10), mean: tr.children[1].textContent?.trim(), iterations: Number(tr.children[2].textContent) })),
+    );
+    expect(rows.length).toBe(5);
+    for (const row of rows) {
+      const curve = await seriesData(page, 'convergence-chart', `start ${row.start}`);
+      expect(curve[0].x).toBe(0);
+      expect(curve.at(-1)!.x).toBe(row.iterations);
+      // Every iteration is reported; a record keeps at most 600 points a start (src/app/convergence.ts).
+      expect(curve.length).toBeGreaterThanOrEqual(Math.min(row.iterations + 1, 300));
+    }
+    // The figures shown at the end are those of the best start's pulse.
+    const best = await page.locator('table.starts tr.best td').first().textContent();
+    const bestRow = rows.find((r) => best?.startsWith(String(r.start)))!;
+    expect(await page.getByTestId('run-mean').textContent()).toBe(bestRow.mean);
+    expect(await page.getByTestId('run-figures').getAttribute('data-start')).toBe(String(bestRow.start));
+    await screenshot(page, 'display-04-run-figures');
+  }, 150_000);
 });

@@ -64,13 +64,14 @@ export function newPulseId(prefix: string): string {
   return `${prefix}-${Date.now().toString(36)}-${(nextId++).toString(36)}`;
 }
 
-function storedPulse(entry: PulseEntry): StoredPulse {
+// The store keeps typed arrays (copied in one piece); a file needs plain arrays for its JSON.
+function storedPulse(entry: PulseEntry, typed: boolean): StoredPulse {
   return {
     id: entry.id,
     label: entry.label,
     dt: entry.pulse.dt,
-    i: Array.from(entry.pulse.i),
-    q: Array.from(entry.pulse.q),
+    i: typed ? entry.pulse.i : Array.from(entry.pulse.i),
+    q: typed ? entry.pulse.q : Array.from(entry.pulse.q),
     metadata: entry.pulse.metadata,
     ...(entry.evaluation ? { evaluation: { ...entry.evaluation } } : {}),
   };
@@ -213,6 +214,12 @@ export class Session {
     this.changed();
   }
 
+  /** Replaces some fields of a pulse entry (its figures, once known). */
+  updatePulse(id: string, patch: Partial<Omit<PulseEntry, 'id'>>): void {
+    this.pulses = this.pulses.map((p) => (p.id === id ? { ...p, ...patch } : p));
+    this.changed();
+  }
+
   /** Forgets a pulse. */
   removePulse(id: string): void {
     this.pulses = this.pulses.filter((p) => p.id !== id);
@@ -257,14 +264,14 @@ export class Session {
     return true;
   }
 
-  /** The session as a project. */
-  toProject(): Project {
+  /** The session as a project; `typed` keeps the samples as typed arrays (for the browser's store, not for a file). */
+  toProject(typed = false): Project {
     return {
       format: PROJECT_FORMAT,
       version: PROJECT_VERSION,
       savedAt: isoTimestamp(Date.now()),
       spec: $state.snapshot(this.spec) as Record<string, unknown>,
-      pulses: this.pulses.map(storedPulse),
+      pulses: this.pulses.map((p) => storedPulse(p, typed)),
       settings: { ...$state.snapshot(this.settings), view: this.view, selectedPulse: this.selectedId } as ViewSettings,
     };
   }
@@ -326,7 +333,7 @@ export class Session {
     this.saveTimer = null;
     if (!this.storage) return;
     try {
-      await this.storage.save(this.toProject());
+      await this.storage.save(this.toProject(true));
       this.saveError = null;
     } catch (error) {
       this.saveError = (error as Error).message;
