@@ -16,7 +16,7 @@ import {
 import { samplesPerSegment } from '../io/export/resample.ts';
 import type { ExportPreview } from '../worker/protocol.ts';
 import type { PulseEntry } from './state/session.svelte.ts';
-import { roundUpTwoDigits } from './units.ts';
+import { formatQuantity, roundUpTwoDigits } from './units.ts';
 
 /**
  * What the export form holds: the library's settings (Hz, samples) with `maxLength` null for
@@ -103,6 +103,22 @@ export function checkExportForm(form: ExportForm): ExportFormCheck {
     if (e?.name !== 'SpecError') throw error;
     return { ok: false, field: typeof e.field === 'string' ? e.field : '', message: e.message ?? String(error) };
   }
+}
+
+/** Most samples a channel the page exports: beyond it a file would not fit in the browser's memory. */
+export const MAX_EXPORT_SAMPLES = 2 ** 24;
+
+/** A sample rate that would make the export of `pulse` longer than MAX_EXPORT_SAMPLES, refused in the form's words; else null. */
+export function exportLengthRefusal(form: Pick<ExportForm, 'sampleRate'>, pulse: Pick<Pulse, 'dt' | 'i'> | null): { field: 'sampleRate'; message: string } | null {
+  if (!pulse || !(form.sampleRate > 0)) return null;
+  const samples = pulse.i.length * pulse.dt * form.sampleRate;
+  if (samples <= MAX_EXPORT_SAMPLES) return null;
+  const rate = formatQuantity(form.sampleRate, 'frequency', { significant: 4 }).replace(/Hz$/, 'S/s');
+  const duration = formatQuantity(pulse.i.length * pulse.dt, 'time', { significant: 4 });
+  return {
+    field: 'sampleRate',
+    message: `Sample rate: ${rate} would give ${samples.toExponential(2)} samples for this ${duration} pulse; the page exports at most ${MAX_EXPORT_SAMPLES} samples a channel (${formatQuantity(MAX_EXPORT_SAMPLES / (pulse.i.length * pulse.dt), 'frequency', { significant: 3 }).replace(/Hz$/, 'S/s')} at most for this pulse)`,
+  };
 }
 
 /** The units the file will hold: the form's choice where the format offers it, else the format's only one. */

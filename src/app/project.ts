@@ -31,7 +31,8 @@ export interface StoredPulse {
 export interface ViewSettings {
   view: string;
   selectedPulse: string | null;
-  map: { detuning: { min: number; max: number; points: number }; amplitudeError: { min: number; max: number; points: number }; threshold: number };
+  /** The robustness and comparison region; it follows the spec's ensemble unless `byHand` (set from the map's fields). */
+  map: { detuning: { min: number; max: number; points: number }; amplitudeError: { min: number; max: number; points: number }; threshold: number; byHand?: boolean };
   compare: { composites: string[] };
   bloch: { from: string; member: number };
   /** The export panel's form, once edited (until then it follows the spec and the pulse). */
@@ -171,6 +172,7 @@ function readSettings(value: unknown): ViewSettings {
       detuning: axis(map.detuning, 'settings.map.detuning'),
       amplitudeError: axis(map.amplitudeError, 'settings.map.amplitudeError'),
       threshold: finite(map.threshold, 'settings.map.threshold', (x) => x > 0 && x < 1, 'a threshold between 0 and 1'),
+      ...(map.byHand === true ? { byHand: true } : {}),
     },
     compare: { composites: composites as string[] },
     bloch: { from: bloch.from as string, member: finite(bloch.member, 'settings.bloch.member', Number.isInteger, 'a member index (-1: no error)') },

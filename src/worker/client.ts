@@ -13,6 +13,7 @@ import type {
   ExportFileOptions,
   ExportJudge,
   ExportPreview,
+  FileProgressSink,
   LivePulse,
   MapResult,
   ProgressBatch,
@@ -339,6 +340,11 @@ export class CoreClient {
   /** Reads a pulse file (rejects with a PulseFormatError named error when malformed). */
   readPulse(text: string): Promise<Pulse> {
     return this.analysis.readPulse(text);
+  }
+
+  /** Reads a pulse file in the analysis worker (the page only passes it on), with progress. */
+  readPulseFile(file: Blob, onProgress?: FileProgressSink): Promise<Pulse> {
+    return this.analysis.readPulseFile(file, onProgress ? proxy(onProgress) : undefined);
   }
 
   /** Pulse file text of a pulse. */

@@ -32,6 +32,9 @@ export interface ProgressBatch {
   live: LivePulse[];
 }
 
+/** Called while a file is read: the fraction of its bytes read, and what is being done. */
+export type FileProgressSink = (fraction: number, stage: 'reading' | 'checking') => void;
+
 /** Called with each batch while a design runs. */
 export type ProgressSink = (batch: ProgressBatch) => void;
 
@@ -163,6 +166,8 @@ export interface CoreService {
   trajectory(pulse: Pulse, member: Member, from: Vec3): Promise<Float64Array>;
   /** Reads a pulse file's text (PulseFormatError when malformed). */
   readPulse(text: string): Pulse;
+  /** Reads a pulse file itself, reporting the fraction read so far (PulseFormatError when malformed). */
+  readPulseFile(file: Blob, onProgress?: FileProgressSink): Promise<Pulse>;
   /** Writes a pulse file's text. */
   writePulse(pulse: Pulse): string;
   /** The waveform as the instrument plays it and its report, judged on the members when given (ExportError when refused). */

@@ -90,6 +90,31 @@ class ProgressBatcher {
   }
 }
 
+/** Fraction of a file read between two progress reports. */
+const FILE_PROGRESS_STEP = 0.05;
+
+/** A file's text, decoded as UTF-8 as its chunks arrive, with the fraction read reported now and then. */
+export async function readWithProgress(file: Blob, onFraction: (fraction: number) => void): Promise<string> {
+  if (typeof file.stream !== 'function' || file.size === 0) return file.text();
+  const reader = file.stream().getReader();
+  const decoder = new TextDecoder();
+  const parts: string[] = [];
+  let read = 0;
+  let reported = 0;
+  for (;;) {
+    const { done, value } = await reader.read();
+    if (done) break;
+    read += value.byteLength;
+    parts.push(decoder.decode(value, { stream: true }));
+    if (read / file.size - reported >= FILE_PROGRESS_STEP) {
+      reported = read / file.size;
+      onFraction(reported);
+    }
+  }
+  parts.push(decoder.decode());
+  return parts.join('');
+}
+
 /** Axis phase (degrees) and angle of a gate target whose axis lies in the xy-plane, else null. */
 export function planarGate(target: Target): { angleDeg: number; axisDeg: number } | null {
   if (target.kind !== 'gate' || Math.abs(target.axis[2]) > 1e-9) return null;
@@ -244,6 +269,17 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
 
     readPulse(text) {
       return moved(library.readPulse(text));
+    },
+
+    async readPulseFile(file, onProgress) {
+      // Read here, off the page's thread: a pulse file may be tens of megabytes.
+      try {
+        const text = await readWithProgress(file, (fraction) => void onProgress?.(fraction, 'reading'));
+        await onProgress?.(1, 'checking');
+        return moved(library.readPulse(text));
+      } finally {
+        (onProgress as { [releaseProxy]?: () => void } | undefined)?.[releaseProxy]?.();
+      }
     },
 
     writePulse(pulse) {

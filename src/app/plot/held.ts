@@ -38,7 +38,7 @@ export function heldRuns(values: ArrayLike<number>, dt: number, start: number, t
 }
 
 /** Most points a held series is drawn with: beyond it the samples are summarised per bucket. */
-export const MAX_HELD_POINTS = 2048;
+export const MAX_HELD_POINTS = 1200;
 
 /**
  * Held samples for a chart of at most about `maxPoints` points: the runs when they are few
