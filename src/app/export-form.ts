@@ -113,11 +113,11 @@ export function exportLengthRefusal(form: Pick<ExportForm, 'sampleRate'>, pulse:
   if (!pulse || !(form.sampleRate > 0)) return null;
   const samples = pulse.i.length * pulse.dt * form.sampleRate;
   if (samples <= MAX_EXPORT_SAMPLES) return null;
-  const rate = formatQuantity(form.sampleRate, 'frequency', { significant: 4 }).replace(/Hz$/, 'S/s');
-  const duration = formatQuantity(pulse.i.length * pulse.dt, 'time', { significant: 4 });
+  const rate = formatQuantity(Number(form.sampleRate.toPrecision(4)), 'frequency').replace(/Hz$/, 'S/s');
+  const duration = formatQuantity(Number((pulse.i.length * pulse.dt).toPrecision(4)), 'time');
   return {
     field: 'sampleRate',
-    message: `Sample rate: ${rate} would give ${samples.toExponential(2)} samples for this ${duration} pulse; the page exports at most ${MAX_EXPORT_SAMPLES} samples a channel (${formatQuantity(MAX_EXPORT_SAMPLES / (pulse.i.length * pulse.dt), 'frequency', { significant: 3 }).replace(/Hz$/, 'S/s')} at most for this pulse)`,
+    message: `Sample rate: ${rate} would give ${samples.toExponential(2)} samples for this ${duration} pulse; the page exports at most ${MAX_EXPORT_SAMPLES} samples a channel (${formatQuantity(Number((MAX_EXPORT_SAMPLES / (pulse.i.length * pulse.dt)).toPrecision(3)), 'frequency').replace(/Hz$/, 'S/s')} at most for this pulse)`,
   };
 }
 

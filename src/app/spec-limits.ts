@@ -71,6 +71,8 @@ export function inFormWords(error: ErrorInfo): string {
 export const MAX_TURNS_PER_SAMPLE = 1e6;
 /** Largest relative amplitude error the form accepts (the drive 100 times its nominal). */
 export const MAX_AMPLITUDE_ERROR = 100;
+/** A sample period longer than this (1 ms) is far from any qubit drive's (common practice). */
+export const ODD_SAMPLE_PERIOD_S = 1e-3;
 /** Above this peak Rabi frequency a drive is unusual for any qubit (common practice). */
 export const ODD_RABI_HZ = 1e9;
 /** A detuning range wider than this many times the peak Rabi frequency cannot be corrected by any pulse. */
@@ -90,8 +92,10 @@ export interface SpecLimits {
   warnings: FieldNoteText[];
 }
 
-const f = (hz: number) => formatQuantity(hz, 'frequency', { significant: 3 });
-const t = (s: number) => formatQuantity(s, 'time', { significant: 5 });
+// Rounded first, then printed in their shortest digits: "1e21 GHz", not "1.00e21 GHz".
+const f = (hz: number) => formatQuantity(Number(hz.toPrecision(3)), 'frequency');
+const t = (s: number) => formatQuantity(Number(s.toPrecision(5)), 'time');
+const times = (x: number) => Number(x.toPrecision(2)).toExponential().replace('e+', 'e');
 
 /**
  * The limits of a spec: refused where the qubit would turn more than MAX_TURNS_PER_SAMPLE
@@ -119,24 +123,30 @@ export function specLimits(problem: Problem, exportSampleRate: number): SpecLimi
     }
   }
   if (largestError > MAX_AMPLITUDE_ERROR) {
-    refusals.push({ field: errorField, message: `${FIELD_WORDS[errorField].label}: an amplitude error of ${formatQuantity(largestError, 'relative', { significant: 3 })} is beyond what the form accepts (±${formatQuantity(MAX_AMPLITUDE_ERROR, 'relative')})` });
+    refusals.push({ field: errorField, message: `${FIELD_WORDS[errorField].label}: an amplitude error of ${formatQuantity(Number(largestError.toPrecision(3)), 'relative')} is beyond what the form accepts (±${formatQuantity(MAX_AMPLITUDE_ERROR, 'relative')})` });
   }
   const driveTurns = rabiMax * (1 + Math.min(largestError, MAX_AMPLITUDE_ERROR)) * dt;
-  if (driveTurns > MAX_TURNS_PER_SAMPLE) {
-    // Whichever of the two is far from any lab's values is the one to fix.
-    const blameDuration = dt > 1e-3;
-    const field = blameDuration ? 'duration' : 'rabiMax';
-    const what = blameDuration ? `a sample period of ${t(dt)}` : `a peak Rabi frequency of ${f(rabiMax)}`;
+  const detuningTurns = largestDetuning * dt;
+  if (Math.max(driveTurns, detuningTurns) > MAX_TURNS_PER_SAMPLE && dt > ODD_SAMPLE_PERIOD_S) {
+    // A sample period far from any lab's is the one value to fix.
+    const turns = Math.max(driveTurns, detuningTurns);
     refusals.push({
-      field,
-      message: `${FIELD_WORDS[field].label}: ${what} turns the qubit ${driveTurns.toExponential(1)} times within one sample (${f(rabiMax)} × ${t(dt)}); the core computes at most ${MAX_TURNS_PER_SAMPLE.toExponential(0)} turns a sample`,
+      field: 'duration',
+      message: `Duration: a sample period of ${t(dt)} turns the qubit ${times(turns)} times within one sample; the core computes at most ${times(MAX_TURNS_PER_SAMPLE)} turns a sample`,
     });
-  }
-  if (largestDetuning * dt > MAX_TURNS_PER_SAMPLE) {
-    refusals.push({
-      field: detuningField,
-      message: `${FIELD_WORDS[detuningField].label}: a detuning of ${f(largestDetuning)} turns the qubit ${(largestDetuning * dt).toExponential(1)} times within one sample of ${t(dt)}; the core computes at most ${MAX_TURNS_PER_SAMPLE.toExponential(0)} turns a sample`,
-    });
+  } else {
+    if (driveTurns > MAX_TURNS_PER_SAMPLE) {
+      refusals.push({
+        field: 'rabiMax',
+        message: `Peak Rabi: a peak Rabi frequency of ${f(rabiMax)} turns the qubit ${times(driveTurns)} times within one sample (${f(rabiMax)} × ${t(dt)}); the core computes at most ${times(MAX_TURNS_PER_SAMPLE)} turns a sample`,
+      });
+    }
+    if (detuningTurns > MAX_TURNS_PER_SAMPLE) {
+      refusals.push({
+        field: detuningField,
+        message: `${FIELD_WORDS[detuningField].label}: a detuning of ${f(largestDetuning)} turns the qubit ${times(detuningTurns)} times within one sample of ${t(dt)}; the core computes at most ${times(MAX_TURNS_PER_SAMPLE)} turns a sample`,
+      });
+    }
   }
   if (rabiMax > ODD_RABI_HZ) {
     warnings.push({ field: 'rabiMax', message: `${f(rabiMax)} is above ${f(ODD_RABI_HZ)}, beyond any usual qubit drive: is the unit right?` });
@@ -152,7 +162,7 @@ export function specLimits(problem: Problem, exportSampleRate: number): SpecLimi
   if (problem.target.kind === 'gate') {
     const angleDeg = (problem.target.angleRad * 180) / Math.PI;
     if (Math.abs(angleDeg) > ODD_ANGLE_DEG) {
-      warnings.push({ field: 'target.gate.angleDeg', message: `${formatQuantity(angleDeg, 'angle')} is beyond ±${ODD_ANGLE_DEG}°: the same gate as ${formatQuantity(((angleDeg % 360) + 360) % 360, 'angle', { significant: 6 })}` });
+      warnings.push({ field: 'target.gate.angleDeg', message: `${formatQuantity(angleDeg, 'angle', { significant: 6 })} is beyond ±${ODD_ANGLE_DEG}°: the same gate as ${formatQuantity(((angleDeg % 360) + 360) % 360, 'angle', { significant: 6 })}` });
     }
   }
   const { ratio, whole } = samplesPerSegment(dt, exportSampleRate);

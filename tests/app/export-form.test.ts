@@ -199,3 +199,16 @@ describe('the form in the project file', () => {
     expect(() => parseProject(withForm({ ...form(), marker: 'yes' }))).toThrow('"settings.export.marker"');
   });
 });
+
+describe('exportLengthRefusal', () => {
+  it('refuses a sample rate that makes the file longer than the page can hold, in engineering units', async () => {
+    const { exportLengthRefusal, MAX_EXPORT_SAMPLES } = await import('../../src/app/export-form.ts');
+    const pulse = { dt: 2e-9, i: new Float64Array(100) };
+    // 200 ns at 1 GS/s: 200 samples.
+    expect(exportLengthRefusal({ sampleRate: 1e9 }, pulse)).toBeNull();
+    const refused = exportLengthRefusal({ sampleRate: 1e30 }, pulse)!;
+    expect(refused.field).toBe('sampleRate');
+    // 200 ns x 1e30 /s = 2e23 samples; the largest rate is 2^24 / 200 ns = 8.39e13 S/s.
+    expect(refused.message).toBe(`Sample rate: 1e21 GS/s would give 2.00e+23 samples for this 200 ns pulse; the page exports at most ${MAX_EXPORT_SAMPLES} samples a channel (83900 GS/s at most for this pulse)`);
+  });
+});

@@ -4,8 +4,9 @@
 // are read from the page and their pixels sampled where a sample must (and must not) be drawn.
 // Each test leaves screenshots in test-results/ (light and dark, 1440 and 800 px wide).
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser, Page } from 'playwright-core';
+import type { Page } from 'playwright-core';
 import { screenshot, skipReason, startHarness, typeInto, visit, type Harness, type Visit } from './harness.ts';
+import { screenshotsEverywhere } from './screens.ts';
 
 const reason = skipReason();
 if (reason) console.warn(`browser tests skipped: ${reason}`);
@@ -100,22 +101,6 @@ async function drawn(page: Page, testid: string, label: string): Promise<void> {
   );
   // The chart redraws on its own clock (a few times a second): let the last redraw land.
   await page.waitForTimeout(400);
-}
-
-/** Screenshots of the page in light and dark, 1440 and 800 px wide, after `show` sets it up in each. */
-export async function screenshotsEverywhere(browser: Browser, harness: Harness, name: string, show: (page: Page) => Promise<void>): Promise<void> {
-  for (const scheme of ['light', 'dark'] as const) {
-    for (const width of [1440, 800]) {
-      const context = await browser.newContext({ viewport: { width, height: 1000 }, colorScheme: scheme });
-      try {
-        const { page } = await visit(harness, '', context);
-        await show(page);
-        await screenshot(page, `${name}-${scheme}-${width}`);
-      } finally {
-        await context.close();
-      }
-    }
-  }
 }
 
 describe.skipIf(reason !== null)('what the app draws, in Chromium', () => {
@@ -245,4 +230,47 @@ describe.skipIf(reason !== null)('what the app draws, in Chromium', () => {
     expect(await page.getByTestId('run-figures').getAttribute('data-start')).toBe(String(bestRow.start));
     await screenshot(page, 'display-04-run-figures');
   }, 150_000);
+
+  it('makes the robustness region follow the spec until it is set by hand, and resets it', async () => {
+    const { page } = await fresh();
+    await openPulse(page, 'spike.json', SPIKE);
+    await page.keyboard.press('Alt+3');
+    // The transmon demo: +-1 MHz and +-10 % members, a region twice as wide.
+    await page.waitForFunction(() => (document.querySelector('#m-d-max') as HTMLInputElement).value === '2 MHz');
+    expect(await page.locator('#m-a-max').inputValue()).toBe('20 %');
+    // The ion demo's +-5 kHz and Gaussian 2 % (largest Gauss-Hermite node of 5: 2.857 sigma, Abramowitz and Stegun table 25.10).
+    await page.locator('#demo-picker').selectOption('ion-x180');
+    await page.waitForFunction(() => (document.querySelector('#m-d-max') as HTMLInputElement).value === '10 kHz');
+    expect(await page.locator('#m-a-max').inputValue()).toBe('12 %');
+    expect(await page.getByTestId('region-mode').textContent()).toContain('follows the spec');
+    // Set by hand: marked, kept when the spec changes, and reset on request.
+    await typeInto(page, '#m-d-max', '30 kHz');
+    await page.getByTestId('region-reset').waitFor();
+    expect(await page.getByTestId('region-mode').textContent()).toContain('Region set by hand');
+    await page.locator('#demo-picker').selectOption('transmon-x90');
+    await page.waitForFunction(() => (document.querySelector('#f-rabi') as HTMLInputElement).value === '10 MHz');
+    await page.waitForTimeout(300);
+    expect(await page.locator('#m-d-max').inputValue()).toBe('30 kHz');
+    await page.getByTestId('region-reset').click();
+    await page.waitForFunction(() => (document.querySelector('#m-d-max') as HTMLInputElement).value === '2 MHz');
+    await page.waitForFunction(() => /points in/.test(document.querySelector('[data-testid=map-status]')?.textContent ?? ''), undefined, { timeout: 30_000 });
+    await screenshot(page, 'display-05-region');
+  }, 120_000);
+
+  it('looks right in light and dark, at 1440 and 800 px wide: waveform, robustness, design after a run', async () => {
+    for (const [name, key] of [['display-06-waveform', 'Alt+2'], ['display-07-robustness', 'Alt+3']] as const) {
+      await screenshotsEverywhere(harness.browser, harness, name, async (page) => {
+        await page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement).disabled, undefined, { timeout: 30_000 });
+        await openPulse(page, 'spike.json', SPIKE);
+        await page.keyboard.press(key);
+        await page.waitForTimeout(1200);
+      });
+    }
+    await screenshotsEverywhere(harness.browser, harness, 'display-08-design', async (page) => {
+      await page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement).disabled, undefined, { timeout: 30_000 });
+      await page.getByTestId('run').click();
+      await page.waitForFunction(() => /^done/.test(document.querySelector('[data-testid=run-status]')?.textContent ?? ''), undefined, { timeout: 90_000 });
+      await page.waitForTimeout(800);
+    });
+  }, 300_000);
 });

@@ -113,7 +113,8 @@ export class Session {
   /** The field and time of the last edit, to merge keystrokes into one history step. */
   private lastEdit: { path: string; at: number } | null = null;
   /** Series colours by pulse key ("origin:label"): a pulse keeps its colour in every view and run. */
-  private colours = new Map<string, number>();
+  // A plain record, not reactive state: a colour, once given, never changes.
+  private colours: Record<string, number> = {};
   private checkSeq = 0;
   private saveTimer: ReturnType<typeof setTimeout> | null = null;
   private checkTimer: ReturnType<typeof setTimeout> | null = null;
@@ -182,12 +183,8 @@ export class Session {
   /** The palette index of a pulse, fixed the first time it is asked for (key: origin and label, as the comparison names it). */
   colourIndex(origin: string, label: string): number {
     const key = `${origin}:${label}`;
-    let index = this.colours.get(key);
-    if (index === undefined) {
-      index = this.colours.size;
-      this.colours.set(key, index);
-    }
-    return index;
+    this.colours[key] ??= Object.keys(this.colours).length;
+    return this.colours[key];
   }
 
   /** The palette index of a pulse the session holds. */
