@@ -189,8 +189,8 @@ describe.skipIf(reason !== null)('what the app draws, in Chromium', () => {
 
   it('shows, while a run goes, the figures of the pulse it draws, and every start\'s whole curve', async () => {
     const { page } = await fresh();
-    // 5 starts of at most 300 iterations each: every start ends on the budget (or earlier).
-    await typeInto(page, '#f-iterations', '300');
+    // 5 starts of at most 1500 iterations each (more than a record keeps a start: it thins them).
+    await typeInto(page, '#f-iterations', '1500');
     await page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement).disabled);
     await page.getByTestId('run').click();
     // Sampled while the run goes: the pulse the figures are of is the pulse drawn.
@@ -220,8 +220,11 @@ describe.skipIf(reason !== null)('what the app draws, in Chromium', () => {
       const curve = await seriesData(page, 'convergence-chart', `start ${row.start}`);
       expect(curve[0].x).toBe(0);
       expect(curve.at(-1)!.x).toBe(row.iterations);
-      // Every iteration is reported; a record keeps at most 600 points a start (src/app/convergence.ts).
-      expect(curve.length).toBeGreaterThanOrEqual(Math.min(row.iterations + 1, 300));
+      // Every iteration is reported; a record keeps at most 600 points a start, evenly spread
+      // (src/app/convergence.ts): no stretch drawn as one straight line.
+      expect(curve.length).toBeGreaterThanOrEqual(Math.min(row.iterations + 1, 299));
+      const gaps = curve.slice(1).map((p, k) => p.x - curve[k].x);
+      expect(Math.max(...gaps)).toBeLessThanOrEqual(Math.max(1, (4 * row.iterations) / curve.length));
     }
     // The figures shown at the end are those of the best start's pulse.
     const best = await page.locator('table.starts tr.best td').first().textContent();
