@@ -246,7 +246,7 @@ export class CoreClient {
   private replaceDesigners(): void {
     for (let w = 0; w < this.designers.length; w++) {
       if (this.designers[w] === this.analysis) continue;
-      this.designers[w][releaseProxy]();
+      // Not released: its calls in flight never settle, and releasing would reject them.
       const endpoint = this.replace!(this.designerEndpoints[w]);
       this.designerEndpoints[w] = endpoint;
       this.designers[w] = wrap<CoreService>(endpoint);
