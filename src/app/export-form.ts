@@ -16,6 +16,7 @@ import {
 import { samplesPerSegment } from '../io/export/resample.ts';
 import type { ExportPreview } from '../worker/protocol.ts';
 import type { PulseEntry } from './state/session.svelte.ts';
+import { inFormWords, type FieldWords } from './spec-limits.ts';
 import { formatQuantity, roundUpTwoDigits } from './units.ts';
 
 /**
@@ -94,14 +95,39 @@ export function exportSettingsInput(form: ExportForm): ExportSettingsInput {
 /** The library's verdict on a form: the settings, or its first complaint with the field it names. */
 export type ExportFormCheck = { ok: true; settings: ExportSettings } | { ok: false; field: string; message: string };
 
-/** Validates a form with the library's own rules and messages. */
+/** The export form's fields as the page labels them. */
+export const EXPORT_WORDS: Record<string, FieldWords> = {
+  sampleRate: { label: 'Sample rate', quantity: 'frequency' },
+  resample: { label: 'Resample', quantity: null },
+  bits: { label: 'DAC', quantity: null },
+  fullScale: { label: 'Full scale', quantity: 'frequency' },
+  peakLimit: { label: 'Limit on', quantity: null },
+  granularity: { label: 'Granularity', quantity: 'count' },
+  minLength: { label: 'Min length', quantity: 'count' },
+  maxLength: { label: 'Max length', quantity: 'count' },
+  pad: { label: 'Zero padding', quantity: null },
+  channels: { label: 'Channels', quantity: null },
+  intermediateFrequency: { label: 'IF', quantity: 'frequency' },
+  sideband: { label: 'Sideband', quantity: null },
+  mixerSign: { label: 'Mixer sign', quantity: null },
+  marker: { label: 'Marker channel', quantity: null },
+};
+
+/** A message of the export library told with the form's labels and engineering units. */
+export function exportWords(message: string, field?: string): string {
+  const named = field ?? /^(\w+):/.exec(message)?.[1];
+  return inFormWords({ name: 'ExportError', message, ...(named ? { field: named } : {}) }, EXPORT_WORDS);
+}
+
+/** Validates a form with the library's own rules, its messages told with the form's labels. */
 export function checkExportForm(form: ExportForm): ExportFormCheck {
   try {
     return { ok: true, settings: parseExportSettings(exportSettingsInput(form)) };
   } catch (error) {
     const e = error as { name?: string; field?: unknown; message?: string };
     if (e?.name !== 'SpecError') throw error;
-    return { ok: false, field: typeof e.field === 'string' ? e.field : '', message: e.message ?? String(error) };
+    const field = typeof e.field === 'string' ? e.field : '';
+    return { ok: false, field, message: exportWords(e.message ?? String(error), field || undefined) };
   }
 }
 

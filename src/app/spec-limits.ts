@@ -52,9 +52,13 @@ export const FIELD_WORDS: Record<string, FieldWords> = {
 
 const UNIT_OF: Partial<Record<string, Quantity>> = { Hz: 'frequency', s: 'time' };
 
-/** A library message retold with the form's label for its field and values in engineering units ("rabiMax: -5 ..." becomes "Peak Rabi: -5 Hz ..."). */
-export function inFormWords(error: ErrorInfo): string {
-  const words = error.field ? FIELD_WORDS[error.field] : undefined;
+/**
+ * A library message retold with the form's label for its field and values in engineering
+ * units ("rabiMax: -5000000 ..." becomes "Peak Rabi: -5 MHz ..."); other field names the
+ * message mentions take their labels too. `table`: the form's fields (default the spec's).
+ */
+export function inFormWords(error: ErrorInfo, table: Record<string, FieldWords> = FIELD_WORDS): string {
+  const words = error.field ? table[error.field] : undefined;
   let text = error.message;
   if (words && error.field && text.startsWith(`${error.field}: `)) {
     const rest = text.slice(error.field.length + 2);
@@ -62,6 +66,10 @@ export function inFormWords(error: ErrorInfo): string {
     const value = /^(-?[\d.]+(?:e[+-]?\d+)?) is not allowed/.exec(rest);
     const shown = value && words.quantity && words.quantity !== 'count' && words.quantity !== 'number' ? formatQuantity(Number(value[1]), words.quantity) : null;
     text = `${words.label}: ${shown ? rest.replace(value![1], shown) : rest}`;
+  }
+  // Other fields named in the message ("at least minLength (4)"), by their labels.
+  for (const [key, other] of Object.entries(table)) {
+    if (/^[a-zA-Z]+$/.test(key) && key !== error.field) text = text.replace(new RegExp(`\\b${key}\\b`, 'g'), other.label);
   }
   // Bounds the library gives in Hz or seconds, printed in engineering units.
   return text.replace(/(-?\d+(?:\.\d+)?(?:e[+-]?\d+)?) (Hz|s)\b/g, (all, number: string, unit: string) => formatQuantity(Number(number), UNIT_OF[unit]!));

@@ -77,16 +77,16 @@ describe('the settings handed to the library', () => {
     const ssb = exportSettingsInput(form({ channels: 'ssb', sideband: 'lower', mixerSign: -1, intermediateFrequency: 2e8, maxLength: 4096 }));
     expect(ssb).toMatchObject({ channels: 'ssb', sideband: 'lower', mixerSign: -1, intermediateFrequency: 2e8, maxLength: 4096 });
   });
-  it("passes on the library's SpecError message and field unchanged", () => {
+  it("passes on the library's SpecError field, its message told with the form's labels and units", () => {
     // The messages of src/io/export/settings.ts: field, value, what is allowed.
     expect(checkExportForm(form({ granularity: 0 }))).toEqual({
       ok: false,
       field: 'granularity',
-      message: 'granularity: 0 is not allowed; a whole number of samples >= 1 (the block size)',
+      message: 'Granularity: 0 is not allowed; a whole number of samples >= 1 (the block size)',
     });
     const nyquist = checkExportForm(form({ channels: 'ssb', intermediateFrequency: 6e8 }));
     expect(nyquist.ok === false && nyquist.field).toBe('intermediateFrequency');
-    expect(nyquist.ok === false && nyquist.message).toContain('0 < f < sampleRate/2 = 500000000 (Nyquist)');
+    expect(nyquist.ok === false && nyquist.message).toMatch(/^IF: 600 MHz is not allowed; .*0 < f < Sample rate\/2 = 500000000 \(Nyquist\)/);
     expect(checkExportForm(form({ maxLength: 8, granularity: 16 }))).toMatchObject({ ok: false, field: 'maxLength' });
   });
   it('offers only the units a format can hold (README: raw and WAV hold codes, the pulse JSON Hz)', () => {

@@ -212,10 +212,13 @@ describe.skipIf(reason !== null)('what the app lets slip, in Chromium', () => {
       await runEnabled(page);
       await page.locator('#demo-picker').selectOption('ion-x180');
       await page.getByTestId('notice-action').waitFor();
+      // Two warnings (a 2 GHz drive; 40 us / 120 = 333.33 ns, not whole periods of 1 GS/s) and text that does not read.
       await typeInto(page, '#f-rabi', '2 GHz');
-      await typeInto(page, '#f-segments', '0');
+      await typeInto(page, '#f-segments', '120');
+      await typeInto(page, '#f-seed', 'one');
       await page.locator('#f-rabi-warning').waitFor();
-      await page.locator('#f-segments-error').waitFor();
+      await page.locator('#f-segments-warning').waitFor();
+      await page.locator('#f-seed-error').waitFor();
     });
   }, 180_000);
 });
