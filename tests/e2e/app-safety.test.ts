@@ -147,6 +147,8 @@ describe.skipIf(reason !== null)('what the app lets slip, in Chromium', () => {
     await typeInto(page, '#f-segments', '120');
     await page.locator('#f-segments-warning').waitFor();
     expect(await page.locator('#f-segments-warning').textContent()).toContain('1.6667 periods of the export');
+    // Said once, where it was made.
+    expect(await page.locator('#f-dt-warning').count()).toBe(0);
     await runEnabled(page);
     // The Time limit reads a bare number in seconds, as its hint says.
     expect(await page.locator('#f-time-hint').textContent()).toContain('seconds');

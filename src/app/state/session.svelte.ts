@@ -112,6 +112,8 @@ export class Session {
   private future = $state.raw<SpecJson[]>([]);
   /** The field and time of the last edit, to merge keystrokes into one history step. */
   private lastEdit: { path: string; at: number } | null = null;
+  /** The spec field edited last in the form (a warning caused by it is said there). */
+  editedPath = $state<string | null>(null);
   /** Series colours by pulse key ("origin:label"): a pulse keeps its colour in every view and run. */
   // A plain record, not reactive state: a colour, once given, never changes.
   private colours: Record<string, number> = {};
@@ -232,6 +234,7 @@ export class Session {
     const merge = this.lastEdit?.path === path && now - this.lastEdit.at < HISTORY_MERGE_MS;
     if (!merge) this.remember();
     this.lastEdit = { path, at: now };
+    this.editedPath = path;
     this.spec = setAt(this.spec, path, value);
     this.setFieldError(path, null);
     this.specChanged();
