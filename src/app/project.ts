@@ -1,8 +1,9 @@
 // The project file (and the autosaved session): the spec, the pulses with their figures,
 // and the view settings. Read strictly, whole or not at all, so that a malformed file
 // changes nothing; pulses are checked again by the library's pulse reader on opening.
+import { MAX_AXIS_POINTS } from '../core/grid.ts';
 import type { Evaluation } from '../core/types.ts';
-import { RESAMPLE_METHODS, WAVEFORM_FORMATS } from '../io/export/index.ts';
+import { RESAMPLE_METHODS, UPCONVERSIONS, WAVEFORM_FORMATS } from '../io/export/index.ts';
 import type { ExportForm } from './export-form.ts';
 
 /** The `format` name of a project file. */
@@ -94,7 +95,7 @@ function axis(value: unknown, where: string): { min: number; max: number; points
   const obj = record(value, where);
   const min = finite(obj.min, `${where}.min`);
   const max = finite(obj.max, `${where}.max`, (x) => x >= min, 'a number >= min');
-  const points = finite(obj.points, `${where}.points`, (x) => Number.isInteger(x) && x >= 1 && x <= 2001, 'a whole number from 1 to 2001');
+  const points = finite(obj.points, `${where}.points`, (x) => Number.isInteger(x) && x >= 1 && x <= MAX_AXIS_POINTS, `a whole number from 1 to ${MAX_AXIS_POINTS}`);
   return { min, max, points };
 }
 
@@ -143,6 +144,8 @@ function readExportForm(value: unknown): ExportForm {
     intermediateFrequency: finite(obj.intermediateFrequency, `${where}.intermediateFrequency`),
     sideband: oneOf(obj.sideband, `${where}.sideband`, ['upper', 'lower'] as const),
     mixerSign: oneOf(obj.mixerSign, `${where}.mixerSign`, [1, -1] as const),
+    // Projects saved before the setting existed exported Q as designed.
+    upconversion: obj.upconversion === undefined ? 'plus' : oneOf(obj.upconversion, `${where}.upconversion`, UPCONVERSIONS),
     marker: obj.marker as boolean,
     format: oneOf(obj.format, `${where}.format`, WAVEFORM_FORMATS),
     units: oneOf(obj.units, `${where}.units`, ['codes', 'hz'] as const),

@@ -2,6 +2,8 @@
 // Designs spread their starts over the pool and keep the best pulse; maps come back coarse
 // first, then at full resolution in bands computed in parallel. The only `wrap`.
 import { proxy, releaseProxy, wrap, type Endpoint, type Remote } from 'comlink';
+import { mergeDesigns } from '../core/best-start.ts';
+import { axisValue } from '../core/grid.ts';
 import type { DesignResult, Evaluation, GridAxis, Member, Problem, Pulse, StartResult, Target, Vec3 } from '../core/types.ts';
 import type { EncodedWaveform } from '../io/export/index.ts';
 import type {
@@ -47,11 +49,6 @@ export function bandRows(rows: number, bands: number): Array<[number, number]> {
   return out;
 }
 
-/** The grid value of index k of a uniform axis, as the library places it. */
-export function axisValue(axis: GridAxis, k: number): number {
-  return axis.points === 1 ? (axis.min + axis.max) / 2 : axis.min + ((axis.max - axis.min) * k) / (axis.points - 1);
-}
-
 /** A coarser axis over the same range: about a quarter of the points, never fewer than 2 (or 1). */
 export function coarseAxis(axis: GridAxis, factor = 4): GridAxis {
   if (axis.points <= 2) return { ...axis };
@@ -66,14 +63,7 @@ export function shareStarts(starts: number, workers: number): number[][] {
   return groups;
 }
 
-/** One design from the shares of several workers: the best start by objective, every start listed. */
-export function mergeShares(shares: DesignResult[], elapsedS: number, stopped: boolean): DesignOutcome {
-  if (shares.length === 0) throw new Error('mergeShares: no worker returned a result');
-  let best = shares[0];
-  for (const share of shares) if (share.best.objective < best.best.objective) best = share;
-  const starts = shares.flatMap((s) => s.starts).sort((a, b) => a.start - b.start);
-  return { pulse: best.pulse, evaluation: best.evaluation, best: best.best, starts, elapsedS, stopped };
-}
+export { axisValue };
 
 /** How long Stop waits for the kept pulse's figures before ending the design without its worst member. */
 export const STOP_EVALUATION_WAIT_MS = 40;
@@ -205,8 +195,8 @@ export class CoreClient {
         onProgress?.(batch);
       });
       const designers = [...this.designers];
-      const work = Promise.all(groups.map((group, w) => designers[w].design(spec, group, sink, livePulseEveryMs))).then((shares) =>
-        mergeShares(shares, (performance.now() - t0) / 1000, this.stopRequested),
+      const work = Promise.all(groups.map((group, w) => designers[w].design(spec, group, sink, livePulseEveryMs))).then(
+        (shares): DesignOutcome => ({ ...mergeDesigns(shares, (performance.now() - t0) / 1000), stopped: this.stopRequested }),
       );
       return await Promise.race([work, abandoned]);
     } catch (error) {
