@@ -182,6 +182,7 @@ describe.skipIf(reason !== null)('what the app lets slip, in Chromium', () => {
     await typeInto(page, '#f-iterations', '50');
     await runEnabled(page);
     await page.getByTestId('run').click();
+    await page.waitForFunction(() => !/^stopped/.test(document.querySelector('[data-testid=run-status]')?.textContent ?? ''), undefined, { timeout: 10_000 });
     expect(await runToEnd(page, 60_000)).toMatch(/^done/);
     await screenshot(page, 'safety-04-large-stopped');
   }, 180_000);

@@ -64,6 +64,8 @@ export class DesignRun {
   private runs = 0;
   private reported = new ReportedPulses();
   private runId = 0;
+  /** The next evaluation of the best reported pulse, when one is waiting for its turn. */
+  private evaluationTimer: ReturnType<typeof setTimeout> | null = null;
 
   constructor(private readonly session: Session) {}
 
@@ -161,7 +163,12 @@ export class DesignRun {
     if (!best || this.evaluating || this.isShown(best)) return;
     const wait = LIVE_EVALUATION_MS - (performance.now() - this.lastEvaluation);
     if (wait > 0 && this.live) {
-      setTimeout(() => void this.evaluateLive(spec, dt, id), wait);
+      if (!this.evaluationTimer) {
+        this.evaluationTimer = setTimeout(() => {
+          this.evaluationTimer = null;
+          void this.evaluateLive(spec, dt, id);
+        }, wait);
+      }
       return;
     }
     this.evaluating = true;
