@@ -198,6 +198,8 @@ export class CoreClient {
       const work = Promise.all(groups.map((group, w) => designers[w].design(spec, group, sink, livePulseEveryMs))).then(
         (shares): DesignOutcome => ({ ...mergeDesigns(shares, (performance.now() - t0) / 1000), stopped: this.stopRequested }),
       );
+      // Stop pressed while the run was being set up: the designers end their first iteration.
+      if (this.stopRequested) void Promise.all(designers.map((d) => d.stop()));
       return await Promise.race([work, abandoned]);
     } catch (error) {
       await this.stop();
@@ -229,8 +231,16 @@ export class CoreClient {
       return;
     }
     this.current = null;
+    let outcome: DesignOutcome;
+    try {
+      outcome = await this.keptOutcome(running, best);
+    } catch {
+      // Nothing kept could be made an outcome: the designers end their iteration instead.
+      await Promise.all(this.designers.map((d) => d.stop()));
+      return;
+    }
     this.replaceDesigners();
-    running.abandon(await this.keptOutcome(running, best));
+    running.abandon(outcome);
   }
 
   private replaceDesigners(): void {
@@ -332,9 +342,9 @@ export class CoreClient {
     return this.analysis.readPulse(text);
   }
 
-  /** Reads a pulse file in the analysis worker (the page only passes it on), with progress. */
-  readPulseFile(file: Blob, onProgress?: FileProgressSink): Promise<Pulse> {
-    return this.analysis.readPulseFile(file, onProgress ? proxy(onProgress) : undefined);
+  /** Reads a pulse file in the analysis worker (the page only passes it on), with progress, evaluated on `spec` when given. */
+  readPulseFile(file: Blob, onProgress?: FileProgressSink, spec?: unknown): Promise<{ pulse: Pulse; evaluation?: Evaluation }> {
+    return this.analysis.readPulseFile(file, onProgress ? proxy(onProgress) : undefined, spec);
   }
 
   /** Pulse file text of a pulse. */

@@ -200,12 +200,17 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
       return moved(library.readPulse(text));
     },
 
-    async readPulseFile(file, onProgress) {
+    async readPulseFile(file, onProgress, spec) {
       // Read here, off the page's thread: a pulse file may be tens of megabytes.
       try {
         const text = await readWithProgress(file, (fraction) => void onProgress?.(fraction, 'reading'));
         await onProgress?.(1, 'checking');
-        return moved(library.readPulse(text));
+        const pulse = library.readPulse(text);
+        if (spec === undefined) return moved({ pulse });
+        await onProgress?.(1, 'evaluating');
+        // A figure that cannot be had leaves the pulse without one; the file still opens.
+        const evaluation = await withCore(() => library.evaluate(spec, pulse)).catch(() => undefined);
+        return moved({ pulse, ...(evaluation ? { evaluation } : {}) });
       } finally {
         (onProgress as { [releaseProxy]?: () => void } | undefined)?.[releaseProxy]?.();
       }

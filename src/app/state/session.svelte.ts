@@ -403,37 +403,44 @@ export class Session {
 
   /** Opens a pulse file's text; a malformed file is refused with its reason and changes nothing. */
   async openPulseText(fileName: string, text: string): Promise<boolean> {
-    return this.openPulse(fileName, () => this.client.readPulse(text));
+    return this.openPulse(fileName, async () => {
+      const pulse = await this.client.readPulse(text);
+      if (!this.problem) return { pulse };
+      const evaluation = await this.client.evaluate($state.snapshot(this.spec), pulse).catch(() => undefined);
+      return { pulse, ...(evaluation ? { evaluation } : {}) };
+    });
   }
 
-  /** Opens a pulse file: read and checked in the worker, its progress in `opening`; a malformed file changes nothing. */
+  /** Opens a pulse file: read, checked and evaluated in the worker, its progress in `opening`; a malformed file changes nothing. */
   async openPulseFile(file: File): Promise<boolean> {
     this.opening = { name: file.name, bytes: file.size, fraction: 0, stage: 'reading' };
     try {
+      const spec = this.problem ? $state.snapshot(this.spec) : undefined;
       return await this.openPulse(file.name, () =>
-        this.client.readPulseFile(file, (fraction, stage) => {
-          if (this.opening?.name === file.name) this.opening = { ...this.opening, fraction, stage };
-        }),
+        this.client.readPulseFile(
+          file,
+          (fraction, stage) => {
+            if (this.opening?.name === file.name) this.opening = { ...this.opening, fraction, stage };
+          },
+          spec,
+        ),
       );
     } finally {
       this.opening = null;
     }
   }
 
-  private async openPulse(fileName: string, read: () => Promise<Pulse>): Promise<boolean> {
+  private async openPulse(fileName: string, read: () => Promise<{ pulse: Pulse; evaluation?: Evaluation }>): Promise<boolean> {
     let pulse: Pulse;
+    let evaluation: Evaluation | undefined;
     try {
-      pulse = await read();
+      ({ pulse, evaluation } = await read());
     } catch (error) {
       this.notice = { kind: 'error', text: `${fileName} was not opened: ${(error as Error).message}` };
       return false;
     }
     const entry: PulseEntry = { id: newPulseId('file'), label: fileName, pulse };
-    if (this.problem) {
-      if (this.opening) this.opening = { ...this.opening, fraction: 1, stage: 'evaluating' };
-      const evaluation = await this.client.evaluate($state.snapshot(this.spec), pulse).catch(() => undefined);
-      if (evaluation) entry.evaluation = { meanInfidelity: evaluation.meanInfidelity, worstInfidelity: evaluation.worstInfidelity };
-    }
+    if (evaluation) entry.evaluation = { meanInfidelity: evaluation.meanInfidelity, worstInfidelity: evaluation.worstInfidelity };
     this.addPulse(entry);
     this.notice = { kind: 'info', text: `Opened ${fileName}: ${pulse.i.length} samples.` };
     return true;
