@@ -141,6 +141,11 @@ export class CoreClient {
   private designing = false;
   private stopRequested = false;
   private current: Running | null = null;
+  /**
+   * Most workers a map's bands run on at once. The browser client leaves one core to the
+   * page: with every core busy with a map, the page's own tasks were stretched past 50 ms.
+   */
+  mapWorkers = Infinity;
 
   /**
    * Wraps one endpoint for analysis jobs and one or more for design starts. With `replace`
@@ -303,7 +308,8 @@ export class CoreClient {
     const coarse = await this.analysis.map(target, pulse, coarseAxis(detuning), coarseAxis(amplitudeError));
     const update: MapUpdate = { coarse, complete: false };
     onUpdate?.({ ...update });
-    const workers = this.designing ? [this.analysis] : [this.analysis, ...this.designers.filter((d) => d !== this.analysis)];
+    const pool = this.designing ? [this.analysis] : [this.analysis, ...this.designers.filter((d) => d !== this.analysis)];
+    const workers = pool.slice(0, Math.max(1, this.mapWorkers));
     const infidelity = new Float64Array(detuning.points * amplitudeError.points).fill(NaN);
     const fine: MapResult = { detuning: { ...detuning }, amplitudeError: { ...amplitudeError }, infidelity };
     const bands = bandRows(amplitudeError.points, workers.length);
@@ -393,5 +399,7 @@ export function createBrowserClient(): CoreClient {
   };
   const analysis = start();
   const designers = Array.from({ length: designWorkerCount(navigator.hardwareConcurrency) }, start);
-  return new CoreClient(analysis, designers, () => workers.forEach((w) => w.terminate()), replace);
+  const client = new CoreClient(analysis, designers, () => workers.forEach((w) => w.terminate()), replace);
+  client.mapWorkers = designWorkerCount(navigator.hardwareConcurrency);
+  return client;
 }
