@@ -157,6 +157,7 @@ async function largeFigures(harness: Harness, file: string): Promise<{ stopMs: n
     await recordLongTasks(page);
     const started = await step('100k: run', 90_000, false, async () => {
       await page.getByTestId('run').click();
+      await page.waitForFunction(() => document.querySelector('[data-testid=run-status]')?.textContent === 'running', undefined, { timeout: 30_000 });
       await page.waitForFunction(() => Number(document.querySelector('[data-testid=run-iteration]')?.textContent) >= 3, undefined, { timeout: 80_000 });
       await page.waitForTimeout(1500);
       return true;
@@ -271,6 +272,8 @@ export async function appBenchmark(log: (line: string) => void = console.log): P
             await setField(page, '#f-iterations', '100000');
             await runEnabled(page);
             await page.getByTestId('run').click();
+            // The counter still shows the demo design's iterations until the new run reports.
+            await page.waitForFunction(() => document.querySelector('[data-testid=run-status]')?.textContent === 'running', undefined, { timeout: 30_000 });
             await page.waitForFunction(() => Number(document.querySelector('[data-testid=run-iteration]')?.textContent) > 20, undefined, { timeout: 60_000 });
             return timedStop(page);
           }),
