@@ -3,8 +3,11 @@
 // unknown keys are rejected so that a typo cannot silently fall back to a default.
 // The format is described for users in docs/spec.md.
 import { SpecError } from './errors.ts';
+import { parseJsonText } from './json-text.ts';
 import { parseEnsemble } from './spec-ensemble.ts';
+import { parseLine } from './line-spec.ts';
 import { childPath, readBoolean, readChoice, readNumber, readObject, readText, readUnitVector } from './spec-fields.ts';
+import type { NumberRule } from './spec-fields.ts';
 import type { Constraints, OptimizerSettings, Problem, Target } from './types.ts';
 
 /** Most segments a pulse may have. */
@@ -26,7 +29,7 @@ export const DEFAULT_OPTIMIZER: Readonly<OptimizerSettings> = {
   memory: 12,
 };
 
-const TOP_KEYS = ['name', 'description', 'target', 'duration', 'segments', 'rabiMax', 'ensemble', 'constraints', 'optimizer'];
+const TOP_KEYS = ['name', 'description', 'target', 'duration', 'segments', 'rabiMax', 'ensemble', 'constraints', 'optimizer', 'line'];
 
 /** Validates a design spec (parsed JSON) and returns the normalised problem. */
 export function parseSpec(json: unknown): Problem {
@@ -42,16 +45,19 @@ export function parseSpec(json: unknown): Problem {
   const members = parseEnsemble(spec.ensemble);
   const constraints = parseConstraints(spec.constraints, segments);
   const optimizer = parseOptimizer(spec.optimizer);
-  return { target, duration, segments, dt, rabiMax, members, constraints, optimizer };
+  const line = parseLine(spec.line, dt, segments);
+  return { target, duration, segments, dt, rabiMax, members, constraints, optimizer, ...(line ? { line } : {}) };
 }
 
 /** Parses spec text (a file's contents) as JSON, turning a syntax error into a SpecError. */
 export function specJsonFromText(text: string): unknown {
   try {
-    return JSON.parse(text);
+    return parseJsonText(text);
   } catch (error) {
-    const reason = error instanceof Error ? error.message : String(error);
-    throw new SpecError('spec', text.trim().slice(0, 30), `the spec must be valid JSON (${reason})`);
+    // The syntax error says where; the text itself is not echoed (it may not be text at all).
+    const e = new SpecError('spec', undefined, '');
+    e.message = (error as Error).message;
+    throw e;
   }
 }
 
@@ -89,21 +95,33 @@ function parseConstraints(value: unknown, segments: number): Constraints {
   };
 }
 
+/** The rules of the `optimizer` fields, shared by parseSpec and checkProblem. */
+export const OPTIMIZER_RULES: Readonly<Record<keyof OptimizerSettings, NumberRule>> = {
+  starts: { integer: true, min: 1, max: 64 },
+  // A 32-bit unsigned seed fits every generator the core may use.
+  seed: { integer: true, min: 0, max: 4294967295 },
+  maxIterations: { integer: true, min: 1, max: 100000 },
+  targetInfidelity: { min: 0, max: 1 },
+  gradientTolerance: { min: 0 },
+  timeLimit: { min: 0, minExclusive: true, unit: 's' },
+  memory: { integer: true, min: 1, max: 100 },
+};
+
 function parseOptimizer(value: unknown): OptimizerSettings {
   const path = 'optimizer';
   if (value === undefined) return { ...DEFAULT_OPTIMIZER };
-  const keys = ['starts', 'seed', 'maxIterations', 'targetInfidelity', 'gradientTolerance', 'timeLimit', 'memory'];
+  const keys = Object.keys(OPTIMIZER_RULES);
   const obj = readObject(value, path, keys, 'the optimizer settings');
   const d = DEFAULT_OPTIMIZER;
+  const r = OPTIMIZER_RULES;
   return {
-    starts: readNumber(obj, 'starts', path, { integer: true, min: 1, max: 64 }, d.starts),
-    // A 32-bit unsigned seed fits every generator the core may use.
-    seed: readNumber(obj, 'seed', path, { integer: true, min: 0, max: 4294967295 }, d.seed),
-    maxIterations: readNumber(obj, 'maxIterations', path, { integer: true, min: 1, max: 100000 }, d.maxIterations),
-    targetInfidelity: readNumber(obj, 'targetInfidelity', path, { min: 0, max: 1 }, d.targetInfidelity),
-    gradientTolerance: readNumber(obj, 'gradientTolerance', path, { min: 0 }, d.gradientTolerance),
+    starts: readNumber(obj, 'starts', path, r.starts, d.starts),
+    seed: readNumber(obj, 'seed', path, r.seed, d.seed),
+    maxIterations: readNumber(obj, 'maxIterations', path, r.maxIterations, d.maxIterations),
+    targetInfidelity: readNumber(obj, 'targetInfidelity', path, r.targetInfidelity, d.targetInfidelity),
+    gradientTolerance: readNumber(obj, 'gradientTolerance', path, r.gradientTolerance, d.gradientTolerance),
     // null is accepted as "no limit" because JSON cannot spell Infinity.
-    timeLimit: obj.timeLimit === null ? Infinity : readNumber(obj, 'timeLimit', path, { min: 0, minExclusive: true, unit: 's' }, d.timeLimit),
-    memory: readNumber(obj, 'memory', path, { integer: true, min: 1, max: 100 }, d.memory),
+    timeLimit: obj.timeLimit === null ? Infinity : readNumber(obj, 'timeLimit', path, r.timeLimit, d.timeLimit),
+    memory: readNumber(obj, 'memory', path, r.memory, d.memory),
   };
 }

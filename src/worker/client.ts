@@ -4,7 +4,8 @@
 import { proxy, releaseProxy, wrap, type Endpoint, type Remote } from 'comlink';
 import { mergeDesigns } from '../core/best-start.ts';
 import { axisValue } from '../core/grid.ts';
-import type { DesignResult, Evaluation, GridAxis, Member, Problem, Pulse, StartResult, Target, Vec3 } from '../core/types.ts';
+import type { QubitDrive } from '../core/line.ts';
+import type { DesignResult, Evaluation, GridAxis, Line, Member, Problem, Pulse, StartResult, Target, Vec3 } from '../core/types.ts';
 import type { EncodedWaveform } from '../io/export/index.ts';
 import type {
   CompareRequest,
@@ -304,8 +305,8 @@ export class CoreClient {
   }
 
   /** A map, coarse first, then full resolution in bands spread over the idle workers. */
-  async map(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, onUpdate?: (update: MapUpdate) => void): Promise<MapUpdate> {
-    const coarse = await this.analysis.map(target, pulse, coarseAxis(detuning), coarseAxis(amplitudeError));
+  async map(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, onUpdate?: (update: MapUpdate) => void, line?: Line): Promise<MapUpdate> {
+    const coarse = await this.analysis.map(target, pulse, coarseAxis(detuning), coarseAxis(amplitudeError), line);
     const update: MapUpdate = { coarse, complete: false };
     onUpdate?.({ ...update });
     const pool = this.designing ? [this.analysis] : [this.analysis, ...this.designers.filter((d) => d !== this.analysis)];
@@ -317,7 +318,7 @@ export class CoreClient {
       bands.map(async ([first, last], b) => {
         const rows: GridAxis = { min: axisValue(amplitudeError, first), max: axisValue(amplitudeError, last), points: last - first + 1 };
         if (amplitudeError.points === 1) Object.assign(rows, amplitudeError);
-        const part = await workers[b].map(target, pulse, detuning, rows);
+        const part = await workers[b].map(target, pulse, detuning, rows, line);
         infidelity.set(part.infidelity, first * detuning.points);
         update.fine = fine;
         onUpdate?.({ ...update });
@@ -329,8 +330,8 @@ export class CoreClient {
   }
 
   /** Cuts through zero error over the grid's ranges. */
-  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): Promise<Cuts> {
-    return this.analysis.cuts(target, pulse, detuning, amplitudeError);
+  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): Promise<Cuts> {
+    return this.analysis.cuts(target, pulse, detuning, amplitudeError, line);
   }
 
   /** The comparison table and cuts. */
@@ -339,8 +340,13 @@ export class CoreClient {
   }
 
   /** Bloch vectors after each sample for one member. */
-  trajectory(pulse: Pulse, member: Member, from: Vec3): Promise<Float64Array> {
-    return this.analysis.trajectory(pulse, member, from);
+  trajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line): Promise<Float64Array> {
+    return this.analysis.trajectory(pulse, member, from, line);
+  }
+
+  /** The drive the qubit sees through the line. */
+  drive(pulse: Pulse, line?: Line): Promise<QubitDrive> {
+    return this.analysis.drive(pulse, line);
   }
 
   /** Reads a pulse file (rejects with a PulseFormatError named error when malformed). */

@@ -2,6 +2,7 @@
 import { blochTrajectory, design, evaluateMembers, robustnessMap } from '../core/api.ts';
 import { compare, evaluateJudged } from '../core/compare.ts';
 import { compositeNames } from '../core/composites.ts';
+import { qubitDrive } from '../core/line.ts';
 import { cuts } from '../core/robustness.ts';
 import { parseSpec } from '../core/spec.ts';
 import { readPulse, writePulse } from '../io/pulse.ts';
@@ -16,6 +17,7 @@ export const library: CoreLibrary = {
   evaluateMembers,
   robustnessMap,
   blochTrajectory,
+  qubitDrive: (pulse, line) => qubitDrive(pulse, line),
   compare,
   cuts,
   composites: compositeNames,

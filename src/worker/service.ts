@@ -4,7 +4,8 @@
 import type { DesignOptions, RobustnessMap } from '../core/api.ts';
 import type { CompareOptions, Comparison, NamedPulse } from '../core/compare.ts';
 import type { Cuts } from '../core/robustness.ts';
-import type { DesignResult, Evaluation, GridAxis, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
+import type { QubitDrive } from '../core/line.ts';
+import type { DesignResult, Evaluation, GridAxis, Line, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
 import type { EncodedWaveform, EncodeOptions, ExportedWaveform, ExportReport, PulseEvaluator, WaveformFormat } from '../io/export/index.ts';
 import type {
   CoreInfo,
@@ -27,20 +28,22 @@ export interface CoreLibrary {
   design(spec: unknown, options?: DesignOptions): Promise<DesignResult>;
   /** Figures on the spec's ensemble against the target the pulse is judged against (core/target-choice.ts). */
   evaluate(spec: unknown, pulse: Pulse): Evaluation;
-  evaluateMembers(target: Target, pulse: Pulse, members: Member[]): Evaluation;
-  robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): RobustnessMap;
-  blochTrajectory(pulse: Pulse, member: Member, from: Vec3): Float64Array;
+  evaluateMembers(target: Target, pulse: Pulse, members: Member[], line?: Line): Evaluation;
+  robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): RobustnessMap;
+  blochTrajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line): Float64Array;
+  /** The drive the qubit sees through a line (the pulse itself without one). */
+  qubitDrive(pulse: Pulse, line: Line | undefined): QubitDrive;
   /** Pulses and composite sequences judged on one spec, best first (what `gatesmith compare` prints). */
   compare(spec: unknown, pulses: readonly NamedPulse[], options?: CompareOptions): Comparison;
   /** The cuts through zero error along each axis. */
-  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): Cuts;
+  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): Cuts;
   composites: readonly CompositeChoice[];
   readPulse(text: string): Pulse;
   writePulse(pulse: Pulse): string;
   /** The instrument waveform of a pulse (ExportError when it is refused). */
   exportWaveform(pulse: Pulse, settings: unknown): ExportedWaveform;
   /** The export report; gate figures by `against` (null: the sample figures only). */
-  exportReport(against: PulseEvaluator | null, design: Pulse, waveform: ExportedWaveform): Promise<ExportReport>;
+  exportReport(against: PulseEvaluator | null, design: Pulse, waveform: ExportedWaveform, withoutLine?: PulseEvaluator): Promise<ExportReport>;
   /** A waveform's file bytes, identical to what the command line writes. */
   encodeWaveform(waveform: ExportedWaveform, format: WaveformFormat, options?: EncodeOptions): Promise<EncodedWaveform>;
   /** The waveform as played: I/Q in Hz at the instrument sample period, SSB demodulated, padding kept. */
@@ -124,7 +127,7 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
   const running = new Set<AbortController>();
   const ensureLoaded = () => (loading ??= (options.load ?? (async () => undefined))());
   // Jobs need the loaded core; stop and checkSpec do not and stay immediate. Jobs may
-  // overlap: the library nests short jobs above a waiting design and queues designs.
+  // overlap: each job and each design start has its own problem block in the core.
   const withCore = <T>(job: () => T | Promise<T>): Promise<T> => ensureLoaded().then(job);
 
   return {
@@ -173,27 +176,31 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
       return withCore(() => library.evaluate(spec, pulse));
     },
 
-    map(target, pulse, detuning, amplitudeError) {
+    map(target, pulse, detuning, amplitudeError, line) {
       return withCore((): MapResult => {
-        const map = library.robustnessMap(target, pulse, detuning, amplitudeError);
+        const map = library.robustnessMap(target, pulse, detuning, amplitudeError, line);
         return moved({ detuning: map.detuning, amplitudeError: map.amplitudeError, infidelity: map.infidelity });
       });
     },
 
-    cuts(target, pulse, detuning, amplitudeError) {
-      return withCore(() => moved(library.cuts(target, pulse, detuning, amplitudeError)));
+    cuts(target, pulse, detuning, amplitudeError, line) {
+      return withCore(() => moved(library.cuts(target, pulse, detuning, amplitudeError, line)));
     },
 
     compare(request) {
       return withCore(() => {
-        const { spec, pulses, composites, detuning, amplitudeError, threshold } = request;
-        const { rows } = library.compare(spec, pulses, { composites, region: { detuning, amplitudeError }, threshold, cuts: true });
+        const { spec, pulses, composites, detuning, amplitudeError, threshold, withoutLine } = request;
+        const { rows } = library.compare(spec, pulses, { composites, region: { detuning, amplitudeError }, threshold, cuts: true, withoutLine });
         return moved(rows);
       });
     },
 
-    trajectory(pulse, member, from) {
-      return withCore(() => moved(library.blochTrajectory(pulse, member, from)));
+    trajectory(pulse, member, from, line) {
+      return withCore(() => moved(library.blochTrajectory(pulse, member, from, line)));
+    },
+
+    drive(pulse, line) {
+      return withCore(() => moved(library.qubitDrive(pulse, line)));
     },
 
     readPulse(text) {
@@ -224,8 +231,9 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
       // The evaluation runs on the core, so the whole job waits its turn like any other.
       return withCore(async (): Promise<ExportPreview> => {
         const waveform = library.exportWaveform(pulse, settings);
-        const evaluate = judge ? (p: Pulse) => library.evaluateMembers(judge.target, p, judge.members) : null;
-        const report = await library.exportReport(evaluate, pulse, waveform);
+        const evaluate = judge ? (p: Pulse) => library.evaluateMembers(judge.target, p, judge.members, judge.line) : null;
+        const naive = judge?.line ? (p: Pulse) => library.evaluateMembers(judge.target, p, judge.members) : undefined;
+        const report = await library.exportReport(evaluate, pulse, waveform, naive);
         return moved({ report, played: library.playedPulse(waveform) });
       });
     },
