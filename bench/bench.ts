@@ -1,8 +1,9 @@
 // The benchmark: speed figures measured in one run, printed as a table (or one JSON
 // object with --json). Never a test: figures vary 10-30 % with the machine's load.
 //   npm run bench            table for people
-//   npm run bench -- --json  {"objectiveGradient": [...], "design": [...], "maps": [...], "line": {...}, "app": {...}}
+//   npm run bench -- --json  {"objectiveGradient": [...], "design": [...], "maps": [...], "line": {...}, "batch": {...}, "app": {...}}
 //   npm run bench -- --no-app  without the browser figures (bench/app-bench.ts)
+//   npm run bench -- --no-batch  without the batch figures (bench/batch-bench.ts)
 //   npm run bench -- --no-command  without the command's start-up and Ctrl-C figures (bench/command-bench.ts)
 import { readFileSync, readdirSync } from 'node:fs';
 import { design, evaluateMembers, robustnessMap } from '../src/core/api.ts';
@@ -14,6 +15,7 @@ import type { Line, Member, Pulse, Target } from '../src/core/types.ts';
 import { getCore } from '../src/core/wasm.ts';
 import { ensembleGradient as oracleGradient, memberInfidelity } from '../tests/reference/oracle.ts';
 import { appBenchmark, type AppFigures } from './app-bench.ts';
+import { batchBenchmark, type BatchFigures } from './batch-bench.ts';
 import { commandBenchmark, type CommandFigures } from './command-bench.ts';
 
 const json = process.argv.includes('--json');
@@ -186,7 +188,11 @@ if (!process.argv.includes('--no-command')) {
   command = await commandBenchmark(log);
 }
 
-// 7. The app in headless Chromium (skipped without /usr/bin/chromium).
+// 7. A batch of designs: one core, all cores, shards by GNU parallel.
+let batch: BatchFigures | null = null;
+if (!process.argv.includes('--no-batch')) batch = batchBenchmark(log);
+
+// 8. The app in headless Chromium (skipped without /usr/bin/chromium).
 let app: AppFigures | null = null;
 if (!process.argv.includes('--no-app')) {
   log('');
@@ -194,5 +200,5 @@ if (!process.argv.includes('--no-app')) {
 }
 
 if (json) {
-  process.stdout.write(JSON.stringify({ objectiveGradient, design: designs, maps, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs }, line: { maps: lineMaps, crossover, designs: lineDesigns }, command, app }) + '\n');
+  process.stdout.write(JSON.stringify({ objectiveGradient, design: designs, maps, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs }, line: { maps: lineMaps, crossover, designs: lineDesigns }, command, batch, app }) + '\n');
 }

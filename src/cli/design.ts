@@ -193,8 +193,8 @@ function interimPulse(p: Progress, problem: Problem, specJson: unknown): Pulse {
   };
 }
 
-// The pulse file records how it was made: the spec as given and the figures reached.
-function withDesignMetadata(result: DesignResult, specJson: unknown): Pulse {
+/** The design's pulse with its making recorded in the metadata: the spec as given and the figures reached. */
+export function withDesignMetadata(result: DesignResult, specJson: unknown): Pulse {
   const meta = result.pulse.metadata ?? {};
   // The spec's own name says more to a reader of the file than which start won.
   const specName = (specJson as { name?: unknown }).name;
@@ -218,8 +218,8 @@ function withDesignMetadata(result: DesignResult, specJson: unknown): Pulse {
   };
 }
 
-// A waveform above the configured limit is never written (safety: it drives an amplifier).
-function checkPeak(pulse: Pulse, problem: Problem): number {
+/** The pulse's peak amplitude (Hz); throws above rabiMax: such a waveform is never written (it drives an amplifier). */
+export function checkPeak(pulse: Pulse, problem: Problem): number {
   let peak = 0;
   for (let k = 0; k < pulse.i.length; k++) {
     const a = problem.constraints.bound === 'box' ? Math.max(Math.abs(pulse.i[k]), Math.abs(pulse.q[k])) : Math.hypot(pulse.i[k], pulse.q[k]);

@@ -27,6 +27,13 @@ export interface DesignOptions {
   startIndices?: number[];
   /** Attach the current samples to a progress report at most this often (ms); default never. */
   progressPulseEveryMs?: number;
+  /**
+   * Start 0 begins from these samples (Hz, the spec's number of segments) instead of its
+   * random pulse, e.g. a pulse designed before; a sample above 98 % of the amplitude bound is
+   * scaled down to it, where the optimiser can still move it. The other starts are unchanged,
+   * so the result stays deterministic.
+   */
+  initialPulse?: { i: ArrayLike<number>; q: ArrayLike<number> };
 }
 
 /** The figure on a grid of detuning x amplitude error. */
@@ -178,6 +185,7 @@ async function designNow(problem: Problem, options: DesignOptions): Promise<Desi
   for (const s of indices) {
     if (!Number.isInteger(s) || s < 0) throw new ArgumentError(`startIndices: ${describeValue(s)} is not allowed; use whole numbers >= 0`);
   }
+  if (options.initialPulse) checkInitialPulse(options.initialPulse, problem.segments);
   const starts: StartResult[] = [];
   for (const s of indices) {
     const elapsed = (performance.now() - t0) / 1000;
@@ -186,6 +194,18 @@ async function designNow(problem: Problem, options: DesignOptions): Promise<Desi
     starts.push(await runStart(problem, s, options, t0, remaining));
   }
   return bestOfStarts(problem, starts, t0);
+}
+
+function checkInitialPulse(pulse: { i: ArrayLike<number>; q: ArrayLike<number> }, segments: number): void {
+  for (const channel of ['i', 'q'] as const) {
+    const v = pulse[channel];
+    if (!v || v.length !== segments) {
+      throw new ArgumentError(`initialPulse.${channel}: ${v ? `${v.length} samples` : 'missing value'} is not allowed; it must have the spec's ${segments} segments`);
+    }
+    for (let k = 0; k < v.length; k++) {
+      if (!Number.isFinite(v[k])) throw new ArgumentError(`initialPulse.${channel}[${k}]: ${describeValue(v[k])} is not allowed; samples must be finite numbers (Hz)`);
+    }
+  }
 }
 
 /** The design result of finished starts: the best (best-start.ts) is evaluated, through the problem's line. */
@@ -208,7 +228,7 @@ async function runStart(problem: Problem, start: number, options: DesignOptions,
   const { dt, rabiMax, constraints, optimizer } = problem;
   const tStart = performance.now();
   const deadline = tStart + Math.max(0, timeLeftS) * 1000;
-  const run = new StartRun(problem, start);
+  const run = new StartRun(problem, start, undefined, start === 0 ? options.initialPulse : undefined);
   try {
     let stopReason: StopReason = 'max-iterations';
     let lastYield = performance.now();
