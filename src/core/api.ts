@@ -3,17 +3,19 @@
 // workers. Validation happens here; the kernels trust what they are given.
 import { ArgumentError, describeValue } from './errors.ts';
 import { BUFFER, createBlock, readBuffer, setSamples } from './block.ts';
-import { checkPulse, encodeMembers, encodeTarget, type EncodedMembers } from './encode.ts';
+import { checkPulse, encodeMembers, encodeTarget } from './encode.ts';
+import { blockSystem, encodeSystem, MAX_CHECK_LEVELS, type SystemEncoding } from './system.ts';
 import { qubitDrive } from './line.ts';
 import { lineJson } from './line-spec.ts';
 import { StartRun } from './run.ts';
 import { checkProblemAngles, checkPulseAngles } from './limits.ts';
 import { checkProblem, checkTarget } from './problem-check.ts';
-import { bestStart } from './best-start.ts';
+import { bestStart, prunes, startsToContinue } from './best-start.ts';
 import { axisValues, checkRegion } from './grid.ts';
 import { parseSpec } from './spec.ts';
 import type {
-  DesignResult, Evaluation, GridAxis, Line, Member, Problem, Progress, Pulse, StartResult, StopReason, Target,
+  DesignResult, Evaluation, GridAxis, LadderSystem, Line, Member, MemberFigure, Problem, Progress, Pulse, StartResult, StopReason, Target,
+  TruncationCheck,
 } from './types.ts';
 import { getCore, loadCore } from './wasm.ts';
 
@@ -27,6 +29,13 @@ export interface DesignOptions {
   startIndices?: number[];
   /** Attach the current samples to a progress report at most this often (ms); default never. */
   progressPulseEveryMs?: number;
+  /**
+   * One stage of a pruned design split over threads or workers (best-start.ts `prunes`):
+   * 'probe' runs each start to `pruneAfter` iterations and returns the open ones as 'pruned'
+   * (and `keepStarts`); 'finish' runs the given starts to the end without pruning. Default:
+   * the whole design, pruned here when it runs every start.
+   */
+  stage?: 'probe' | 'finish';
   /**
    * Start 0 begins from these samples (Hz, the spec's number of segments) instead of its
    * random pulse, e.g. a pulse designed before; a sample above 98 % of the amplitude bound is
@@ -42,6 +51,8 @@ export interface RobustnessMap {
   amplitudeError: GridAxis;
   /** Row-major [amplitudeErrorIndex * detuning.points + detuningIndex]. */
   infidelity: Float64Array;
+  /** On a ladder: the leakage on the same grid. */
+  leakage?: Float64Array;
 }
 
 /**
@@ -66,47 +77,83 @@ export function toProblem(spec: unknown): Problem {
   return isProblem(spec) ? checkProblem(spec) : parseSpec(spec);
 }
 
-/** Evaluate a pulse on a spec's (or problem's) ensemble and target, through its line (if any). */
+/** Evaluate a pulse on a spec's (or problem's) ensemble, target and system, through its line (if any). */
 export function evaluate(spec: unknown, pulse: Pulse): Evaluation {
   const problem = toProblem(spec);
-  return evaluateMembers(problem.target, pulse, problem.members, problem.line);
+  return evaluateMembers(problem.target, pulse, problem.members, problem.line, problem.system);
 }
 
-/** Evaluate a pulse for a target on explicit members (weights normalised here), through `line` when given. */
-export function evaluateMembers(target: Target, pulse: Pulse, members: Member[], line?: Line): Evaluation {
+/**
+ * Evaluate a pulse for a target on explicit members (weights normalised here), through
+ * `line` when given, on the qubit or, with `system`, on a ladder (then with leakage per
+ * member and over the ensemble).
+ */
+export function evaluateMembers(target: Target, pulse: Pulse, members: Member[], line?: Line, system?: LadderSystem, maxLevels?: number): Evaluation {
   checkTarget(target);
   checkPulse(pulse);
-  const enc = encodeMembers(members, 2, true);
+  const enc = encodeSystem(target, members, system, maxLevels);
   const drive = qubitDrive(pulse, line);
   checkPulseAngles(drive, members);
-  const perMember = figures(target, drive, enc);
-  let mean = 0;
+  const values = figures(target, drive, enc);
+  const weight = enc.members.weight;
+  const m = enc.members.padded;
+  let mean = 0, meanLeakage = 0, meanAverage = 0, worstLeakage = 0;
   let worstIndex = 0;
-  const out = members.map((m, j) => {
-    mean += enc.weight[j] * perMember[j];
-    if (perMember[j] > perMember[worstIndex]) worstIndex = j;
-    return { detuning: m.detuning, amplitudeError: m.amplitudeError, weight: enc.weight[j], infidelity: perMember[j] };
+  const out = members.map((member, j) => {
+    mean += weight[j] * values[j];
+    if (values[j] > values[worstIndex]) worstIndex = j;
+    const figure: MemberFigure = { detuning: member.detuning, amplitudeError: member.amplitudeError, weight: weight[j], infidelity: values[j] };
+    if (enc.ladder) {
+      const leakage = values[m + j];
+      figure.anharmonicityError = member.anharmonicityError ?? 0;
+      figure.leakage = leakage;
+      if (enc.mode === 2) figure.phaseAfter = values[2 * m + j];
+      meanLeakage += weight[j] * leakage;
+      worstLeakage = Math.max(worstLeakage, leakage);
+      // 1 - F_avg = (L + 2 J)/3 on a gate: a sum of non-negative terms.
+      meanAverage += weight[j] * (target.kind === 'gate' ? (leakage + 2 * values[j]) / 3 : values[j]);
+    }
+    return figure;
   });
-  return { members: out, meanInfidelity: mean, worstInfidelity: perMember[worstIndex], worstIndex };
+  const evaluation: Evaluation = { members: out, meanInfidelity: mean, worstInfidelity: values[worstIndex], worstIndex };
+  if (enc.ladder) Object.assign(evaluation, { levels: enc.levels, meanLeakage, worstLeakage, meanAverageInfidelity: meanAverage });
+  return evaluation;
 }
 
-/** Per-member infidelities from the core (members padded to the system's multiple). */
-function figures(target: Target, pulse: Pulse, enc: EncodedMembers): Float64Array {
+/** Below this, a change between two truncations is rounding, not truncation. */
+const TRUNCATION_FLOOR = 1e-15;
+
+/**
+ * A ladder evaluation repeated on two more levels: `differs` when the mean infidelity or
+ * the mean leakage changes by more than a factor two (the truncation matters).
+ */
+export function truncationCheck(target: Target, pulse: Pulse, members: Member[], system: LadderSystem, evaluation: Evaluation, line?: Line): TruncationCheck {
+  const more = evaluateMembers(target, pulse, members, line, { ...system, levels: system.levels + 2 }, MAX_CHECK_LEVELS);
+  const apart = (a: number, b: number): boolean => a > 2 * b + TRUNCATION_FLOOR || b > 2 * a + TRUNCATION_FLOOR;
+  const leakage = more.meanLeakage ?? 0;
+  return {
+    levels: more.levels ?? system.levels + 2, meanInfidelity: more.meanInfidelity, meanLeakage: leakage,
+    differs: apart(more.meanInfidelity, evaluation.meanInfidelity) || apart(leakage, evaluation.meanLeakage ?? 0),
+  };
+}
+
+/** Per-member outputs from the core (the qubit: figures; a ladder: figures, leakages, phases, m each). */
+function figures(target: Target, pulse: Pulse, enc: SystemEncoding): Float64Array {
   const core = getCore();
   const n = pulse.i.length;
   return core.job(() => {
-    const p = createBlock(core, { target, segments: n, dt: pulse.dt, members: enc });
+    const p = createBlock(core, { ...blockSystem(enc), target, segments: n, dt: pulse.dt });
     setSamples(core, p, pulse.i, pulse.q);
     core.exports.problemFigure(p);
-    return readBuffer(core, p, BUFFER.perMember, enc.padded);
+    return readBuffer(core, p, BUFFER.perMember, (enc.ladder ? 3 : 1) * enc.members.padded);
   });
 }
 
 /** Members per core call of a map: bounds the arena and keeps each call short. */
 const MAP_CHUNK = 8192;
 
-/** Infidelity of a pulse on a detuning x amplitude-error grid, through `line` when given. */
-export function robustnessMap(target: Target, programmed: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): RobustnessMap {
+/** Infidelity of a pulse on a detuning x amplitude-error grid, through `line` when given (on a ladder with `system`, and its leakage). */
+export function robustnessMap(target: Target, programmed: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line, system?: LadderSystem): RobustnessMap {
   checkTarget(target);
   checkPulse(programmed);
   checkRegion({ detuning, amplitudeError });
@@ -116,22 +163,34 @@ export function robustnessMap(target: Target, programmed: Pulse, detuning: GridA
   const dv = axisValues(detuning), av = axisValues(amplitudeError);
   const total = dv.length * av.length;
   const infidelity = new Float64Array(total);
+  const ladder = encodeSystem(target, [{ detuning: 0, amplitudeError: 0, weight: 1 }], system).ladder;
+  const leakage = ladder ? new Float64Array(total) : undefined;
   for (let start = 0; start < total; start += MAP_CHUNK) {
     const count = Math.min(MAP_CHUNK, total - start);
-    const padded = Math.ceil(count / 2) * 2;
-    const scale = new Float64Array(padded), det = new Float64Array(padded), weight = new Float64Array(padded);
-    for (let j = 0; j < padded; j++) {
-      const idx = start + Math.min(j, count - 1);
-      scale[j] = 1 + av[Math.floor(idx / dv.length)];
-      det[j] = dv[idx % dv.length];
+    const chunk: Member[] = [];
+    for (let j = 0; j < count; j++) {
+      const idx = start + j;
+      chunk.push({ detuning: dv[idx % dv.length], amplitudeError: av[Math.floor(idx / dv.length)], weight: 1 });
     }
-    infidelity.set(figures(target, pulse, { count, padded, scale, detuning: det, weight }).subarray(0, count), start);
+    const enc = encodeSystem(target, chunk, system);
+    const values = figures(target, pulse, enc);
+    infidelity.set(values.subarray(0, count), start);
+    if (leakage) leakage.set(values.subarray(enc.members.padded, enc.members.padded + count), start);
   }
-  return { detuning: { ...detuning }, amplitudeError: { ...amplitudeError }, infidelity };
+  const map: RobustnessMap = { detuning: { ...detuning }, amplitudeError: { ...amplitudeError }, infidelity };
+  if (leakage) map.leakage = leakage;
+  return map;
 }
 
-/** Bloch vector after each sample of the drive the qubit sees (the pulse itself without a line), 3*(N+1) values starting with `from`. */
-export function blochTrajectory(programmed: Pulse, member: Member, from: [number, number, number], line?: Line): Float64Array {
+/**
+ * Bloch vector after each sample of the drive the qubit sees (the pulse itself without a
+ * line), 3*(N+1) values starting with `from`. Two levels only: on a ladder the state
+ * leaves the qubit's sphere (use ladderPopulations).
+ */
+export function blochTrajectory(programmed: Pulse, member: Member, from: [number, number, number], line?: Line, system?: LadderSystem): Float64Array {
+  if (system !== undefined && system.levels > 2) {
+    throw new ArgumentError(`system.levels: ${describeValue(system.levels)} is not allowed for a Bloch trajectory; the Bloch sphere holds two levels only (ask for the populations of every level against time instead)`);
+  }
   checkPulse(programmed);
   const pulse = qubitDrive(programmed, line);
   encodeMembers([member], 2, false);
@@ -186,14 +245,44 @@ async function designNow(problem: Problem, options: DesignOptions): Promise<Desi
     if (!Number.isInteger(s) || s < 0) throw new ArgumentError(`startIndices: ${describeValue(s)} is not allowed; use whole numbers >= 0`);
   }
   if (options.initialPulse) checkInitialPulse(options.initialPulse, problem.segments);
+  const { pruneAfter, keepStarts, maxIterations, timeLimit } = problem.optimizer;
+  const deadline = t0 + timeLimit * 1000;
+  // 'probe' runs each start to the pruning point (of the whole design's starts); a design
+  // run in one loop prunes its own starts here.
+  const o = problem.optimizer;
+  const pruning = options.stage === 'probe' ? prunes(o, o.starts) : options.stage === undefined && prunes(o, indices.length);
+  const until = pruning ? Math.min(pruneAfter, maxIterations) : maxIterations;
   const starts: StartResult[] = [];
-  for (const s of indices) {
-    const elapsed = (performance.now() - t0) / 1000;
-    const remaining = problem.optimizer.timeLimit - elapsed;
-    if (starts.length > 0 && (options.signal?.aborted || remaining <= 0)) break;
-    starts.push(await runStart(problem, s, options, t0, remaining));
+  const open: { run: StartRun; elapsedS: number }[] = [];
+  try {
+    for (const s of indices) {
+      if (starts.length + open.length > 0 && (options.signal?.aborted || performance.now() >= deadline)) break;
+      const tStart = performance.now();
+      const run = new StartRun(problem, s, undefined, s === 0 ? options.initialPulse : undefined);
+      const reason = await advance(problem, run, options, t0, deadline, until);
+      const elapsedS = (performance.now() - tStart) / 1000;
+      if (reason) {
+        starts.push(startResult(problem, run, reason, elapsedS));
+        run.dispose();
+      } else open.push({ run, elapsedS });
+    }
+    // The probe stage hands its open starts back as 'pruned'; a whole design continues the best.
+    const probes = [...starts, ...open.map(({ run, elapsedS }) => startResult(problem, run, 'pruned', elapsedS))];
+    const going = options.stage === 'probe' ? [] : startsToContinue(probes, keepStarts);
+    for (const { run, elapsedS } of open) {
+      if (going.includes(run.start)) {
+        const tStart = performance.now();
+        const reason = (await advance(problem, run, options, t0, deadline, maxIterations)) ?? 'max-iterations';
+        starts.push(startResult(problem, run, reason, elapsedS + (performance.now() - tStart) / 1000));
+      } else starts.push(probes.find((r) => r.start === run.start)!);
+    }
+  } finally {
+    for (const { run } of open) run.dispose();
   }
-  return bestOfStarts(problem, starts, t0);
+  starts.sort((a, b) => a.start - b.start);
+  const result = bestOfStarts(problem, starts, t0);
+  if (options.stage === 'probe' && pruning) result.keepStarts = keepStarts;
+  return result;
 }
 
 function checkInitialPulse(pulse: { i: ArrayLike<number>; q: ArrayLike<number> }, segments: number): void {
@@ -211,65 +300,77 @@ function checkInitialPulse(pulse: { i: ArrayLike<number>; q: ArrayLike<number> }
 /** The design result of finished starts: the best (best-start.ts) is evaluated, through the problem's line. */
 export function bestOfStarts(problem: Problem, starts: StartResult[], t0: number): DesignResult {
   const best = bestStart(starts);
-  const evaluation = evaluateMembers(problem.target, best.pulse, problem.members, problem.line);
+  const evaluation = evaluateMembers(problem.target, best.pulse, problem.members, problem.line, problem.system);
   if (problem.line) best.pulse.metadata.line = lineJson(problem.line);
-  best.pulse.metadata.figures = {
+  const figures: Record<string, number | string> = {
     meanInfidelity: evaluation.meanInfidelity,
     worstInfidelity: evaluation.worstInfidelity,
     iterations: best.iterations,
     stopReason: best.stopReason,
     start: best.start,
   };
-  return { pulse: best.pulse, evaluation, best, starts, elapsedS: (performance.now() - t0) / 1000 };
+  const result: DesignResult = { pulse: best.pulse, evaluation, best, starts, elapsedS: 0 };
+  if (evaluation.meanLeakage !== undefined) {
+    figures.meanLeakage = evaluation.meanLeakage;
+    figures.worstLeakage = evaluation.worstLeakage!;
+  }
+  if (problem.system) {
+    const check = truncationCheck(problem.target, best.pulse, problem.members, problem.system, evaluation, problem.line);
+    result.truncationCheck = check;
+    figures.truncationCheckLevels = check.levels;
+    figures.truncationCheckMeanInfidelity = check.meanInfidelity;
+    figures.truncationCheckMeanLeakage = check.meanLeakage;
+  }
+  best.pulse.metadata.figures = figures;
+  result.elapsedS = (performance.now() - t0) / 1000;
+  return result;
 }
 
-/** One optimiser start; ends on a stop criterion, the signal, or the time left. */
-async function runStart(problem: Problem, start: number, options: DesignOptions, t0: number, timeLeftS: number): Promise<StartResult> {
-  const { dt, rabiMax, constraints, optimizer } = problem;
-  const tStart = performance.now();
-  const deadline = tStart + Math.max(0, timeLeftS) * 1000;
-  const run = new StartRun(problem, start, undefined, start === 0 ? options.initialPulse : undefined);
-  try {
-    let stopReason: StopReason = 'max-iterations';
-    let lastYield = performance.now();
-    let lastPulse = -Infinity;
-    const report = (): void => {
-      if (!options.onProgress) return;
-      const now = performance.now();
-      const progress: Progress = {
-        start, iteration: run.iterations, meanInfidelity: run.infidelity, objective: run.objective,
-        gradientNorm: run.gradientNorm, elapsedS: (now - t0) / 1000,
-      };
-      if (options.progressPulseEveryMs !== undefined && now - lastPulse >= options.progressPulseEveryMs) {
-        lastPulse = now;
-        progress.pulse = run.samples();
-      }
-      options.onProgress(progress);
+/** A start's result at its accepted point. */
+function startResult(problem: Problem, run: StartRun, stopReason: StopReason, elapsedS: number): StartResult {
+  const samples = run.samples();
+  const pulse: Pulse = { dt: problem.dt, i: samples.i, q: samples.q, metadata: { origin: 'design', name: `design start ${run.start}` } };
+  holdBound(pulse, problem.rabiMax, problem.constraints.bound);
+  if (problem.line?.boundOn === 'both') holdDriveBound(pulse, problem.line, problem.rabiMax);
+  return {
+    start: run.start, pulse, meanInfidelity: run.infidelity, objective: run.objective,
+    iterations: run.iterations, evaluations: run.evaluations, stopReason, elapsedS,
+  };
+}
+
+/** Steps a start until a stop criterion, the signal or the deadline (its reason), or until `until` iterations (null: it may go on). */
+async function advance(problem: Problem, run: StartRun, options: DesignOptions, t0: number, deadline: number, until: number): Promise<StopReason | null> {
+  const { optimizer } = problem;
+  let lastYield = performance.now();
+  let lastPulse = -Infinity;
+  const report = (): void => {
+    if (!options.onProgress) return;
+    const now = performance.now();
+    const progress: Progress = {
+      start: run.start, iteration: run.iterations, meanInfidelity: run.infidelity, objective: run.objective,
+      gradientNorm: run.gradientNorm, elapsedS: (now - t0) / 1000,
     };
-    report();
-    for (;;) {
-      if (run.infidelity <= optimizer.targetInfidelity) { stopReason = 'target-reached'; break; }
-      if (options.signal?.aborted) { stopReason = 'stopped'; break; }
-      if (run.iterations >= optimizer.maxIterations) { stopReason = 'max-iterations'; break; }
-      if (performance.now() >= deadline) { stopReason = 'time-limit'; break; }
-      const stop = run.step();
-      if (stop) { stopReason = stop; break; }
-      report();
-      if (performance.now() - lastYield > YIELD_EVERY_MS) {
-        await yieldToEventLoop();
-        lastYield = performance.now();
-      }
+    if (options.progressPulseEveryMs !== undefined && now - lastPulse >= options.progressPulseEveryMs) {
+      lastPulse = now;
+      progress.pulse = run.samples();
     }
-    const samples = run.samples();
-    const pulse: Pulse = { dt, i: samples.i, q: samples.q, metadata: { origin: 'design', name: `design start ${start}` } };
-    holdBound(pulse, rabiMax, constraints.bound);
-    if (problem.line?.boundOn === 'both') holdDriveBound(pulse, problem.line, rabiMax);
-    return {
-      start, pulse, meanInfidelity: run.infidelity, objective: run.objective,
-      iterations: run.iterations, evaluations: run.evaluations, stopReason, elapsedS: (performance.now() - tStart) / 1000,
-    };
-  } finally {
-    run.dispose();
+    options.onProgress(progress);
+  };
+  report();
+  for (;;) {
+    if (run.infidelity <= optimizer.targetInfidelity) return 'target-reached';
+    if (options.signal?.aborted) return 'stopped';
+    if (run.iterations >= optimizer.maxIterations) return 'max-iterations';
+    if (run.stalled) return 'stalled';
+    if (run.iterations >= until) return null;
+    if (performance.now() >= deadline) return 'time-limit';
+    const stop = run.step();
+    if (stop) return stop;
+    report();
+    if (performance.now() - lastYield > YIELD_EVERY_MS) {
+      await yieldToEventLoop();
+      lastYield = performance.now();
+    }
   }
 }
 
