@@ -5,7 +5,7 @@ import { proxy, releaseProxy, wrap, type Endpoint, type Remote } from 'comlink';
 import { mergeDesigns } from '../core/best-start.ts';
 import { axisValue } from '../core/grid.ts';
 import type { QubitDrive } from '../core/line.ts';
-import type { DesignResult, Evaluation, GridAxis, Line, Member, Pulse, Target, Vec3 } from '../core/types.ts';
+import type { DesignResult, Evaluation, GridAxis, LadderSystem, Line, Member, Pulse, Target, Vec3 } from '../core/types.ts';
 import type { EncodedWaveform } from '../io/export/index.ts';
 import type {
   CompareRequest,
@@ -135,21 +135,23 @@ export class CoreClient {
     return this.analysis.evaluate(spec, pulse);
   }
 
-  /** A map, coarse first, then full resolution in bands spread over the idle workers. */
-  async map(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, onUpdate?: (update: MapUpdate) => void, line?: Line): Promise<MapUpdate> {
-    const coarse = await this.analysis.map(target, pulse, coarseAxis(detuning), coarseAxis(amplitudeError), line);
+  /** A map, coarse first, then full resolution in bands spread over the idle workers (on a ladder, with its leakage). */
+  async map(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, onUpdate?: (update: MapUpdate) => void, line?: Line, system?: LadderSystem): Promise<MapUpdate> {
+    const coarse = await this.analysis.map(target, pulse, coarseAxis(detuning), coarseAxis(amplitudeError), line, system);
     const update: MapUpdate = { coarse, complete: false };
     onUpdate?.({ ...update });
     const workers = this.designing ? [this.analysis] : [this.analysis, ...this.designers.filter((d) => d !== this.analysis)];
     const infidelity = new Float64Array(detuning.points * amplitudeError.points).fill(NaN);
     const fine: MapResult = { detuning: { ...detuning }, amplitudeError: { ...amplitudeError }, infidelity };
+    if (coarse.leakage) fine.leakage = new Float64Array(infidelity.length).fill(NaN);
     const bands = bandRows(amplitudeError.points, workers.length);
     await Promise.all(
       bands.map(async ([first, last], b) => {
         const rows: GridAxis = { min: axisValue(amplitudeError, first), max: axisValue(amplitudeError, last), points: last - first + 1 };
         if (amplitudeError.points === 1) Object.assign(rows, amplitudeError);
-        const part = await workers[b].map(target, pulse, detuning, rows, line);
+        const part = await workers[b].map(target, pulse, detuning, rows, line, system);
         infidelity.set(part.infidelity, first * detuning.points);
+        if (fine.leakage && part.leakage) fine.leakage.set(part.leakage, first * detuning.points);
         update.fine = fine;
         onUpdate?.({ ...update });
       }),
@@ -160,8 +162,8 @@ export class CoreClient {
   }
 
   /** Cuts through zero error over the grid's ranges. */
-  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): Promise<Cuts> {
-    return this.analysis.cuts(target, pulse, detuning, amplitudeError, line);
+  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line, system?: LadderSystem): Promise<Cuts> {
+    return this.analysis.cuts(target, pulse, detuning, amplitudeError, line, system);
   }
 
   /** The comparison table and cuts. */
@@ -170,8 +172,13 @@ export class CoreClient {
   }
 
   /** Bloch vectors after each sample for one member. */
-  trajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line): Promise<Float64Array> {
-    return this.analysis.trajectory(pulse, member, from, line);
+  trajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line, system?: LadderSystem): Promise<Float64Array> {
+    return this.analysis.trajectory(pulse, member, from, line, system);
+  }
+
+  /** Population of every level after each sample for one member, (N + 1) x levels, sample-major. */
+  populations(pulse: Pulse, member: Member, system: LadderSystem, from: Vec3, line?: Line): Promise<Float64Array> {
+    return this.analysis.populations(pulse, member, system, from, line);
   }
 
   /** The drive the qubit sees through the line. */

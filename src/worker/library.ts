@@ -3,6 +3,7 @@ import { blochTrajectory, design, evaluateMembers, robustnessMap } from '../core
 import { compare, evaluateJudged } from '../core/compare.ts';
 import { compositeNames } from '../core/composites.ts';
 import { dragFamily } from '../core/drag-family.ts';
+import { ladderPopulations } from '../core/ladder.ts';
 import { qubitDrive } from '../core/line.ts';
 import { cuts } from '../core/robustness.ts';
 import { parseSpec } from '../core/spec.ts';
@@ -18,6 +19,8 @@ export const library: CoreLibrary = {
   evaluateMembers,
   robustnessMap,
   blochTrajectory,
+  populations: (pulse, member, system, from, line) =>
+    ladderPopulations(qubitDrive(pulse, line), { ...member, anharmonicityError: member.anharmonicityError ?? 0 }, system, from),
   qubitDrive: (pulse, line) => qubitDrive(pulse, line),
   compare,
   cuts,
