@@ -17,6 +17,7 @@ import type {
   ExportJudge,
   ExportPreview,
   MapResult,
+  Populations,
   ProgressBatch,
   SpecCheck,
 } from './protocol.ts';
@@ -176,8 +177,8 @@ export class CoreClient {
     return this.analysis.trajectory(pulse, member, from, line, system);
   }
 
-  /** Population of every level after each sample for one member, (N + 1) x levels, sample-major. */
-  populations(pulse: Pulse, member: Member, system: LadderSystem, from: Vec3, line?: Line): Promise<Float64Array> {
+  /** Population of every level against time for one member (the drive through the line). */
+  populations(pulse: Pulse, member: Member, system: LadderSystem, from: Vec3, line?: Line): Promise<Populations> {
     return this.analysis.populations(pulse, member, system, from, line);
   }
 

@@ -19,8 +19,11 @@ export const library: CoreLibrary = {
   evaluateMembers,
   robustnessMap,
   blochTrajectory,
-  populations: (pulse, member, system, from, line) =>
-    ladderPopulations(qubitDrive(pulse, line), { ...member, anharmonicityError: member.anharmonicityError ?? 0 }, system, from),
+  populations: (pulse, member, system, from, line) => {
+    const drive = qubitDrive(pulse, line);
+    const values = ladderPopulations(drive, { ...member, anharmonicityError: member.anharmonicityError ?? 0 }, system, from);
+    return { levels: system.levels, dt: drive.dt, startS: drive.startS, values };
+  },
   qubitDrive: (pulse, line) => qubitDrive(pulse, line),
   compare,
   cuts,

@@ -64,6 +64,16 @@ export interface MapResult {
   leakage?: Float64Array;
 }
 
+/** Populations of every level against time: `values[k * levels + l]` is level l's at `startS + k dt` (k = 0..N; k = 0 the initial state, k the state after drive sample k - 1). */
+export interface Populations {
+  levels: number;
+  /** The drive's sample period (s): the programmed one without a line, the line's fine step with one. */
+  dt: number;
+  /** When the drive starts relative to the programmed pulse (s). */
+  startS: number;
+  values: Float64Array;
+}
+
 /** One-dimensional cuts through zero error: along detuning (no amplitude error) and along amplitude error (no detuning). */
 export type { Cuts } from '../core/robustness.ts';
 
@@ -127,8 +137,8 @@ export interface CoreService {
   compare(request: CompareRequest): Promise<CompareRow[]>;
   /** Bloch vector after each sample for one member, 3 (N + 1) values. */
   trajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line, system?: LadderSystem): Promise<Float64Array>;
-  /** Population of every level after each sample for one member, (N + 1) x levels, sample-major, of the drive through the line. */
-  populations(pulse: Pulse, member: Member, system: LadderSystem, from: Vec3, line?: Line): Promise<Float64Array>;
+  /** Population of every level after each sample of the drive through the line, for one member. */
+  populations(pulse: Pulse, member: Member, system: LadderSystem, from: Vec3, line?: Line): Promise<Populations>;
   /** The drive the qubit sees when the pulse is played through the line (the one library function, qubitDrive). */
   drive(pulse: Pulse, line?: Line): Promise<QubitDrive>;
   /** Reads a pulse file's text (PulseFormatError when malformed). */

@@ -15,6 +15,7 @@ import type {
   ErrorInfo,
   LivePulse,
   MapResult,
+  Populations,
   ProgressPoint,
   ProgressSink,
   SpecCheck,
@@ -32,7 +33,7 @@ export interface CoreLibrary {
   robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line, system?: LadderSystem): RobustnessMap;
   blochTrajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line, system?: LadderSystem): Float64Array;
   /** Population of every level after each sample of the drive through the line (ladderPopulations). */
-  populations(pulse: Pulse, member: Member, system: LadderSystem, from: Vec3, line?: Line): Float64Array;
+  populations(pulse: Pulse, member: Member, system: LadderSystem, from: Vec3, line?: Line): Populations;
   /** The drive the qubit sees through a line (the pulse itself without one). */
   qubitDrive(pulse: Pulse, line: Line | undefined): QubitDrive;
   /** Pulses and composite sequences judged on one spec, best first (what `gatesmith compare` prints). */

@@ -69,8 +69,11 @@ describe('worker service on a ladder spec', () => {
 
   it('gives the populations of every level as ladderPopulations, summing to 1 (a unitary keeps the norm)', async () => {
     const member = { detuning: 0, amplitudeError: 0.03, weight: 1 };
-    const pops = await core.populations(pulse, member, system, [0, 0, 1]);
+    const result = await core.populations(pulse, member, system, [0, 0, 1]);
+    const pops = result.values;
     const direct = ladderPopulations(pulse, { ...member, anharmonicityError: 0 }, system, [0, 0, 1]);
+    // Without a line the drive is the pulse itself: same period, starting with it.
+    expect([result.levels, result.dt, result.startS]).toEqual([system.levels, pulse.dt, 0]);
     expect(Array.from(pops)).toEqual(Array.from(direct));
     const d = system.levels;
     expect(pops.length).toBe((pulse.i.length + 1) * d);
