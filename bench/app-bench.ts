@@ -11,6 +11,8 @@ import { existsSync } from 'node:fs';
 import { CHROMIUM, skipReason, startHarness, visit } from '../tests/e2e/harness.ts';
 
 const REPEATS = 5;
+/** Longest wait of an in-page measurement (ms); past it the figure is NaN, never a hang. */
+const STEP_TIMEOUT_MS = 120_000;
 
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
 
@@ -22,8 +24,9 @@ async function runEnabled(page: Page): Promise<number> {
 /** Clicks Run and times, inside the page, the first reported iteration and the end of the run; records long tasks meanwhile. */
 async function timedRun(page: Page): Promise<{ firstPointMs: number; designMs: number; longTasks: number[] }> {
   return page.evaluate(
-    () =>
+    (timeoutMs) =>
       new Promise<{ firstPointMs: number; designMs: number; longTasks: number[] }>((resolve) => {
+        setTimeout(() => resolve({ firstPointMs: NaN, designMs: NaN, longTasks: [] }), timeoutMs);
         const longTasks: number[] = [];
         const observer = new PerformanceObserver((list) => list.getEntries().forEach((e) => longTasks.push(e.duration)));
         observer.observe({ type: 'longtask', buffered: false });
@@ -45,6 +48,7 @@ async function timedRun(page: Page): Promise<{ firstPointMs: number; designMs: n
         watch.observe(document.body, { subtree: true, characterData: true, childList: true });
         (document.querySelector('[data-testid=run]') as HTMLButtonElement).click();
       }),
+    STEP_TIMEOUT_MS,
   );
 }
 
@@ -107,8 +111,9 @@ export async function appBenchmark(log: (line: string) => void = console.log): P
       await page.waitForFunction(() => Number(document.querySelector('[data-testid=run-iteration]')?.textContent) > 20, undefined, { timeout: 60_000 });
       stops.push(
         await page.evaluate(
-          () =>
+          (timeoutMs) =>
             new Promise<number>((resolve) => {
+              setTimeout(() => resolve(NaN), timeoutMs);
               const status = document.querySelector('[data-testid=run-status]')!;
               const t0 = performance.now();
               const watch = new MutationObserver(() => {
@@ -120,6 +125,7 @@ export async function appBenchmark(log: (line: string) => void = console.log): P
               watch.observe(status, { subtree: true, characterData: true, childList: true });
               (document.querySelector('[data-testid=stop]') as HTMLButtonElement).click();
             }),
+          STEP_TIMEOUT_MS,
         ),
       );
       await context.close();

@@ -2,7 +2,7 @@
 // Designs spread their starts over the pool and keep the best pulse; maps come back coarse
 // first, then at full resolution in bands computed in parallel. The only `wrap`.
 import { proxy, releaseProxy, wrap, type Endpoint, type Remote } from 'comlink';
-import { mergeDesigns } from '../core/best-start.ts';
+import { mergeDesigns, mergePruned, startsToContinue } from '../core/best-start.ts';
 import { axisValue } from '../core/grid.ts';
 import type { QubitDrive } from '../core/line.ts';
 import type { DesignResult, Evaluation, GridAxis, LadderSystem, Line, Member, Pulse, Target, Vec3 } from '../core/types.ts';
@@ -109,8 +109,19 @@ export class CoreClient {
     const groups = shareStarts(starts, this.designers.length);
     const sink = onProgress ? proxy(onProgress) : undefined;
     try {
-      const shares = await Promise.all(groups.map((group, w) => this.designers[w].design(spec, group, sink, livePulseEveryMs)));
-      return { ...mergeDesigns(shares, (performance.now() - t0) / 1000), stopped: this.stopRequested };
+      // Every start to the pruning point (the whole run when the spec does not prune), then the
+      // best again from their start on, as one loop and the command line's threads do.
+      const probes = await Promise.all(groups.map((group, w) => this.designers[w].design(spec, group, sink, livePulseEveryMs, 'probe')));
+      const keep = probes[0].keepStarts;
+      const going = keep === undefined || this.stopRequested ? [] : startsToContinue(probes.flatMap((s) => s.starts), keep);
+      if (going.length === 0) return { ...mergeDesigns(probes, (performance.now() - t0) / 1000), stopped: this.stopRequested };
+      const again = shareStarts(going.length, this.designers.length).map((g) => g.map((k) => going[k]));
+      // A continued start retraces its probe first: the page has those reports already.
+      const reached = new Map(probes.flatMap((s) => s.starts).map((r) => [r.start, r.iterations]));
+      const fresh = (p: { start: number; iteration: number }): boolean => p.iteration > (reached.get(p.start) ?? -1);
+      const finishSink = onProgress ? proxy((batch: ProgressBatch) => onProgress({ points: batch.points.filter(fresh), live: batch.live.filter(fresh) })) : undefined;
+      const finished = await Promise.all(again.map((group, w) => this.designers[w].design(spec, group, finishSink, livePulseEveryMs, 'finish')));
+      return { ...mergePruned(probes, finished, (performance.now() - t0) / 1000), stopped: this.stopRequested };
     } catch (error) {
       await this.stop();
       throw error;

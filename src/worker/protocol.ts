@@ -123,8 +123,8 @@ export interface CoreService {
   ready(): Promise<CoreInfo>;
   /** Validates a spec with the library's own rules. */
   checkSpec(spec: unknown): SpecCheck;
-  /** Designs with the given starts; progress is batched; `stop` ends it early keeping the best pulse. */
-  design(spec: unknown, startIndices: number[], onProgress?: ProgressSink, livePulseEveryMs?: number): Promise<DesignShare>;
+  /** Designs with the given starts (a stage of a pruned design: api.ts DesignOptions.stage); progress is batched; `stop` ends it early keeping the best pulse. */
+  design(spec: unknown, startIndices: number[], onProgress?: ProgressSink, livePulseEveryMs?: number, stage?: 'probe' | 'finish'): Promise<DesignShare>;
   /** Ends every running design of this worker within one iteration. */
   stop(): number;
   /** Figures of a pulse on the spec's ensemble and target. */

@@ -122,7 +122,7 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
       }
     },
 
-    design(spec, startIndices, onProgress, livePulseEveryMs = 200) {
+    design(spec, startIndices, onProgress, livePulseEveryMs = 200, stage) {
       // Registered before queueing, so that a stop sent while the job waits still ends it.
       const controller = new AbortController();
       running.add(controller);
@@ -131,6 +131,7 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
         const result = await library.design(spec, {
           signal: controller.signal,
           startIndices,
+          stage,
           progressPulseEveryMs: onProgress ? livePulseEveryMs : undefined,
           onProgress: (progress) => batcher.add(progress),
         });

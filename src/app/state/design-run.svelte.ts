@@ -30,6 +30,8 @@ const STOP_WORDS: Record<StopReason, string> = {
   'time-limit': 'time budget used',
   stopped: 'stopped',
   'line-search-failed': 'no further descent (line search)',
+  stalled: 'progress stalled',
+  pruned: 'set aside after the first iterations',
 };
 
 /** Words for why a start ended. */
