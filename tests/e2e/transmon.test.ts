@@ -81,6 +81,11 @@ describe.skipIf(reason !== null)('a transmon spec in the app', () => {
       expect(await page.getByTestId('populations-final').textContent()).toMatch(/\|5⟩ .* leakage \(levels 2 and up\)/);
       await page.waitForTimeout(300);
       await screenshot(page, `e2e-transmon-02-populations-${scheme}-${width}`);
+      // The linear axis too: the same points, the same sums.
+      await page.getByTestId('populations-log').uncheck();
+      await page.waitForTimeout(300);
+      expect(Number(await chart.getAttribute('data-norm-deviation'))).toBeLessThan(1e-9);
+      await screenshot(page, `e2e-transmon-03-populations-linear-${scheme}-${width}`);
       expect(consoleErrors).toEqual([]);
       await context.close();
     }, 180_000);
