@@ -35,6 +35,9 @@ export interface ProgressBatch {
   live: LivePulse[];
 }
 
+/** Called while a file is read: the fraction of its bytes read, and what is being done. */
+export type FileProgressSink = (fraction: number, stage: 'reading' | 'checking' | 'evaluating') => void;
+
 /** Called with each batch while a design runs. */
 export type ProgressSink = (batch: ProgressBatch) => void;
 
@@ -143,6 +146,12 @@ export interface CoreService {
   drive(pulse: Pulse, line?: Line): Promise<QubitDrive>;
   /** Reads a pulse file's text (PulseFormatError when malformed). */
   readPulse(text: string): Pulse;
+  /**
+   * Reads a pulse file itself, reporting the fraction read so far (PulseFormatError when
+   * malformed), and evaluates it on `spec` when one is given (the samples then cross to the
+   * page once, not back again to be evaluated).
+   */
+  readPulseFile(file: Blob, onProgress?: FileProgressSink, spec?: unknown): Promise<{ pulse: Pulse; evaluation?: Evaluation }>;
   /** Writes a pulse file's text. */
   writePulse(pulse: Pulse): string;
   /** The waveform as the instrument plays it and its report, judged on the members when given (ExportError when refused). */
