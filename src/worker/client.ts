@@ -5,7 +5,7 @@ import { proxy, releaseProxy, wrap, type Endpoint, type Remote } from 'comlink';
 import { mergeDesigns, mergePruned, startsToContinue } from '../core/best-start.ts';
 import { axisValue } from '../core/grid.ts';
 import type { QubitDrive } from '../core/line.ts';
-import type { DesignResult, Evaluation, GridAxis, Line, Member, Problem, Pulse, StartResult, Target, Vec3 } from '../core/types.ts';
+import type { DesignResult, Evaluation, GridAxis, LadderSystem, Line, Member, Problem, Pulse, StartResult, Target, Vec3 } from '../core/types.ts';
 import type { EncodedWaveform } from '../io/export/index.ts';
 import type {
   CompareRequest,
@@ -19,6 +19,7 @@ import type {
   FileProgressSink,
   LivePulse,
   MapResult,
+  Populations,
   ProgressBatch,
   ProgressPoint,
   ShortestOutcome,
@@ -336,22 +337,24 @@ export class CoreClient {
     return this.analysis.evaluate(spec, pulse);
   }
 
-  /** A map, coarse first, then full resolution in bands spread over the idle workers. */
-  async map(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, onUpdate?: (update: MapUpdate) => void, line?: Line): Promise<MapUpdate> {
-    const coarse = await this.analysis.map(target, pulse, coarseAxis(detuning), coarseAxis(amplitudeError), line);
+  /** A map, coarse first, then full resolution in bands spread over the idle workers (on a ladder, with its leakage). */
+  async map(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, onUpdate?: (update: MapUpdate) => void, line?: Line, system?: LadderSystem): Promise<MapUpdate> {
+    const coarse = await this.analysis.map(target, pulse, coarseAxis(detuning), coarseAxis(amplitudeError), line, system);
     const update: MapUpdate = { coarse, complete: false };
     onUpdate?.({ ...update });
     const pool = this.designing ? [this.analysis] : [this.analysis, ...this.designers.filter((d) => d !== this.analysis)];
     const workers = pool.slice(0, Math.max(1, this.mapWorkers));
     const infidelity = new Float64Array(detuning.points * amplitudeError.points).fill(NaN);
     const fine: MapResult = { detuning: { ...detuning }, amplitudeError: { ...amplitudeError }, infidelity };
+    if (coarse.leakage) fine.leakage = new Float64Array(infidelity.length).fill(NaN);
     const bands = bandRows(amplitudeError.points, workers.length);
     await Promise.all(
       bands.map(async ([first, last], b) => {
         const rows: GridAxis = { min: axisValue(amplitudeError, first), max: axisValue(amplitudeError, last), points: last - first + 1 };
         if (amplitudeError.points === 1) Object.assign(rows, amplitudeError);
-        const part = await workers[b].map(target, pulse, detuning, rows, line);
+        const part = await workers[b].map(target, pulse, detuning, rows, line, system);
         infidelity.set(part.infidelity, first * detuning.points);
+        if (fine.leakage && part.leakage) fine.leakage.set(part.leakage, first * detuning.points);
         update.fine = fine;
         onUpdate?.({ ...update });
       }),
@@ -362,8 +365,8 @@ export class CoreClient {
   }
 
   /** Cuts through zero error over the grid's ranges. */
-  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): Promise<Cuts> {
-    return this.analysis.cuts(target, pulse, detuning, amplitudeError, line);
+  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line, system?: LadderSystem): Promise<Cuts> {
+    return this.analysis.cuts(target, pulse, detuning, amplitudeError, line, system);
   }
 
   /** The comparison table and cuts. */
@@ -372,8 +375,13 @@ export class CoreClient {
   }
 
   /** Bloch vectors after each sample for one member. */
-  trajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line): Promise<Float64Array> {
-    return this.analysis.trajectory(pulse, member, from, line);
+  trajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line, system?: LadderSystem): Promise<Float64Array> {
+    return this.analysis.trajectory(pulse, member, from, line, system);
+  }
+
+  /** Population of every level against time for one member (the drive through the line). */
+  populations(pulse: Pulse, member: Member, system: LadderSystem, from: Vec3, line?: Line): Promise<Populations> {
+    return this.analysis.populations(pulse, member, system, from, line);
   }
 
   /** The drive the qubit sees through the line. */

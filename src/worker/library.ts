@@ -3,6 +3,7 @@ import { blochTrajectory, design, evaluateMembers, robustnessMap } from '../core
 import { compare, evaluateJudged } from '../core/compare.ts';
 import { compositeNames } from '../core/composites.ts';
 import { dragFamily } from '../core/drag-family.ts';
+import { ladderPopulations } from '../core/ladder.ts';
 import { qubitDrive } from '../core/line.ts';
 import { cuts } from '../core/robustness.ts';
 import { parseSpec } from '../core/spec.ts';
@@ -21,6 +22,11 @@ export const library: CoreLibrary = {
   evaluateMembers,
   robustnessMap,
   blochTrajectory,
+  populations: (pulse, member, system, from, line) => {
+    const drive = qubitDrive(pulse, line);
+    const values = ladderPopulations(drive, { ...member, anharmonicityError: member.anharmonicityError ?? 0 }, system, from);
+    return { levels: system.levels, dt: drive.dt, startS: drive.startS, values };
+  },
   qubitDrive: (pulse, line) => qubitDrive(pulse, line),
   compare,
   cuts,

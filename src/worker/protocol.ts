@@ -2,7 +2,7 @@
 // coarse call per job. The worker implements CoreService (service.ts); the page reaches it
 // only through the client (client.ts).
 import type { QubitDrive } from '../core/line.ts';
-import type { DesignResult, Evaluation, GridAxis, Line, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
+import type { DesignResult, Evaluation, GridAxis, LadderSystem, Line, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
 import type { CompareRow, NamedPulse } from '../core/compare.ts';
 import type { DurationTrial, ShortestResult } from '../core/shortest.ts';
 import type { Cuts } from '../core/robustness.ts';
@@ -64,6 +64,18 @@ export interface MapResult {
   detuning: GridAxis;
   amplitudeError: GridAxis;
   infidelity: Float64Array;
+  /** On a ladder of more than two levels: the leakage on the same grid. */
+  leakage?: Float64Array;
+}
+
+/** Populations of every level against time: `values[k * levels + l]` is level l's at `startS + k dt` (k = 0..N; k = 0 the initial state, k the state after drive sample k - 1). */
+export interface Populations {
+  levels: number;
+  /** The drive's sample period (s): the programmed one without a line, the line's fine step with one. */
+  dt: number;
+  /** When the drive starts relative to the programmed pulse (s). */
+  startS: number;
+  values: Float64Array;
 }
 
 /** One-dimensional cuts through zero error: along detuning (no amplitude error) and along amplitude error (no detuning). */
@@ -90,6 +102,8 @@ export interface ExportJudge {
   members: Member[];
   /** The line the qubit sees the waveform through (the spec's). */
   line?: Line;
+  /** The system the waveform drives (the spec's; absent: the two-level qubit). */
+  system?: LadderSystem;
 }
 
 /** The instrument export of a pulse as the export panel shows it. */
@@ -137,14 +151,16 @@ export interface CoreService {
   stop(): number;
   /** Figures of a pulse on the spec's ensemble and target. */
   evaluate(spec: unknown, pulse: Pulse): Promise<Evaluation>;
-  /** Infidelity of a pulse on a grid. */
-  map(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): Promise<MapResult>;
+  /** Infidelity (and on a ladder leakage) of a pulse on a grid, through the line, on the system. */
+  map(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line, system?: LadderSystem): Promise<MapResult>;
   /** Cuts through zero error with the grid's ranges and point counts. */
-  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): Promise<Cuts>;
+  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line, system?: LadderSystem): Promise<Cuts>;
   /** Summary figures and cuts of the given pulses and composite sequences under the spec's limits. */
   compare(request: CompareRequest): Promise<CompareRow[]>;
   /** Bloch vector after each sample for one member, 3 (N + 1) values. */
-  trajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line): Promise<Float64Array>;
+  trajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line, system?: LadderSystem): Promise<Float64Array>;
+  /** Population of every level after each sample of the drive through the line, for one member. */
+  populations(pulse: Pulse, member: Member, system: LadderSystem, from: Vec3, line?: Line): Promise<Populations>;
   /** The drive the qubit sees when the pulse is played through the line (the one library function, qubitDrive). */
   drive(pulse: Pulse, line?: Line): Promise<QubitDrive>;
   /** Reads a pulse file's text (PulseFormatError when malformed). */

@@ -6,7 +6,7 @@ import type { ShortestOptions, ShortestResult } from '../core/shortest.ts';
 import type { CompareOptions, Comparison, NamedPulse } from '../core/compare.ts';
 import type { Cuts } from '../core/robustness.ts';
 import type { QubitDrive } from '../core/line.ts';
-import type { DesignResult, Evaluation, GridAxis, Line, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
+import type { DesignResult, Evaluation, GridAxis, LadderSystem, Line, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
 import type { EncodedWaveform, EncodeOptions, ExportedWaveform, ExportReport, PulseEvaluator, WaveformFormat } from '../io/export/index.ts';
 import type {
   CoreInfo,
@@ -16,6 +16,7 @@ import type {
   ErrorInfo,
   LivePulse,
   MapResult,
+  Populations,
   ProgressPoint,
   ProgressSink,
   SpecCheck,
@@ -33,15 +34,17 @@ export interface CoreLibrary {
   rectangularTime(problem: Problem): number;
   /** Figures on the spec's ensemble against the target the pulse is judged against (core/target-choice.ts). */
   evaluate(spec: unknown, pulse: Pulse): Evaluation;
-  evaluateMembers(target: Target, pulse: Pulse, members: Member[], line?: Line): Evaluation;
-  robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): RobustnessMap;
-  blochTrajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line): Float64Array;
+  evaluateMembers(target: Target, pulse: Pulse, members: Member[], line?: Line, system?: LadderSystem): Evaluation;
+  robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line, system?: LadderSystem): RobustnessMap;
+  blochTrajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line, system?: LadderSystem): Float64Array;
+  /** Population of every level after each sample of the drive through the line (ladderPopulations). */
+  populations(pulse: Pulse, member: Member, system: LadderSystem, from: Vec3, line?: Line): Populations;
   /** The drive the qubit sees through a line (the pulse itself without one). */
   qubitDrive(pulse: Pulse, line: Line | undefined): QubitDrive;
   /** Pulses and composite sequences judged on one spec, best first (what `gatesmith compare` prints). */
   compare(spec: unknown, pulses: readonly NamedPulse[], options?: CompareOptions): Comparison;
   /** The cuts through zero error along each axis. */
-  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): Cuts;
+  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line, system?: LadderSystem): Cuts;
   composites: readonly CompositeChoice[];
   readPulse(text: string): Pulse;
   writePulse(pulse: Pulse): string;
@@ -213,15 +216,17 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
       return withCore(() => library.evaluate(spec, pulse));
     },
 
-    map(target, pulse, detuning, amplitudeError, line) {
+    map(target, pulse, detuning, amplitudeError, line, system) {
       return withCore((): MapResult => {
-        const map = library.robustnessMap(target, pulse, detuning, amplitudeError, line);
-        return moved({ detuning: map.detuning, amplitudeError: map.amplitudeError, infidelity: map.infidelity });
+        const map = library.robustnessMap(target, pulse, detuning, amplitudeError, line, system);
+        const result: MapResult = { detuning: map.detuning, amplitudeError: map.amplitudeError, infidelity: map.infidelity };
+        if (map.leakage) result.leakage = map.leakage;
+        return moved(result);
       });
     },
 
-    cuts(target, pulse, detuning, amplitudeError, line) {
-      return withCore(() => moved(library.cuts(target, pulse, detuning, amplitudeError, line)));
+    cuts(target, pulse, detuning, amplitudeError, line, system) {
+      return withCore(() => moved(library.cuts(target, pulse, detuning, amplitudeError, line, system)));
     },
 
     compare(request) {
@@ -232,8 +237,12 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
       });
     },
 
-    trajectory(pulse, member, from, line) {
-      return withCore(() => moved(library.blochTrajectory(pulse, member, from, line)));
+    trajectory(pulse, member, from, line, system) {
+      return withCore(() => moved(library.blochTrajectory(pulse, member, from, line, system)));
+    },
+
+    populations(pulse, member, system, from, line) {
+      return withCore(() => moved(library.populations(pulse, member, system, from, line)));
     },
 
     drive(pulse, line) {
@@ -268,8 +277,9 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
       // The evaluation runs on the core, so the whole job waits its turn like any other.
       return withCore(async (): Promise<ExportPreview> => {
         const waveform = library.exportWaveform(pulse, settings);
-        const evaluate = judge ? (p: Pulse) => library.evaluateMembers(judge.target, p, judge.members, judge.line) : null;
-        const naive = judge?.line ? (p: Pulse) => library.evaluateMembers(judge.target, p, judge.members) : undefined;
+        const evaluate = judge ? (p: Pulse) => library.evaluateMembers(judge.target, p, judge.members, judge.line, judge.system) : null;
+        // Without the line, still on the system: what ignoring the line alone would show.
+        const naive = judge?.line ? (p: Pulse) => library.evaluateMembers(judge.target, p, judge.members, undefined, judge.system) : undefined;
         const report = await library.exportReport(evaluate, pulse, waveform, naive);
         return moved({ report, played: library.playedPulse(waveform) });
       });
