@@ -10,12 +10,15 @@ import type {
   CoreInfo,
   CoreService,
   Cuts,
+  EnsemblePaths,
   ExportFileOptions,
   ExportJudge,
   ExportPreview,
   MapResult,
   ProgressBatch,
   SpecCheck,
+  Spectrum,
+  SpectrumRequest,
 } from './protocol.ts';
 
 /** A merged design: the best start over every worker, and whether Stop ended it. */
@@ -181,6 +184,16 @@ export class CoreClient {
   /** Bloch vectors after each sample for one member. */
   trajectory(pulse: Pulse, member: Member, from: Vec3): Promise<Float64Array> {
     return this.analysis.trajectory(pulse, member, from);
+  }
+
+  /** Bloch paths of several members, each thinned to at most `maxPoints` points. */
+  ensembleTrajectories(pulse: Pulse, members: Member[], from: Vec3, maxPoints = 600): Promise<EnsemblePaths> {
+    return this.analysis.ensembleTrajectories(pulse, members, from, maxPoints);
+  }
+
+  /** The held pulse's spectrum over a span of detunings, computed in the analysis worker. */
+  spectrum(pulse: Pulse, request: SpectrumRequest): Promise<Spectrum> {
+    return this.analysis.spectrum(pulse, request);
   }
 
   /** Reads a pulse file (rejects with a PulseFormatError named error when malformed). */

@@ -2,6 +2,7 @@
 import { blochTrajectory, design, evaluate, evaluateMembers, robustnessMap } from '../core/api.ts';
 import { buildComposite, compositeNames, type CompositeName } from '../core/composites.ts';
 import { cut, summarise } from '../core/robustness.ts';
+import { heldSpectrum } from '../core/spectrum.ts';
 import { parseSpec } from '../core/spec.ts';
 import { readPulse, writePulse } from '../io/pulse.ts';
 import { encodeWaveform, exportReport, exportWaveform, samplesToPulse, waveformSamples } from '../io/export/index.ts';
@@ -15,6 +16,7 @@ export const library: CoreLibrary = {
   evaluateMembers,
   robustnessMap,
   blochTrajectory,
+  heldSpectrum,
   summarise,
   cut,
   buildComposite: (name, options) => buildComposite(name as CompositeName, options),

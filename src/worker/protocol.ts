@@ -3,6 +3,9 @@
 // only through the client (client.ts).
 import type { DesignResult, Evaluation, GridAxis, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
 import type { EncodedWaveform, ExportReport, SampleUnits, WaveformFormat } from '../io/export/index.ts';
+import type { Spectrum, SpectrumRequest } from '../core/spectrum.ts';
+
+export type { Spectrum, SpectrumRequest };
 
 /** An error as it survives the boundary: its class name, message and, for a SpecError, the field. */
 export interface ErrorInfo {
@@ -141,6 +144,16 @@ export interface ExportFileOptions {
   metadata?: Record<string, unknown>;
 }
 
+/** Bloch paths of several members, each thinned to at most a given number of points. */
+export interface EnsemblePaths {
+  /** Every member's path one after the other, 3 values per point. */
+  paths: Float64Array;
+  /** Points in each member's path (the start, then samples at even steps, the end always kept). */
+  pointsPerPath: number;
+  /** Sample index after which each point lies (0 for the start). */
+  sampleIndex: Int32Array;
+}
+
 /** The API the worker exposes; every method is one job. */
 export interface CoreService {
   /** Loads the core (once) and lists what it can build. */
@@ -161,6 +174,10 @@ export interface CoreService {
   compare(request: CompareRequest): Promise<CompareRow[]>;
   /** Bloch vector after each sample for one member, 3 (N + 1) values. */
   trajectory(pulse: Pulse, member: Member, from: Vec3): Promise<Float64Array>;
+  /** Bloch paths of several members from one initial state, thinned to at most `maxPoints` points each. */
+  ensembleTrajectories(pulse: Pulse, members: Member[], from: Vec3, maxPoints: number): Promise<EnsemblePaths>;
+  /** |X(D)| of the held pulse over a span of detunings (src/core/spectrum.ts). */
+  spectrum(pulse: Pulse, request: SpectrumRequest): Promise<Spectrum>;
   /** Reads a pulse file's text (PulseFormatError when malformed). */
   readPulse(text: string): Pulse;
   /** Writes a pulse file's text. */

@@ -2,6 +2,7 @@
 // the command line runs). Built over an injected library so that tests can expose it on a
 // MessageChannel in one realm, exactly as the worker does across threads.
 import type { DesignOptions, RobustnessMap } from '../core/api.ts';
+import type { Spectrum, SpectrumRequest } from '../core/spectrum.ts';
 import type { Cut, ErrorAxis, RobustnessSummary, SummaryOptions } from '../core/robustness.ts';
 import type { DesignResult, Evaluation, GridAxis, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
 import type { EncodedWaveform, EncodeOptions, ExportedWaveform, ExportReport, PulseEvaluator, WaveformFormat } from '../io/export/index.ts';
@@ -13,6 +14,7 @@ import type {
   ExportPreview,
   CompositeChoice,
   Cuts,
+  EnsemblePaths,
   ErrorInfo,
   LivePulse,
   MapResult,
@@ -32,6 +34,8 @@ export interface CoreLibrary {
   evaluateMembers(target: Target, pulse: Pulse, members: Member[]): Evaluation;
   robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): RobustnessMap;
   blochTrajectory(pulse: Pulse, member: Member, from: Vec3): Float64Array;
+  /** |X(D)| of the held pulse over a span of detunings. */
+  heldSpectrum(pulse: Pulse, request: SpectrumRequest): Spectrum;
   /** Summary figures of a pulse over a region (against its own ideal when it names one). */
   summarise(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, options?: SummaryOptions): { summary: RobustnessSummary; map: RobustnessMap };
   /** Infidelity along one error axis, the other held at zero. */
@@ -94,6 +98,14 @@ class ProgressBatcher {
 export function planarGate(target: Target): { angleDeg: number; axisDeg: number } | null {
   if (target.kind !== 'gate' || Math.abs(target.axis[2]) > 1e-9) return null;
   return { angleDeg: (target.angleRad * 180) / Math.PI, axisDeg: (Math.atan2(target.axis[1], target.axis[0]) * 180) / Math.PI };
+}
+
+/** Sample indices kept when a path of n samples is drawn with at most `maxPoints` points: 0, even steps, n. */
+export function thinnedIndices(samples: number, maxPoints: number): Int32Array {
+  const count = Math.max(2, Math.min(samples + 1, Math.floor(maxPoints)));
+  const out = new Int32Array(count);
+  for (let k = 0; k < count; k++) out[k] = Math.round((k * samples) / (count - 1));
+  return out;
 }
 
 /** How a service reaches its core. */
@@ -240,6 +252,23 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
 
     trajectory(pulse, member, from) {
       return withCore(() => moved(library.blochTrajectory(pulse, member, from)));
+    },
+
+    ensembleTrajectories(pulse, members, from, maxPoints) {
+      return withCore((): EnsemblePaths => {
+        const keep = thinnedIndices(pulse.i.length, maxPoints);
+        const paths = new Float64Array(3 * keep.length * members.length);
+        members.forEach((member, m) => {
+          const path = library.blochTrajectory(pulse, member, from);
+          keep.forEach((k, p) => paths.set(path.subarray(3 * k, 3 * k + 3), 3 * (m * keep.length + p)));
+        });
+        return moved({ paths, pointsPerPath: keep.length, sampleIndex: keep });
+      });
+    },
+
+    spectrum(pulse, request) {
+      // Pure TypeScript (no core), but long for big pulses: it runs here, off the page's thread.
+      return Promise.resolve().then(() => moved(library.heldSpectrum(pulse, request)));
     },
 
     readPulse(text) {
