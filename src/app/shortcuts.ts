@@ -14,7 +14,7 @@ export interface Shortcut {
 export const SHORTCUTS: Shortcut[] = [
   { keys: 'Ctrl+Enter', what: 'run' },
   { keys: 'Esc', what: 'stop' },
-  { keys: 'Alt+1 … Alt+6', what: VIEWS.map((v) => v.title.toLowerCase()).join(', ') },
+  { keys: `Alt+1 … Alt+${VIEWS.length}`, what: VIEWS.map((v) => v.title.toLowerCase()).join(', ') },
   { keys: 'Ctrl+S', what: 'save project' },
   { keys: 'Ctrl+O', what: 'open project' },
 ];

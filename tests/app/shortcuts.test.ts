@@ -31,7 +31,7 @@ describe('shortcuts', () => {
   });
   it('are all listed on the page', () => {
     const listed = SHORTCUTS.map((s) => s.keys).join(' ');
-    for (const keys of ['Ctrl+Enter', 'Esc', 'Alt+1', 'Alt+6', 'Ctrl+S', 'Ctrl+O']) expect(listed).toContain(keys);
+    for (const keys of ['Ctrl+Enter', 'Esc', 'Alt+1', `Alt+${VIEWS.length}`, 'Ctrl+S', 'Ctrl+O']) expect(listed).toContain(keys);
     expect(SHORTCUTS.find((s) => s.keys.startsWith('Alt'))?.what).toContain('robustness');
   });
 });

@@ -30,6 +30,7 @@ export const VIEWS = [
   { id: 'compare', title: 'Compare' },
   { id: 'bloch', title: 'Bloch sphere' },
   { id: 'export', title: 'Export' },
+  { id: 'spectrum', title: 'Spectrum' },
 ] as const;
 
 /** A view's id. */
