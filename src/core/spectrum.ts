@@ -20,6 +20,8 @@ export interface SpectrumRequest {
   max: number;
   /** Most points returned; finer grids keep the largest value of each bin (the envelope). */
   points: number;
+  /** Levels (dB re the reference) whose extent is reported, e.g. [-3, -20]. */
+  levels?: number[];
 }
 
 /** |X| of a held pulse over a span of detunings. */
@@ -32,6 +34,8 @@ export interface Spectrum {
   reference: number;
   /** Spacing of the underlying grid (Hz). */
   resolution: number;
+  /** For each level asked for: the lowest and highest detuning of the span where |X| reaches it, on the full grid (null if nowhere). */
+  levels: { db: number; from: number; to: number }[];
 }
 
 /** Longest FFT used (2^22 points, 64 MiB of doubles). */
@@ -172,7 +176,20 @@ export function heldSpectrum(pulse: Pulse, request: SpectrumRequest): Spectrum {
     magnitude[b] = best;
     reference = Math.max(reference, best);
   }
-  return { detuning, magnitude, reference, resolution };
+  // Extents of the levels on the full grid, not on the bins (a bin may be far wider than the grid).
+  const levels = (request.levels ?? []).map((db) => {
+    const floor = reference * 10 ** (db / 20);
+    let lo = Infinity;
+    let hi = -Infinity;
+    for (let j = first; j <= last; j++) {
+      if (magnitudeAt(j) >= floor) {
+        lo = Math.min(lo, j);
+        hi = Math.max(hi, j);
+      }
+    }
+    return Number.isFinite(lo) ? { db, from: lo * resolution, to: hi * resolution } : null;
+  });
+  return { detuning, magnitude, reference, resolution, levels: levels.filter((l) => l !== null) };
 }
 
 /** Decibels of a magnitude against a reference, floored at `floorDb`. */

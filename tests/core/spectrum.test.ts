@@ -18,7 +18,7 @@ describe('spectrum of a held pulse', () => {
     const amplitude = 5e6;
     const T = n * dt;
     const pulse = pulseOf(dt, new Array(n).fill(amplitude));
-    const span = { min: -40e6, max: 40e6, points: 4001 };
+    const span = { min: -40e6, max: 40e6, points: 4001, levels: [-3] };
     const s = heldSpectrum(pulse, span);
     expect(s.detuning.length).toBeGreaterThan(1000);
     // The held rectangle is exactly rect(t/T): its transform is A T sinc(D T) at every D (handbook identity).
@@ -26,6 +26,13 @@ describe('spectrum of a held pulse', () => {
       expectClose(s.magnitude[k], amplitude * T * Math.abs(sinc(s.detuning[k] * T)), { abs: 1e-12 * amplitude * T }, `|X| at ${s.detuning[k]} Hz`);
     }
     expectClose(s.reference, amplitude * T, { rel: 1e-12 }, 'the 0 dB reference, |X(0)| = pulse area');
+    // The -3 dB points: sinc(x) = 10^(-3/20) on the main lobe, solved here by bisection (x is
+    // about 0.4422; the half-power 0.44295 of the handbooks is -3.0103 dB), to the grid's spacing.
+    let [lo, hi] = [0, 1];
+    for (let k = 0; k < 60; k++) [lo, hi] = sinc((lo + hi) / 2) > 10 ** (-3 / 20) ? [(lo + hi) / 2, hi] : [lo, (lo + hi) / 2];
+    expect(lo).toBeCloseTo(0.4422, 3);
+    expect(Math.abs(s.levels[0].to - lo / T)).toBeLessThanOrEqual(s.resolution);
+    expect(Math.abs(s.levels[0].from + lo / T)).toBeLessThanOrEqual(s.resolution);
     // Nulls at D = m / T (m != 0), by the direct sum.
     for (const m of [1, 2, 3, -1, -5, 7]) {
       const x = heldSpectrumAt(pulse, m / T);

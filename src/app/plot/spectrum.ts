@@ -1,5 +1,4 @@
-// What the spectrum view draws: curves in dB over detuning, vertical markers, and the span
-// of detunings a level is reached over (how engineers quote a bandwidth).
+// What the spectrum view draws: curves in dB over detuning and vertical markers.
 import { decibels } from '../../core/spectrum.ts';
 
 /** A curve in dB over detuning (Hz): the pulse's spectrum, or an overlay such as a line's response. */
@@ -23,17 +22,4 @@ export function toDecibels(magnitude: ArrayLike<number>, reference: number, floo
   const out = new Float64Array(magnitude.length);
   for (let k = 0; k < magnitude.length; k++) out[k] = decibels(magnitude[k], reference, floorDb);
   return out;
-}
-
-/** The lowest and highest detuning at which the curve reaches `levelDb`, or null if it never does. */
-export function levelSpan(detuning: ArrayLike<number>, db: ArrayLike<number>, levelDb: number): { from: number; to: number } | null {
-  let from = Infinity;
-  let to = -Infinity;
-  for (let k = 0; k < db.length; k++) {
-    if (db[k] >= levelDb) {
-      from = Math.min(from, detuning[k]);
-      to = Math.max(to, detuning[k]);
-    }
-  }
-  return Number.isFinite(from) ? { from, to } : null;
 }

