@@ -4,6 +4,7 @@
 import type { Evaluation } from '../core/types.ts';
 import { RESAMPLE_METHODS, WAVEFORM_FORMATS } from '../io/export/index.ts';
 import type { ExportForm } from './export-form.ts';
+import type { RunHistory } from './run-history.ts';
 
 /** The `format` name of a project file. */
 export const PROJECT_FORMAT = 'gatesmith.project';
@@ -24,6 +25,8 @@ export interface StoredPulse {
   q: number[];
   metadata: Record<string, unknown>;
   evaluation?: Pick<Evaluation, 'meanInfidelity' | 'worstInfidelity'>;
+  /** The design run that made it (starts table and convergence curves). */
+  history?: RunHistory;
 }
 
 /** Settings of the analysis views, kept with the project. */
@@ -107,7 +110,44 @@ function readPulseEntry(value: unknown, k: number): StoredPulse {
     const e = record(obj.evaluation, `${where}.evaluation`);
     evaluation = { meanInfidelity: finite(e.meanInfidelity, `${where}.evaluation.meanInfidelity`), worstInfidelity: finite(e.worstInfidelity, `${where}.evaluation.worstInfidelity`) };
   }
-  return { id: obj.id, label: obj.label, dt, i, q, metadata, ...(evaluation ? { evaluation } : {}) };
+  const history = obj.history === undefined ? undefined : readHistory(obj.history, `${where}.history`);
+  return { id: obj.id, label: obj.label, dt, i, q, metadata, ...(evaluation ? { evaluation } : {}), ...(history ? { history } : {}) };
+}
+
+const STOP_REASONS = ['target-reached', 'gradient-tolerance', 'max-iterations', 'time-limit', 'stopped', 'line-search-failed'] as const;
+
+function numbers(value: unknown, where: string): number[] {
+  if (!Array.isArray(value)) fail(where, value, 'expected a list of numbers');
+  value.forEach((x, k) => finite(x, `${where}[${k}]`));
+  return value as number[];
+}
+
+function readHistory(value: unknown, where: string): RunHistory {
+  const obj = record(value, where);
+  if (!Array.isArray(obj.starts)) fail(`${where}.starts`, obj.starts, 'expected a list of starts');
+  if (!Array.isArray(obj.curves)) fail(`${where}.curves`, obj.curves, 'expected a list of curves');
+  const whole = (x: unknown, at: string) => finite(x, at, (v) => Number.isInteger(v) && v >= 0, 'a whole number');
+  const starts = obj.starts.map((row, k) => {
+    const r = record(row, `${where}.starts[${k}]`);
+    const at = `${where}.starts[${k}]`;
+    return {
+      start: whole(r.start, `${at}.start`),
+      meanInfidelity: finite(r.meanInfidelity, `${at}.meanInfidelity`),
+      iterations: whole(r.iterations, `${at}.iterations`),
+      stopReason: oneOf(r.stopReason, `${at}.stopReason`, STOP_REASONS),
+      elapsedS: finite(r.elapsedS, `${at}.elapsedS`),
+    };
+  });
+  const curves = obj.curves.map((curve, k) => {
+    const c = record(curve, `${where}.curves[${k}]`);
+    const at = `${where}.curves[${k}]`;
+    const iteration = numbers(c.iteration, `${at}.iteration`);
+    const meanInfidelity = numbers(c.meanInfidelity, `${at}.meanInfidelity`);
+    if (iteration.length !== meanInfidelity.length) fail(`${at}.meanInfidelity`, `${meanInfidelity.length} values`, `expected one per iteration (${iteration.length})`);
+    return { start: whole(c.start, `${at}.start`), iteration, meanInfidelity };
+  });
+  if (typeof obj.stopped !== 'boolean') fail(`${where}.stopped`, obj.stopped, 'expected true or false');
+  return { starts, best: whole(obj.best, `${where}.best`), stopped: obj.stopped, elapsedS: finite(obj.elapsedS, `${where}.elapsedS`), curves };
 }
 
 function oneOf<T>(value: unknown, where: string, allowed: readonly T[]): T {

@@ -111,4 +111,35 @@ describe.skipIf(reason !== null)('views in Chromium', () => {
     const lines = await page.evaluate(async () => (await navigator.clipboard.readText()).trimEnd().split('\n').length);
     expect(lines).toBe(n + 1);
   }, 120_000);
+
+  it('brings the convergence history and the starts table back with the pulse after a reload, and from a project file', async () => {
+    const page = await open();
+    await page.getByTestId('run').click();
+    await runToEnd(page);
+    const table = () => page.getByTestId('starts-table').locator('tbody tr').allTextContents();
+    const before = await table();
+    expect(before).toHaveLength(5);
+    const curves = () => page.evaluate(() => Number(document.querySelector('[data-points]')?.getAttribute('data-points')));
+    await page.waitForFunction(() => Number(document.querySelector('[data-points]')?.getAttribute('data-points')) > 0);
+    const best = await page.locator('[data-points]').getAttribute('data-last-mean');
+    await page.waitForTimeout(800); // the autosave follows edits after 400 ms
+    await page.reload();
+    await page.getByTestId('starts-table').waitFor({ timeout: 20_000 });
+    // The same starts, figure for figure, and curves drawn again down to the same best figure.
+    expect(await table()).toEqual(before);
+    await page.waitForFunction(() => Number(document.querySelector('[data-points]')?.getAttribute('data-points')) > 0);
+    expect(await curves()).toBeGreaterThan(5);
+    expect(await page.locator('[data-points]').getAttribute('data-last-mean')).toBe(best);
+    expect(await page.getByTestId('restored-from').textContent()).toContain('transmon-x90 #1');
+    await page.waitForTimeout(400);
+    await everyLook(page, 'restored');
+    // Saved as a project and opened in a fresh browser profile: the same table again.
+    const download = page.waitForEvent('download');
+    await page.keyboard.press('Control+s');
+    const saved = await (await download).path();
+    const other = await open();
+    await other.getByTestId('open-project').setInputFiles(saved!);
+    await other.getByTestId('starts-table').waitFor({ timeout: 20_000 });
+    expect(await other.getByTestId('starts-table').locator('tbody tr').allTextContents()).toEqual(before);
+  }, 120_000);
 });

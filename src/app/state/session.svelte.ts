@@ -19,6 +19,7 @@ import {
   type StoredPulse,
   type ViewSettings,
 } from '../project.ts';
+import type { RunHistory } from '../run-history.ts';
 import { setAt, type SpecJson } from '../spec-edit.ts';
 import { isoTimestamp } from '../units.ts';
 
@@ -42,6 +43,8 @@ export interface PulseEntry {
   label: string;
   pulse: Pulse;
   evaluation?: Pick<Evaluation, 'meanInfidelity' | 'worstInfidelity'>;
+  /** The design run that made it: starts table and convergence curves. */
+  history?: RunHistory;
 }
 
 /** Where the session is kept between visits. */
@@ -74,6 +77,7 @@ function storedPulse(entry: PulseEntry): StoredPulse {
     q: Array.from(entry.pulse.q),
     metadata: entry.pulse.metadata,
     ...(entry.evaluation ? { evaluation: { ...entry.evaluation } } : {}),
+    ...(entry.history ? { history: $state.snapshot(entry.history) as RunHistory } : {}),
   };
 }
 
@@ -94,6 +98,8 @@ export class Session {
   specRevision = $state(0);
   /** Set when the last autosave failed (the page says so; work stays in memory). */
   saveError = $state<string | null>(null);
+  /** Bumped whenever a saved session or project replaced the pulses (the run's history is then restored). */
+  projectRevision = $state(0);
 
   private checkSeq = 0;
   private saveTimer: ReturnType<typeof setTimeout> | null = null;
@@ -301,11 +307,13 @@ export class Session {
       label: p.label,
       pulse: { dt: p.dt, i: Float64Array.from(p.i), q: Float64Array.from(p.q), metadata: p.metadata },
       ...(p.evaluation ? { evaluation: p.evaluation } : {}),
+      ...(p.history ? { history: p.history } : {}),
     }));
     this.selectedId = project.settings.selectedPulse ?? this.pulses.at(-1)?.id ?? null;
     const view = VIEWS.find((v) => v.id === project.settings.view);
     this.view = view ? view.id : 'design';
     this.settings = project.settings;
+    this.projectRevision++;
     this.changed();
   }
 
