@@ -35,7 +35,8 @@ export interface ViewSettings {
   selectedPulse: string | null;
   map: { detuning: { min: number; max: number; points: number }; amplitudeError: { min: number; max: number; points: number }; threshold: number };
   compare: { composites: string[] };
-  bloch: { from: string; member: number };
+  /** Which members the Bloch view draws: one (`member`, -1 for no error), all, or a chosen few (`chosen`). */
+  bloch: { from: string; member: number; show?: 'one' | 'all' | 'chosen'; chosen?: number[] };
   /** The export panel's form, once edited (until then it follows the spec and the pulse). */
   export?: ExportForm;
 }
@@ -208,7 +209,14 @@ function readSettings(value: unknown): ViewSettings {
       threshold: finite(map.threshold, 'settings.map.threshold', (x) => x > 0 && x < 1, 'a threshold between 0 and 1'),
     },
     compare: { composites: composites as string[] },
-    bloch: { from: bloch.from as string, member: finite(bloch.member, 'settings.bloch.member', Number.isInteger, 'a member index (-1: no error)') },
+    bloch: {
+      from: bloch.from as string,
+      member: finite(bloch.member, 'settings.bloch.member', Number.isInteger, 'a member index (-1: no error)'),
+      ...(bloch.show !== undefined ? { show: oneOf(bloch.show, 'settings.bloch.show', ['one', 'all', 'chosen'] as const) } : {}),
+      ...(bloch.chosen !== undefined
+        ? { chosen: numbers(bloch.chosen, 'settings.bloch.chosen').map((x, k) => finite(x, `settings.bloch.chosen[${k}]`, (v) => Number.isInteger(v) && v >= 0, 'a member index')) }
+        : {}),
+    },
     ...(obj.export !== undefined ? { export: readExportForm(obj.export) } : {}),
   };
 }

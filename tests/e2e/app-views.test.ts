@@ -4,6 +4,9 @@
 // light and dark at 1440 and 800 px land in test-results/.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { BrowserContext, Page } from 'playwright-core';
+import { demoSpec } from '../../src/app/demo.ts';
+import { parseSpec } from '../../src/core/spec.ts';
+import { pulsePropagator, spinorToBloch } from '../reference/oracle.ts';
 import { runToEnd, screenshot, skipReason, startHarness, type Harness } from './harness.ts';
 
 const reason = skipReason();
@@ -141,5 +144,46 @@ describe.skipIf(reason !== null)('views in Chromium', () => {
     await other.getByTestId('open-project').setInputFiles(saved!);
     await other.getByTestId('starts-table').waitFor({ timeout: 20_000 });
     expect(await other.getByTestId('starts-table').locator('tbody tr').allTextContents()).toEqual(before);
+  }, 120_000);
+
+  it('draws every member of the ensemble on the Bloch sphere at once, or a chosen few, with their figures', async () => {
+    const page = await open();
+    // A rectangular X(90): 100 samples of 2 ns at 1.25 MHz is a quarter turn about +x.
+    const i = new Array(100).fill(1.25e6);
+    await openPulse(page, 'x90.json', pulseFile(2e-9, i));
+    await page.keyboard.press('Alt+5');
+    await page.getByLabel('all 25 members').check();
+    await page.waitForFunction(() => document.querySelector('[data-testid=bloch-facts]')?.getAttribute('data-members') === '25');
+    // The same figures from the plain-TypeScript oracle: each member takes |0> to U|0>, judged by
+    // (1 - r . r_target)/2 against the target point -y (docs/physics.md sections 1 and 2).
+    const pulse = { dt: 2e-9, i: Float64Array.from(i), q: new Float64Array(100), metadata: {} };
+    const figures = parseSpec(demoSpec()).members.map((m) => {
+      const u = pulsePropagator(pulse, m);
+      const r = spinorToBloch({ re: [u.ur, u.vr], im: [u.ui, u.vi] });
+      return (1 + r[1]) / 2;
+    });
+    const worst = Math.max(...figures);
+    const mean = figures.reduce((a, b) => a + b, 0) / figures.length;
+    // Shown to three significant digits.
+    expect(Number(await page.getByTestId('bloch-worst').textContent()) / worst).toBeCloseTo(1, 2);
+    expect(Number(await page.getByTestId('bloch-mean').textContent()) / mean).toBeCloseTo(1, 2);
+    const colours = () =>
+      page.evaluate(() => {
+        const c = document.querySelector('[data-testid=bloch]') as HTMLCanvasElement;
+        const data = c.getContext('2d')!.getImageData(0, 0, c.width, c.height).data;
+        const set = new Set<number>();
+        for (let k = 0; k < data.length; k += 4) if (data[k + 3]) set.add((data[k] << 16) | (data[k + 1] << 8) | data[k + 2]);
+        return set.size;
+      });
+    await page.waitForTimeout(200);
+    const all = await colours();
+    await everyLook(page, 'bloch-all');
+    await page.getByLabel('chosen members').check();
+    await page.getByLabel('1: Δ = -1 MHz, ε = -10 %').check();
+    await page.getByLabel('25: Δ = 1 MHz, ε = 10 %').check();
+    await page.waitForFunction(() => document.querySelector('[data-testid=bloch-facts]')?.getAttribute('data-members') === '2');
+    await page.waitForTimeout(200);
+    expect(all).toBeGreaterThan(await colours());
+    await screenshot(page, 'views-bloch-chosen');
   }, 120_000);
 });
