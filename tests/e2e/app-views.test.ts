@@ -186,4 +186,57 @@ describe.skipIf(reason !== null)('views in Chromium', () => {
     expect(all).toBeGreaterThan(await colours());
     await screenshot(page, 'views-bloch-chosen');
   }, 120_000);
+
+  it('shows where one pulse beats another: its contour over the map, both maps side by side, and the ratio', async () => {
+    const page = await open();
+    await page.getByTestId('run').click();
+    await runToEnd(page);
+    await page.keyboard.press('Alt+4');
+    await page.waitForFunction(() => document.querySelectorAll('[data-testid=compare-table] tbody tr').length >= 5, undefined, { timeout: 30_000 });
+    await page.locator('[data-testid=compare-table] tbody tr', { hasText: 'BB1' }).locator('select').selectOption('robustness');
+    await page.getByRole('heading', { name: 'Robustness' }).waitFor();
+    const design = await page.locator('#m-against option', { hasText: 'transmon-x90' }).getAttribute('value');
+    await page.locator('#m-against').selectOption(design!);
+    const mapDone = () => page.waitForFunction(() => /points in/.test(document.querySelector('[data-testid=map-status]')?.textContent ?? ''), undefined, { timeout: 30_000 });
+    await mapDone();
+    await page.waitForTimeout(1500);
+    /** Pixels of the map canvas by kind: the other pulse's orange contour, and saturated blue or red. */
+    const pixels = (testid: string) =>
+      page.evaluate((id) => {
+        const c = document.querySelector(`[data-testid=${id}]`) as HTMLCanvasElement;
+        const data = c.getContext('2d')!.getImageData(0, 0, c.width, c.height).data;
+        let orange = 0;
+        let blue = 0;
+        let red = 0;
+        for (let k = 0; k < data.length; k += 4) {
+          const [r, g, b] = [data[k], data[k + 1], data[k + 2]];
+          if (r > 230 && g > 150 && g < 200 && b < 40) orange++;
+          if (b > r + 60) blue++;
+          if (r > b + 60 && g < 120) red++;
+        }
+        return { orange, blue, red };
+      }, testid);
+    expect((await pixels('heatmap')).orange).toBeGreaterThan(50);
+    await everyLook(page, 'versus-contour');
+    await page.getByLabel('side by side').check();
+    await page.getByTestId('heatmap-other').waitFor();
+    await page.waitForTimeout(500);
+    await everyLook(page, 'versus-side');
+    await page.getByLabel('ratio of infidelities').check();
+    await page.waitForTimeout(500);
+    const ratio = await pixels('heatmap');
+    // Each pulse wins somewhere: BB1 near zero detuning along the amplitude axis, the design over its ensemble's square.
+    expect(ratio.blue).toBeGreaterThan(500);
+    expect(ratio.red).toBeGreaterThan(500);
+    await page.getByTestId('heatmap').focus();
+    await page.keyboard.press('ArrowRight');
+    const text = (await page.getByTestId('heatmap-readout').textContent())!;
+    const m = /1 − F = ([\d.e+-]+) \(BB1\), ([\d.e+-]+) \(transmon[^)]*\)\); (.*) better, ×([\d.e+]+)/.exec(text);
+    expect(m, text).not.toBeNull();
+    const [a, b] = [Number(m![1]), Number(m![2])];
+    // The factor is the ratio of the two infidelities shown (to their three digits).
+    expect(Number(m![4]) / Math.max(a / b, b / a)).toBeCloseTo(1, 1);
+    expect(m![3]).toBe(a < b ? 'BB1' : expect.stringContaining('transmon'));
+    await everyLook(page, 'versus-ratio');
+  }, 150_000);
 });
