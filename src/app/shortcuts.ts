@@ -2,7 +2,7 @@
 import { VIEWS, type ViewId } from './state/session.svelte.ts';
 
 /** What a shortcut does. */
-export type Action = { kind: 'run' } | { kind: 'stop' } | { kind: 'view'; view: ViewId } | { kind: 'save' } | { kind: 'open' };
+export type Action = { kind: 'run' } | { kind: 'stop' } | { kind: 'view'; view: ViewId } | { kind: 'save' } | { kind: 'open' } | { kind: 'docs' };
 
 /** A shortcut as listed on the page. */
 export interface Shortcut {
@@ -17,6 +17,7 @@ export const SHORTCUTS: Shortcut[] = [
   { keys: `Alt+1 … Alt+${VIEWS.length}`, what: VIEWS.map((v) => v.title.toLowerCase()).join(', ') },
   { keys: 'Ctrl+S', what: 'save project' },
   { keys: 'Ctrl+O', what: 'open project' },
+  { keys: 'F1', what: 'documentation (at the field in focus)' },
 ];
 
 /** The action of a key press, or null (Cmd counts as Ctrl on a Mac). */
@@ -24,6 +25,7 @@ export function actionFor(event: Pick<KeyboardEvent, 'key' | 'code' | 'ctrlKey' 
   const ctrl = event.ctrlKey || event.metaKey;
   if (ctrl && event.key === 'Enter') return { kind: 'run' };
   if (event.key === 'Escape') return { kind: 'stop' };
+  if (event.key === 'F1') return { kind: 'docs' };
   if (ctrl && !event.altKey && event.key.toLowerCase() === 's') return { kind: 'save' };
   if (ctrl && !event.altKey && event.key.toLowerCase() === 'o') return { kind: 'open' };
   if (event.altKey && !ctrl) {

@@ -239,4 +239,62 @@ describe.skipIf(reason !== null)('views in Chromium', () => {
     expect(m![3]).toBe(a < b ? 'BB1' : expect.stringContaining('transmon'));
     await everyLook(page, 'versus-ratio');
   }, 150_000);
+
+  it('gives help for every field (meaning, unit, typical value) and opens the documentation at it', async () => {
+    const page = await open();
+    await page.getByTestId('run').click();
+    await runToEnd(page);
+    await page.locator('details summary', { hasText: 'Spec JSON' }).click();
+    const missing: string[] = [];
+    let checked = 0;
+    for (let view = 1; view <= 7; view++) {
+      await page.keyboard.press(`Alt+${view}`);
+      await page.waitForTimeout(400);
+      if (view === 2) await page.getByTestId('samples').locator('summary').click();
+      // Every visible form control of the page, focused in turn: the help names it and gives a unit and a typical value.
+      const result = await page.evaluate(async () => {
+        const bad: string[] = [];
+        const controls = [...document.querySelectorAll('input, select, textarea')].filter((el) => {
+          const r = el.getBoundingClientRect();
+          return (el as HTMLInputElement).type !== 'file' && r.width > 0 && r.height > 0 && !el.closest('dialog');
+        }) as HTMLElement[];
+        for (const el of controls) {
+          el.focus();
+          await new Promise((resolve) => setTimeout(resolve, 0));
+          const bubble = document.querySelector('[data-testid=field-help]') as HTMLElement;
+          const text = bubble.textContent ?? '';
+          const shown = getComputedStyle(bubble).display !== 'none';
+          if (!shown || !/Unit .+/.test(text) || !/Typical .+/.test(text) || !/More: /.test(text)) bad.push(`${el.tagName}#${el.id}[${el.getAttribute('name') ?? ''}]`);
+        }
+        return { bad, count: controls.length };
+      });
+      missing.push(...result.bad);
+      checked += result.count;
+    }
+    expect(missing).toEqual([]);
+    expect(checked).toBeGreaterThan(60);
+    await page.keyboard.press('Alt+1');
+    await page.locator('#f-rabi').focus();
+    await page.waitForTimeout(100);
+    expect(await page.getByTestId('field-help').textContent()).toContain('Peak Rabi: Largest drive amplitude');
+    await everyLook(page, 'help');
+    // F1 on a field opens the documentation at the section that says more.
+    await page.locator('#f-rabi').focus();
+    await page.keyboard.press('F1');
+    const dialog = page.getByTestId('docs');
+    await dialog.locator('#conventions').waitFor();
+    const box = (await dialog.locator('#conventions').boundingBox())!;
+    const frame = (await dialog.boundingBox())!;
+    expect(box.y).toBeGreaterThanOrEqual(frame.y);
+    expect(box.y).toBeLessThan(frame.y + 200);
+    await screenshot(page, 'views-docs-conventions');
+    // Links between the pages stay in the panel.
+    await dialog.locator('a[href="docs/spec.md"]').first().click();
+    await dialog.locator('#the-design-spec').waitFor();
+    await dialog.getByRole('tab', { name: 'Every field' }).click();
+    expect(await dialog.locator('tbody tr').count()).toBeGreaterThan(60);
+    await everyLook(page, 'docs');
+    await dialog.getByRole('button', { name: 'Close' }).click();
+    expect(await dialog.isVisible()).toBe(false);
+  }, 150_000);
 });
