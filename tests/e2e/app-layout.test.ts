@@ -9,11 +9,15 @@ import type { Page } from 'playwright-core';
 import { runToEnd, screenshot, skipReason, startHarness, type Harness } from './harness.ts';
 
 const reason = skipReason();
+/** Errors any page reported (console errors and uncaught exceptions). */
+const errors: string[] = [];
 
 /** Opens the app at a window size and colour scheme, ready to run. */
 async function openAt(harness: Harness, width: number, scheme: 'light' | 'dark' = 'light'): Promise<Page> {
   const context = await harness.browser.newContext({ viewport: { width, height: 900 }, colorScheme: scheme });
   const page = await context.newPage();
+  page.on('console', (m) => m.type() === 'error' && errors.push(m.text()));
+  page.on('pageerror', (e) => errors.push(String(e)));
   await page.goto(harness.url);
   await page.getByTestId('run').waitFor();
   await page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement).disabled);
@@ -230,4 +234,8 @@ describe.skipIf(reason !== null)('layout and keyboard', () => {
       await page.context().close();
     }
   }, 180_000);
+
+  it('left no error in the console of any page', () => {
+    expect(errors).toEqual([]);
+  });
 });

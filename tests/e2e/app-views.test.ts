@@ -17,6 +17,8 @@ const pulseFile = (dt: number, i: number[], q: number[] = i.map(() => 0), name =
 describe.skipIf(reason !== null)('views in Chromium', () => {
   let harness: Harness;
   const contexts: BrowserContext[] = [];
+  /** Errors any page reported (console errors and uncaught exceptions). */
+  const errors: string[] = [];
 
   beforeAll(async () => {
     harness = await startHarness();
@@ -31,6 +33,8 @@ describe.skipIf(reason !== null)('views in Chromium', () => {
     const ctx = context ?? (await harness.browser.newContext({ viewport: { width, height: 1000 }, colorScheme: scheme, acceptDownloads: true }));
     if (!context) contexts.push(ctx);
     const page = await ctx.newPage();
+    page.on('console', (m) => m.type() === 'error' && errors.push(m.text()));
+    page.on('pageerror', (e) => errors.push(String(e)));
     await page.goto(harness.url);
     await page.getByTestId('run').waitFor();
     await page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement).disabled);
@@ -297,4 +301,8 @@ describe.skipIf(reason !== null)('views in Chromium', () => {
     await dialog.getByRole('button', { name: 'Close' }).click();
     expect(await dialog.isVisible()).toBe(false);
   }, 150_000);
+
+  it('left no error in the console of any page', () => {
+    expect(errors).toEqual([]);
+  });
 });
