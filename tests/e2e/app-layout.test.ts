@@ -194,14 +194,31 @@ describe.skipIf(reason !== null)('layout and keyboard', () => {
     }
     expect(reached).toBe(true);
     const readout = () => page.getByTestId('heatmap-readout').textContent();
-    // Focus starts at the centre of the map: zero detuning and zero amplitude error.
-    expect(await readout()).toMatch(/^Δ = 0 (Hz|kHz|MHz), ε = 0 %: 1 − F = \d/);
+    /** A value as the page prints it ("40 kHz", "-0.4 %"), in Hz or as a fraction. */
+    const read = (text: string) => {
+      const m = /(-?[\d.]+(?:e-?\d+)?) ?(Hz|kHz|MHz|%)/.exec(text)!;
+      return Number(m[1]) * { Hz: 1, kHz: 1e3, MHz: 1e6, '%': 1e-2 }[m[2] as 'Hz'];
+    };
+    const at = async () => {
+      const m = /^Δ = (.+?), ε = (.+?): 1 − F = \d/.exec((await readout()) ?? '');
+      expect(m, await readout()).not.toBeNull();
+      return [read(m![1]), read(m![2])];
+    };
+    const field = async (id: string) => read(await page.locator(id).inputValue());
+    const [dMin, dMax, dN, aMin, aMax, aN] = [await field('#m-d-min'), await field('#m-d-max'), Number(await page.locator('#m-d-n').inputValue()), await field('#m-a-min'), await field('#m-a-max'), Number(await page.locator('#m-a-n').inputValue())];
+    // Focus starts at the centre point of the grid (index floor(n/2) along each axis).
+    const centre = [dMin + ((dMax - dMin) * Math.floor(dN / 2)) / (dN - 1), aMin + ((aMax - aMin) * Math.floor(aN / 2)) / (aN - 1)];
+    const [d0, a0] = await at();
+    expect(d0).toBeCloseTo(centre[0], 0);
+    expect(a0).toBeCloseTo(centre[1], 6);
     await page.keyboard.press('ArrowRight');
     await page.keyboard.press('ArrowUp');
-    // One point of 101 over ±2 MHz and ±20 %: 40 kHz and 0.4 %.
-    expect(await readout()).toMatch(/^Δ = 40 kHz, ε = 0.4 %: 1 − F = \d/);
+    // One grid step along each axis.
+    const [d1, a1] = await at();
+    expect((d1 - d0) / ((dMax - dMin) / (dN - 1))).toBeCloseTo(1, 2);
+    expect((a1 - a0) / ((aMax - aMin) / (aN - 1))).toBeCloseTo(1, 2);
     await page.keyboard.press('End');
-    expect(await readout()).toMatch(/^Δ = 2 MHz, /);
+    expect((await at())[0]).toBeCloseTo(dMax, 0);
     await screenshot(page, 'layout-heatmap-keyboard');
     await page.context().close();
   }, 120_000);
