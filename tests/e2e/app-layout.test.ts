@@ -201,7 +201,7 @@ describe.skipIf(reason !== null)('layout and keyboard', () => {
     };
     const at = async () => {
       const m = /^Δ = (.+?), ε = (.+?): 1 − F = \d/.exec((await readout()) ?? '');
-      expect(m, await readout()).not.toBeNull();
+      expect(m, (await readout()) ?? '').not.toBeNull();
       return [read(m![1]), read(m![2])];
     };
     const field = async (id: string) => read(await page.locator(id).inputValue());
