@@ -64,6 +64,7 @@ export function defaultExportForm(pulse: Pick<Pulse, 'dt' | 'i' | 'q'> | null, r
     intermediateFrequency: 1e8,
     sideband: EXPORT_DEFAULTS.sideband,
     mixerSign: EXPORT_DEFAULTS.mixerSign,
+    upconversion: EXPORT_DEFAULTS.upconversion,
     marker: EXPORT_DEFAULTS.marker,
     format: 'csv',
     units: 'codes',
@@ -88,6 +89,7 @@ export function exportSettingsInput(form: ExportForm): ExportSettingsInput {
   // The SSB settings are recorded in every file's description: for I/Q they stay at the
   // library's defaults, as the command line (which takes them only with --if) leaves them.
   if (form.channels === 'ssb') Object.assign(input, { intermediateFrequency: form.intermediateFrequency, sideband: form.sideband, mixerSign: form.mixerSign });
+  else input.upconversion = form.upconversion;
   return input;
 }
 
@@ -166,6 +168,8 @@ export function commandArgs(form: ExportForm, pulseFile: string, outFile: string
     args.push('--if', String(form.intermediateFrequency));
     if (form.sideband !== EXPORT_DEFAULTS.sideband) args.push('--sideband', form.sideband);
     if (form.mixerSign !== EXPORT_DEFAULTS.mixerSign) args.push('--mixer-sign', String(form.mixerSign));
+  } else if (form.upconversion !== EXPORT_DEFAULTS.upconversion) {
+    args.push('--upconversion', form.upconversion);
   }
   if (form.marker) args.push('--marker');
   const units = unitsFor(form);

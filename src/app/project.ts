@@ -2,7 +2,7 @@
 // and the view settings. Read strictly, whole or not at all, so that a malformed file
 // changes nothing; pulses are checked again by the library's pulse reader on opening.
 import type { Evaluation } from '../core/types.ts';
-import { RESAMPLE_METHODS, WAVEFORM_FORMATS } from '../io/export/index.ts';
+import { RESAMPLE_METHODS, UPCONVERSIONS, WAVEFORM_FORMATS } from '../io/export/index.ts';
 import type { ExportForm } from './export-form.ts';
 import type { RunHistory } from './run-history.ts';
 
@@ -178,6 +178,8 @@ function readExportForm(value: unknown): ExportForm {
     intermediateFrequency: finite(obj.intermediateFrequency, `${where}.intermediateFrequency`),
     sideband: oneOf(obj.sideband, `${where}.sideband`, ['upper', 'lower'] as const),
     mixerSign: oneOf(obj.mixerSign, `${where}.mixerSign`, [1, -1] as const),
+    // Projects saved before the setting existed exported Q as designed.
+    upconversion: obj.upconversion === undefined ? 'plus' : oneOf(obj.upconversion, `${where}.upconversion`, UPCONVERSIONS),
     marker: obj.marker as boolean,
     format: oneOf(obj.format, `${where}.format`, WAVEFORM_FORMATS),
     units: oneOf(obj.units, `${where}.units`, ['codes', 'hz'] as const),

@@ -28,6 +28,7 @@ const FLAG_OF: Record<string, string> = {
   intermediateFrequency: '--if',
   sideband: '--sideband',
   mixerSign: '--mixer-sign',
+  upconversion: '--upconversion',
   resample: '--resample',
   peakLimit: '--peak-limit',
 };
@@ -49,6 +50,7 @@ const ARGS: ArgSpec = {
     { name: 'if', value: 'HZ', help: 'single-sideband modulation onto one real channel at this intermediate frequency' },
     { name: 'sideband', value: 'upper|lower', help: 'sideband that carries the pulse with --if (default upper)' },
     { name: 'mixer-sign', value: '1|-1', help: "sign of the Q term, to match the mixer's wiring (default 1)" },
+    { name: 'upconversion', value: 'plus|minus', help: 'I and Q channels: the drive at the qubit is I cos + Q sin (plus, default) or I cos - Q sin (minus: Q written negated)' },
     { name: 'marker', help: 'add a marker channel, 1 while the pulse plays' },
     { name: 'peak-limit', value: 'amplitude|per-channel', help: 'what full scale limits (default amplitude sqrt(I^2+Q^2))' },
     { name: 'units', value: 'codes|hz', help: 'csv and npy: DAC codes (default) or quantised values in Hz' },
@@ -67,9 +69,13 @@ whose peak exceeds full scale is refused, never clipped. The report gives the pe
 the largest quantisation error, the length and padding, and the mean and worst infidelity of
 the exported waveform beside the design's on the spec's ensemble.
 
-With --if the single real channel is s = I cos(2 pi f t) - Q sin(2 pi f t) for the upper
-sideband and mixer sign 1 (the Q term flips for the lower sideband or mixer sign -1), with
-t = n / sample-rate from the file's first sample.
+The qubit sees the designed drive when the signal reaching it is
+I cos(2 pi f_d t) + Q sin(2 pi f_d t) at the drive frequency f_d (docs/physics.md section 5).
+With two channels, --upconversion says how your mixer combines them: plus (default) writes
+Q as designed; minus, for a drive I cos - Q sin, writes Q negated. With --if the single real
+channel is s = I cos(2 pi f t) + Q sin(2 pi f t) for the upper sideband and mixer sign 1
+(the Q term flips for the lower sideband or mixer sign -1), with t = n / sample-rate from
+the file's first sample.
 
 Before playing a waveform, check its peak power, duty cycle and the ratings of amplifiers
 and lines against your hardware; your lab's own rules come first.
@@ -147,8 +153,12 @@ function settingsFromFlags(
     intermediateFrequency,
     sideband: flag('sideband'),
     mixerSign: num('mixer-sign', flag('mixer-sign')),
+    upconversion: flag('upconversion'),
     marker,
   };
+  if (intermediateFrequency !== undefined && flag('upconversion') !== undefined) {
+    throw new ArgumentError('export: --upconversion goes with two channels I and Q; with --if, --sideband and --mixer-sign set the sign of Q');
+  }
   if (intermediateFrequency === undefined && (flag('sideband') !== undefined || flag('mixer-sign') !== undefined)) {
     throw new ArgumentError('export: --sideband and --mixer-sign go with --if (single-sideband modulation)');
   }
@@ -205,7 +215,10 @@ export function reportText(r: ExportReport, c: TextContext): string {
       `(granularity ${d.granularity}, min length ${d.minLength})`,
     `resample      ${d.resample}${r.holdSamples !== null ? ` (${r.holdSamples} samples per design sample of ${formatTime(d.designDtS)})` : ` (design dt ${formatTime(d.designDtS)} is ${Number((d.designDtS * d.sampleRateHz).toPrecision(6))} samples)`}`,
     `channels      ${d.channels.join(', ')}` +
-      (d.layout === 'ssb' ? `; single sideband at ${formatFrequency(d.intermediateFrequencyHz)}, ${d.sideband} sideband, mixer sign ${d.mixerSign > 0 ? '+1' : '-1'}` : ''),
+      (d.layout === 'ssb'
+        ? `; single sideband at ${formatFrequency(d.intermediateFrequencyHz)}, ${d.sideband} sideband, mixer sign ${d.mixerSign > 0 ? '+1' : '-1'}`
+        : `; upconversion ${d.upconversion}${d.upconversion === 'minus' ? ' (Q written negated)' : ''}`),
+    `drive         ${d.driveAtQubit}`,
     `DAC           ${d.bits} bits, full-scale code ${d.codeMax} = ${formatFrequency(d.fullScaleHz)} (limit on ${d.peakLimit})`,
     `peak          code ${r.peak.code} (${percent(r.peak.code / r.peak.codeMax)} of full scale); amplitude ${formatFrequency(r.peak.hz)} ` +
       `(design ${formatFrequency(r.peak.designHz)})`,

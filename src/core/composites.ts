@@ -45,7 +45,7 @@ export interface CompositeOptions {
   axisDeg?: number;
   rabiMax: number;
   dt: number;
-  /** BB1 only: where the correction block goes (default 'after', the order of docs/physics.md). */
+  /** BB1 only: where the correction block goes (default 'after', the order of docs/physics.md section 4). */
   placement?: Bb1Placement;
   /** Gaussian only: the envelope is cut at +-sigmas standard deviations (default 3). */
   sigmas?: number;

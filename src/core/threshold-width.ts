@@ -2,7 +2,7 @@
 // infidelity stays below a threshold. Found without a grid: sqrt(infidelity) is the
 // length |w| of the error quaternion (docs/physics.md section 2), and it cannot change faster
 // than the propagator does, so
-//   |d sqrt(1 - F) / d Delta| <= pi T          (dH/dDelta = pi sz, over the duration T)
+//   |d sqrt(1 - F) / d Delta| <= pi T          (dH/dDelta = -pi sz, over the duration T)
 //   |d sqrt(1 - F) / d eps|   <= pi A          (dH/deps = pi (I sx + Q sy), A = sum |Omega| dt)
 // With that bound an interval [a, b] whose ends lie below the threshold is proven free of
 // any crossing when (g(a) + g(b) + L (b - a)) / 2 < sqrt(threshold); intervals that are

@@ -11,8 +11,18 @@ export const PULSE_FORMAT = 'gatesmith.pulse';
 /** The pulse file version this code writes and reads. */
 export const PULSE_VERSION = 1;
 
+/** Options of readPulse. */
+export interface ReadPulseOptions {
+  /**
+   * Keep q as the file stores it. By default an exported waveform whose I/Q were written for
+   * an upconversion "minus" (metadata.export, whose q holds -Q) reads back as the drive the
+   * qubit sees, so that every command judges the designed drive.
+   */
+  asStored?: boolean;
+}
+
 /** Reads a pulse from JSON text or from an already parsed value. */
-export function readPulse(input: string | unknown): Pulse {
+export function readPulse(input: string | unknown, options: ReadPulseOptions = {}): Pulse {
   const doc = typeof input === 'string' ? parseJson(input) : input;
   if (typeof doc !== 'object' || doc === null || Array.isArray(doc)) {
     throw fieldError('(document)', doc, 'a JSON object with "dt", "i" and "q"');
@@ -39,6 +49,10 @@ export function readPulse(input: string | unknown): Pulse {
       throw fieldError('metadata', obj.metadata, 'a JSON object (or leave it out)');
     }
     metadata = obj.metadata as PulseMetadata;
+  }
+  const exported = metadata.export as { layout?: unknown; upconversion?: unknown } | undefined;
+  if (!options.asStored && exported?.layout === 'iq' && exported.upconversion === 'minus') {
+    for (let k = 0; k < q.length; k++) q[k] = q[k] === 0 ? 0 : -q[k];
   }
   return { dt, i, q, metadata };
 }

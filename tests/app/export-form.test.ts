@@ -76,6 +76,9 @@ describe('the settings handed to the library', () => {
     expect(iq).not.toHaveProperty('maxLength');
     const ssb = exportSettingsInput(form({ channels: 'ssb', sideband: 'lower', mixerSign: -1, intermediateFrequency: 2e8, maxLength: 4096 }));
     expect(ssb).toMatchObject({ channels: 'ssb', sideband: 'lower', mixerSign: -1, intermediateFrequency: 2e8, maxLength: 4096 });
+    // The upconversion convention belongs to the two I/Q channels (docs/physics.md section 5).
+    expect(exportSettingsInput(form({ upconversion: 'minus' }))).toMatchObject({ upconversion: 'minus' });
+    expect(exportSettingsInput(form({ channels: 'ssb', upconversion: 'minus' }))).not.toHaveProperty('upconversion');
   });
   it("passes on the library's SpecError message and field unchanged", () => {
     // The messages of src/io/export/settings.ts: field, value, what is allowed.
@@ -135,6 +138,8 @@ describe('the command line the panel shows', () => {
   const forms: Array<[string, Partial<ExportForm>]> = [
     ['csv codes, defaults', {}],
     ['csv, I/Q with SSB settings left over from an earlier choice', { sideband: 'lower', mixerSign: -1, intermediateFrequency: 3e8 }],
+    ['csv, I/Q for a mixer whose drive is I cos - Q sin', { upconversion: 'minus' }],
+    ['raw, single sideband with an upconversion left over from I/Q', { format: 'raw', channels: 'ssb', intermediateFrequency: 2.5e8, upconversion: 'minus' }],
     ['csv in Hz, padded before to 256, 16 bits', { format: 'csv', units: 'hz', minLength: 256, pad: 'before', bits: 16 }],
     ['npy with a marker, split padding to blocks of 48', { format: 'npy', marker: true, granularity: 48, pad: 'split', fullScale: 1.2e7 }],
     ['raw, lower sideband, mixer sign -1, at 2 GS/s', { format: 'raw', channels: 'ssb', intermediateFrequency: 2.5e8, sideband: 'lower', mixerSign: -1, sampleRate: 2e9 }],

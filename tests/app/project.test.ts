@@ -2,6 +2,7 @@
 // is refused with a message naming the place, before anything is replaced.
 import { describe, expect, it } from 'vitest';
 import { demoSpec } from '../../src/app/demo.ts';
+import { defaultExportForm } from '../../src/app/export-form.ts';
 import {
   defaultSettings,
   parseProject,
@@ -86,6 +87,18 @@ describe('project files', () => {
     expect(refuse({ ...p, settings: badMap })).toMatch(/"settings\.map\.threshold" is 2/);
     const badAxis = { ...p.settings, map: { ...p.settings.map, detuning: { min: 1, max: -1, points: 5 } } };
     expect(refuse({ ...p, settings: badAxis })).toMatch(/"settings\.map\.detuning\.max" is -1; expected a number >= min/);
+  });
+
+  it('keep the export form, its upconversion read as "plus" when a project saved before it existed lacks it', () => {
+    const p = project();
+    const form = { ...defaultExportForm(null, 1e7), upconversion: 'minus' as const };
+    expect(parseProject(projectText({ ...p, settings: { ...p.settings, export: form } })).settings.export).toEqual(form);
+    const { upconversion: _u, ...older } = form;
+    const stored = JSON.parse(projectText(p)) as { settings: Record<string, unknown> };
+    stored.settings.export = older;
+    expect(parseProject(JSON.stringify(stored)).settings.export?.upconversion).toBe('plus');
+    stored.settings.export = { ...older, upconversion: 'inverted' };
+    expect(() => parseProject(JSON.stringify(stored))).toThrow(/settings\.export\.upconversion/);
   });
 
   it('fill in missing settings and forget a selection that names no pulse', () => {

@@ -81,7 +81,7 @@ describe('robustness map', () => {
 describe('threshold figures on closed forms', () => {
   // Source: a rectangular rotation by theta under amplitude error eps alone is a rotation by
   // theta (1 + eps) about the same axis, so 1 - F = sin^2(theta eps / 2) exactly (issue 3,
-  // docs/physics.md section 4); its half-width at threshold t is 2 arcsin(sqrt(t)) / theta.
+  // docs/physics.md section 1); its half-width at threshold t is 2 arcsin(sqrt(t)) / theta.
   it.each([
     [90, 1e-4],
     [180, 1e-4],

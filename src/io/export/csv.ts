@@ -19,6 +19,7 @@ export function writeCsv(samples: WaveformSamples): Uint8Array {
     `# units - time_s in seconds (sample n starts at n / sampleRateHz); channels in ${unit}; marker 1 while the pulse plays`,
     `# calibration - full-scale code ${d.codeMax} = ${d.fullScaleHz} Hz Rabi frequency (${d.bits}-bit signed DAC)`,
     `# padding - ${d.padBefore} zero samples before and ${d.padAfter} after the pulse, length ${d.length}`,
+    `# drive at the qubit - ${d.driveAtQubit}`,
     ...Object.entries({ ...d, units: samples.units }).map(([key, value]) => `# ${key}: ${JSON.stringify(value)}`),
     ['time_s', ...d.channels.map((c) => columnName(c, samples.units))].join(','),
   ];

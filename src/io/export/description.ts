@@ -10,6 +10,8 @@ import {
   type PeakLimit,
   type ResampleMethod,
   type Sideband,
+  type Upconversion,
+  UPCONVERSIONS,
 } from './settings.ts';
 
 /** A channel of an exported waveform. 'marker' holds 1 while the pulse plays, 0 in the padding. */
@@ -21,7 +23,8 @@ export const DESCRIPTION_KIND = 'gatesmith-waveform';
 /** Everything about an exported waveform except its samples. Keys carry their units. */
 export interface WaveformDescription {
   kind: typeof DESCRIPTION_KIND;
-  version: 1;
+  /** 2 since the sign of Q is stated (upconversion, driveAtQubit); version 1 files read as upconversion "plus". */
+  version: 2;
   sampleRateHz: number;
   bits: DacBits;
   /** The full-scale code, 2^(bits-1) - 1. */
@@ -36,6 +39,10 @@ export interface WaveformDescription {
   intermediateFrequencyHz: number;
   sideband: Sideband;
   mixerSign: 1 | -1;
+  /** The sign of Q in the drive at the qubit for layout 'iq' ('minus': the Q channel holds -Q); "plus" for 'ssb'. */
+  upconversion: Upconversion;
+  /** The drive at the qubit in words and symbols (from layout, upconversion, sideband, mixerSign). */
+  driveAtQubit: string;
   /** Samples per channel, padding included. */
   length: number;
   padBefore: number;
@@ -58,6 +65,20 @@ export function channelNames(layout: ChannelLayout, marker: boolean): ChannelNam
   return marker ? [...names, 'marker'] : names;
 }
 
+/** The drive the qubit receives, stated in every export header (docs/physics.md section 5). */
+export function driveAtQubit(d: Pick<WaveformDescription, 'layout' | 'upconversion' | 'sideband' | 'mixerSign'>): string {
+  if (d.layout === 'iq') {
+    const sign = d.upconversion === 'plus' ? '+' : '-';
+    const q = d.upconversion === 'plus' ? 'the Q channel holds Q as designed' : 'the Q channel holds -Q';
+    return `I cos(2 pi f_d t) ${sign} Q_channel sin(2 pi f_d t) after upconversion at the drive frequency f_d; ${q}, so the qubit sees I cos(2 pi f_d t) + Q sin(2 pi f_d t), the designed drive`;
+  }
+  const sigma = (d.sideband === 'upper' ? 1 : -1) * d.mixerSign;
+  return (
+    `ssb = I cos(2 pi f_IF t) ${sigma > 0 ? '+' : '-'} Q sin(2 pi f_IF t); mixed with the LO, the ${d.sideband} sideband ` +
+    `(f_d = f_LO ${d.sideband === 'upper' ? '+' : '-'} f_IF) reaches the qubit as I cos(2 pi f_d t) + Q sin(2 pi f_d t), the designed drive`
+  );
+}
+
 /** The SSB and timing settings a description implies (for demodulation). */
 export function descriptionSettings(
   d: WaveformDescription,
@@ -73,7 +94,7 @@ export function parseWaveformDescription(input: unknown, source: string): Wavefo
   if (typeof input !== 'object' || input === null || Array.isArray(input)) bad('(top level)', input, 'a JSON object');
   const o = input as Record<string, unknown>;
   if (o.kind !== DESCRIPTION_KIND) bad('kind', o.kind, `"${DESCRIPTION_KIND}"`);
-  if (o.version !== 1) bad('version', o.version, '1');
+  if (o.version !== 1 && o.version !== 2) bad('version', o.version, '1 or 2');
   const positive = (key: string): number => {
     const v = o[key];
     if (typeof v !== 'number' || !Number.isFinite(v) || !(v > 0)) bad(key, v, 'a finite number > 0');
@@ -104,6 +125,10 @@ export function parseWaveformDescription(input: unknown, source: string): Wavefo
   }
   const sideband = oneOf('sideband', ['upper', 'lower'] as const);
   const mixerSign = oneOf('mixerSign', [1, -1] as const);
+  // Version 1 did not state it; its I/Q files hold Q as designed.
+  if (o.version === 1 && o.upconversion === undefined) o.upconversion = 'plus';
+  const upconversion = oneOf('upconversion', UPCONVERSIONS);
+  if (layout === 'ssb' && upconversion !== 'plus') bad('upconversion', upconversion, '"plus" for layout "ssb" (sideband and mixerSign set the sign of Q)');
   const f = o.intermediateFrequencyHz;
   if (layout === 'ssb') {
     if (typeof f !== 'number' || !(f > 0) || !(f < sampleRateHz / 2)) bad('intermediateFrequencyHz', f, `0 < f < ${sampleRateHz / 2} Hz`);
@@ -125,7 +150,7 @@ export function parseWaveformDescription(input: unknown, source: string): Wavefo
   if (typeof peakHz !== 'number' || !Number.isFinite(peakHz) || peakHz < 0) bad('peakHz', peakHz, 'a finite number >= 0');
   return {
     kind: DESCRIPTION_KIND,
-    version: 1,
+    version: 2,
     sampleRateHz,
     bits,
     codeMax: codeMax(bits),
@@ -136,6 +161,8 @@ export function parseWaveformDescription(input: unknown, source: string): Wavefo
     intermediateFrequencyHz: f as number,
     sideband,
     mixerSign,
+    upconversion,
+    driveAtQubit: driveAtQubit({ layout, upconversion, sideband, mixerSign }),
     length,
     padBefore,
     padAfter,

@@ -1,7 +1,7 @@
 // The export library's public surface for the app and the command line (browser-safe:
 // the Node file reader lives in read-file.ts and is not re-exported here).
-export { parseExportSettings, codeMax, EXPORT_DEFAULTS, RESAMPLE_METHODS } from './settings.ts';
-export type { ExportSettings, ExportSettingsInput, ResampleMethod, DacBits, PadPlacement, ChannelLayout, Sideband, PeakLimit } from './settings.ts';
+export { parseExportSettings, codeMax, EXPORT_DEFAULTS, RESAMPLE_METHODS, UPCONVERSIONS } from './settings.ts';
+export type { ExportSettings, ExportSettingsInput, ResampleMethod, DacBits, PadPlacement, ChannelLayout, Sideband, PeakLimit, Upconversion } from './settings.ts';
 export { exportWaveform, FULL_SCALE_TOLERANCE } from './waveform.ts';
 export type { ExportedWaveform } from './waveform.ts';
 export type { WaveformDescription, ChannelName } from './description.ts';

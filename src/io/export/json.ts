@@ -14,6 +14,8 @@ export function writeJsonWaveform(samples: WaveformSamples, metadata: PulseMetad
     throw new ExportError('format: the pulse JSON holds I and Q; a single SSB channel is written as csv, npy, raw or wav');
   }
   const pulse = samplesToPulse(samples);
+  // The file holds the channels as played: with upconversion "minus" the Q channel is -Q.
+  if (d.upconversion === 'minus') pulse.q = pulse.q.map((x) => (x === 0 ? 0 : -x));
   pulse.metadata = { ...metadata, origin: 'export', export: { ...d, units: 'hz' } };
   return new TextEncoder().encode(writePulse(pulse));
 }
@@ -22,7 +24,7 @@ export function writeJsonWaveform(samples: WaveformSamples, metadata: PulseMetad
 export function readJsonWaveform(bytes: Uint8Array, source = 'JSON'): WaveformSamples {
   let pulse;
   try {
-    pulse = readPulse(new TextDecoder().decode(bytes));
+    pulse = readPulse(new TextDecoder().decode(bytes), { asStored: true });
   } catch (error) {
     if (error instanceof PulseFormatError) error.message = `${source}: ${error.message}`;
     throw error;

@@ -5,7 +5,7 @@ import type { Pulse } from '../../core/types.ts';
 import { descriptionSettings, type WaveformDescription } from './description.ts';
 import { unpadArray } from './padding.ts';
 import { codesToHz } from './quantise.ts';
-import { resampledLength, samplesPerSegment, segmentUnderCentre } from './resample.ts';
+import { resampledLength, resampleMap, samplesPerSegment, segmentUnderCentre } from './resample.ts';
 import { demodulateSsb, type Block } from './ssb.ts';
 import type { ExportedWaveform } from './waveform.ts';
 
@@ -62,7 +62,7 @@ export function checkSamples(samples: WaveformSamples, source: string): Waveform
   return samples;
 }
 
-/** The blocks of file samples that share one design sample (where SSB's I/Q are taken as constant). */
+/** The blocks of file samples that share one design sample (the design sample under each sample's centre). */
 export function ssbBlocks(d: WaveformDescription): Block[] {
   const pulseSamples = d.length - d.padBefore - d.padAfter;
   const { ratio, whole } = samplesPerSegment(d.designDtS, d.sampleRateHz);
@@ -95,7 +95,9 @@ export function samplesToPulse(samples: WaveformSamples, options: PlaybackOption
   let i: Float64Array;
   let q: Float64Array;
   if (d.layout === 'iq') {
+    // Back to the drive the qubit sees: the Q channel of an upconversion "minus" holds -Q.
     [i, q] = hz;
+    if (d.upconversion === 'minus') q = q.map((x) => (x === 0 ? 0 : -x));
   } else {
     const s = hz[0];
     for (let n = 0; n < s.length; n++) {
@@ -103,7 +105,8 @@ export function samplesToPulse(samples: WaveformSamples, options: PlaybackOption
         throw new PulseFormatError(`ssb[${n}] is ${s[n]} in the padding; padding samples are 0`);
       }
     }
-    ({ i, q } = demodulateSsb(s, ssbBlocks(d), descriptionSettings(d)));
+    const map = resampleMap(d.designSegments, d.designDtS, d.sampleRateHz, d.resample);
+    ({ i, q } = demodulateSsb(s, map, d.designSegments, descriptionSettings(d), d.padBefore));
   }
   if (options.unpad) {
     i = unpadArray(i, { before: d.padBefore, after: d.padAfter });

@@ -14,7 +14,7 @@ export async function readWaveform(bytes: Uint8Array, name: string, options: Rea
   if (detectFormat(bytes, name) === 'json') {
     let pulse: Pulse;
     try {
-      pulse = readPulse(new TextDecoder().decode(bytes));
+      pulse = readPulse(new TextDecoder().decode(bytes), { asStored: true });
     } catch (error) {
       if (error instanceof PulseFormatError) error.message = `${name}: ${error.message}`;
       throw error;

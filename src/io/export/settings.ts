@@ -31,6 +31,19 @@ export type ChannelLayout = 'iq' | 'ssb';
 export type Sideband = 'upper' | 'lower';
 
 /**
+ * The sign the Q channel carries in the drive that reaches the qubit when the two channels
+ * I and Q are upconverted to the drive frequency f_d (the mixer's wiring):
+ * 'plus' s(t) = I cos(2 pi f_d t) + Q sin(2 pi f_d t), the model's own convention
+ * (docs/physics.md sections 1 and 5), so Q is written as designed;
+ * 'minus' s(t) = I cos(2 pi f_d t) - Q sin(2 pi f_d t), so Q is written negated and the
+ * qubit still sees the designed drive.
+ */
+export type Upconversion = 'plus' | 'minus';
+
+/** The upconversion conventions, in the order listed in messages. */
+export const UPCONVERSIONS: readonly Upconversion[] = ['plus', 'minus'];
+
+/**
  * What the full-scale limit applies to: 'amplitude' refuses sqrt(I^2+Q^2) above full scale
  * (the default, as the design's disc bound); 'per-channel' refuses only |I| or |Q| above it,
  * which lets the drive amplitude reach sqrt(2) times full scale and must be asked for.
@@ -65,6 +78,8 @@ export interface ExportSettings {
   sideband: Sideband;
   /** +1 or -1: flips the sign of the Q term to match the mixer's wiring ('ssb' only). */
   mixerSign: 1 | -1;
+  /** The sign of Q in the drive at the qubit, s = I cos + Q sin or I cos - Q sin ('iq' only; see Upconversion). */
+  upconversion: Upconversion;
   /** Add a marker channel, 1 while the pulse plays and 0 in the padding. */
   marker: boolean;
 }
@@ -84,6 +99,7 @@ export const EXPORT_DEFAULTS: Omit<ExportSettings, 'sampleRate' | 'bits' | 'full
   intermediateFrequency: 0,
   sideband: 'upper',
   mixerSign: 1,
+  upconversion: 'plus',
   marker: false,
 };
 
@@ -94,7 +110,11 @@ export function codeMax(bits: DacBits): number {
   return 2 ** (bits - 1) - 1;
 }
 
-/** The sign s of the Q term in s(t) = I cos(2 pi f t) - s Q sin(2 pi f t): +1 upper sideband, mixer sign +1. */
+/**
+ * The sign s of the Q term in the SSB channel s(t) = I cos(2 pi f t) + s Q sin(2 pi f t):
+ * +1 for the upper sideband with mixer sign +1, so that after mixing with the LO the chosen
+ * sideband reaches the qubit as I cos(2 pi f_d t) + Q sin(2 pi f_d t) (docs/physics.md section 5).
+ */
 export function ssbQSign(settings: Pick<ExportSettings, 'sideband' | 'mixerSign'>): 1 | -1 {
   return ((settings.sideband === 'upper' ? 1 : -1) * settings.mixerSign) as 1 | -1;
 }
@@ -131,6 +151,10 @@ export function parseExportSettings(input: unknown): ExportSettings {
   const sideband = oneOf('sideband', get('sideband'), ['upper', 'lower'] as const);
   const mixerSign = get('mixerSign');
   if (mixerSign !== 1 && mixerSign !== -1) throw new SpecError('mixerSign', mixerSign, '1 or -1');
+  const upconversion = oneOf('upconversion', get('upconversion'), UPCONVERSIONS);
+  if (channels === 'ssb' && upconversion !== 'plus') {
+    throw new SpecError('upconversion', upconversion, '"plus" (or leave it out) for channels "ssb": there sideband and mixerSign set the sign of Q');
+  }
   const marker = get('marker');
   if (typeof marker !== 'boolean') throw new SpecError('marker', marker, 'true or false');
 
@@ -159,6 +183,7 @@ export function parseExportSettings(input: unknown): ExportSettings {
     intermediateFrequency,
     sideband,
     mixerSign,
+    upconversion,
     marker,
   };
 }

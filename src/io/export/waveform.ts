@@ -2,12 +2,12 @@
 // resample -> pad -> (optional SSB) -> quantise (docs/physics.md sections 5 and 6).
 import { ArgumentError, ExportError } from '../../core/errors.ts';
 import type { Pulse } from '../../core/types.ts';
-import { channelNames, DESCRIPTION_KIND, type WaveformDescription } from './description.ts';
+import { channelNames, DESCRIPTION_KIND, driveAtQubit, type WaveformDescription } from './description.ts';
 import { padArray, padding } from './padding.ts';
 import { codeStepHz, quantise } from './quantise.ts';
 import { resamplePulse } from './resample.ts';
 import { codeMax, parseExportSettings, type ExportSettings } from './settings.ts';
-import { demodulateSsb, modulateSsb } from './ssb.ts';
+import { blockConditioning, modulateSsb } from './ssb.ts';
 import { ssbBlocks } from './playback.ts';
 
 /** Relative slack above full scale that counts as full scale (floating-point rounding of a design at its limit). */
@@ -48,7 +48,8 @@ export function exportWaveform(pulse: Pulse, settingsInput: unknown): ExportedWa
     checkSsb(pulse, resampled.holdSamples ?? resampled.ratio, settings, warnings);
     signal = [modulateSsb(i, q, settings)];
   } else {
-    signal = [i, q];
+    // The Q channel carries the sign that makes the qubit see the designed drive.
+    signal = [i, settings.upconversion === 'plus' ? q : q.map((x) => (x === 0 ? 0 : -x))];
   }
   const names = channelNames(settings.channels, settings.marker);
   const codes = signal.map((x, c) => quantise(x, settings.bits, settings.fullScale, names[c]));
@@ -76,7 +77,7 @@ export function exportWaveform(pulse: Pulse, settingsInput: unknown): ExportedWa
   }
   const description: WaveformDescription = {
     kind: DESCRIPTION_KIND,
-    version: 1,
+    version: 2,
     sampleRateHz: fs,
     bits: settings.bits,
     codeMax: top,
@@ -87,6 +88,8 @@ export function exportWaveform(pulse: Pulse, settingsInput: unknown): ExportedWa
     intermediateFrequencyHz: settings.intermediateFrequency,
     sideband: settings.sideband,
     mixerSign: settings.mixerSign,
+    upconversion: settings.upconversion,
+    driveAtQubit: driveAtQubit({ layout: settings.channels, ...settings }),
     length: pad.length,
     padBefore: pad.before,
     padAfter: pad.after,
@@ -100,7 +103,7 @@ export function exportWaveform(pulse: Pulse, settingsInput: unknown): ExportedWa
   };
   if (settings.channels === 'ssb') {
     // The report evaluates the demodulated waveform; say when demodulation amplifies rounding.
-    const { worstCondition } = demodulateSsb(codes[0], ssbBlocks(description), settings);
+    const worstCondition = blockConditioning(ssbBlocks(description), settings);
     if (worstCondition > 100) {
       warnings.push(
         `SSB demodulation for evaluation amplifies quantisation noise up to ${Math.sqrt(worstCondition).toPrecision(3)} times: ` +

@@ -48,6 +48,7 @@ describe('gatesmith export', () => {
     ['raw', 'x.bin', ['--marker']],
     ['wav', 'x.wav', ['--if', '1.25e8', '--sideband', 'lower']],
     ['json', 'x.json', ['--min-length', '128', '--pad', 'before']],
+    ['csv', 'xm.csv', ['--upconversion', 'minus']],
   ] as const) {
     it(`--format ${format} ${extra.join(' ')}: the file reads back, and the printed figures are those of the file`, async () => {
       const io = collector();
@@ -114,6 +115,30 @@ describe('gatesmith export', () => {
     );
     await expect(exportCommand.run([pulsePath, '--format', 'csv', '--bits', '16', '--full-scale', '1e7', '--out', out], collector())).rejects.toThrow(ArgumentError);
     await expect(exportCommand.run([pulsePath, '--format', 'mat', ...common, '--out', out], collector())).rejects.toThrow(/--format mat is not allowed/);
+    await expect(exportCommand.run([pulsePath, '--format', 'csv', ...common, '--upconversion', 'inverted', '--out', out], collector())).rejects.toThrow(
+      /--upconversion: "inverted" is not allowed; one of "plus", "minus"/,
+    );
+    await expect(exportCommand.run([pulsePath, '--format', 'csv', ...common, '--if', '1e8', '--upconversion', 'minus', '--out', out], collector())).rejects.toThrow(
+      /--upconversion goes with two channels I and Q/,
+    );
+  });
+
+  it('states the drive at the qubit: upconversion minus writes Q negated and says so', async () => {
+    const io = collector();
+    const out = join(dir, 'minus.csv');
+    const shifted = join(dir, 'phase.json');
+    // X(90) about the axis at 60 degrees: Q = sqrt(3)/2 of the amplitude.
+    writeFileSync(shifted, writePulse(rectangular(2.5e6, 10, 1e-8, Math.PI / 3)));
+    expect(await exportCommand.run([shifted, '--format', 'csv', ...common, '--upconversion', 'minus', '--out', out], io)).toBe(0);
+    const text = io.out.join('');
+    expect(text).toMatch(/channels +i, q; upconversion minus \(Q written negated\)/);
+    expect(text).toMatch(/drive +I cos\(2 pi f_d t\) - Q_channel sin\(2 pi f_d t\)/);
+    const csv = readFileSync(out, 'utf8').split('\n');
+    const row = csv.find((l) => /^\d/.test(l))!.split(',');
+    // 2.5 MHz at 60 degrees of 12 MHz full scale: Q = 2.165 MHz is 1477.7 codes, written as -1478.
+    expect(Number(row[2])).toBe(-Math.round(((2.5e6 * Math.sin(Math.PI / 3)) / 1.2e7) * 8191));
+    const played = await readWaveformFile(out);
+    expect(played.q[0]).toBeCloseTo(2.5e6 * Math.sin(Math.PI / 3), -3);
   });
 
   it('readWaveformFile also takes the description file of a raw export, and bytes with a name', async () => {

@@ -23,7 +23,7 @@ describe('parseExportSettings', () => {
   it('the full-scale code is 2^(b-1) - 1: 2047, 8191, 32767 (signed DAC codes, common practice)', () => {
     expect([codeMax(12), codeMax(14), codeMax(16)]).toEqual([2047, 8191, 32767]);
   });
-  it('sign of the Q term: -Q sin for upper/+1 (docs/physics.md 5), flipped by the lower sideband or mixer sign -1', () => {
+  it('sign of the Q term: +Q sin for upper/+1 (docs/physics.md section 5), flipped by the lower sideband or mixer sign -1', () => {
     expect(ssbQSign({ sideband: 'upper', mixerSign: 1 })).toBe(1);
     expect(ssbQSign({ sideband: 'lower', mixerSign: 1 })).toBe(-1);
     expect(ssbQSign({ sideband: 'upper', mixerSign: -1 })).toBe(-1);

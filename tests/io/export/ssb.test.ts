@@ -1,12 +1,14 @@
 // Tests of src/io/export/ssb.ts and the SSB path of waveform.ts / playback.ts.
-// Sources: the modulation formula of docs/physics.md section 5, s = I cos(wt) - Q sin(wt)
-// = A cos(wt + phi) with I = A cos phi, Q = A sin phi (a trigonometric identity); the
-// product-to-sum identity cos(a) cos(b) = [cos(a+b) + cos(a-b)] / 2 for an ideal mixer;
+// Sources: the modulation formula of docs/physics.md section 5, s = I cos(wt) + Q sin(wt)
+// = A cos(wt - phi) with I = A cos phi, Q = A sin phi (a trigonometric identity), the form
+// under which a qubit in the frame of the drive sees the drive about the axis at +phi
+// (docs/physics.md section 1, and the lab-frame simulation in tests/core/lab-frame.test.ts);
+// the product-to-sum identity cos(a) cos(b) = [cos(a+b) + cos(a-b)] / 2 for an ideal mixer;
 // and a plain discrete Fourier transform written here, X[k] = sum_n x_n e^{-2 pi i k n / N},
-// whose bin k0 of A cos(2 pi k0 n / N + phi) is (N A / 2) e^{i phi}.
+// whose bin k0 of A cos(2 pi k0 n / N + p) is (N A / 2) e^{i p}.
 import { describe, expect, it } from 'vitest';
 import { samplesToPulse, ssbBlocks, waveformSamples } from '../../../src/io/export/playback.ts';
-import { resamplePulse } from '../../../src/io/export/resample.ts';
+import { resampleMap, resamplePulse } from '../../../src/io/export/resample.ts';
 import { codeStepHz } from '../../../src/io/export/quantise.ts';
 import type { Sideband } from '../../../src/io/export/settings.ts';
 import { demodulateSsb, modulateSsb } from '../../../src/io/export/ssb.ts';
@@ -42,7 +44,7 @@ function peakBin(x: ArrayLike<number>): number {
 
 const wrap = (a: number) => Math.atan2(Math.sin(a), Math.cos(a));
 
-describe('SSB modulation then demodulation (least squares over each held design sample)', () => {
+describe('SSB modulation then demodulation (least squares through the resampling map)', () => {
   const fs = 1e9;
   const design = shapedPulse(8e6, 16, 8e-9); // 8 instrument samples per design sample
   const held = resamplePulse(design, fs, 'hold');
@@ -51,8 +53,7 @@ describe('SSB modulation then demodulation (least squares over each held design 
       it(`gives back the I/Q to rounding (${sideband} sideband, mixer sign ${mixerSign})`, () => {
         const settings = { sampleRate: fs, intermediateFrequency: 83.3e6, sideband, mixerSign };
         const s = modulateSsb(held.i, held.q, settings);
-        const blocks = Array.from({ length: 16 }, (_, k) => ({ start: 8 * k, end: 8 * (k + 1) }));
-        const back = demodulateSsb(s, blocks, settings);
+        const back = demodulateSsb(s, resampleMap(16, 8e-9, fs, 'hold'), 16, settings);
         expect(normwiseRelativeError(back.i, held.i)).toBeLessThan(1e-13);
         expect(normwiseRelativeError(back.q, held.q)).toBeLessThan(1e-13);
       });
@@ -99,21 +100,21 @@ describe('SSB spectrum (a plain DFT)', () => {
   const pulse = rectangular(amplitude, 1, N / fs, phi); // one design sample held over N instrument samples
   const held = resamplePulse(pulse, fs, 'hold');
 
-  it('s = I cos - Q sin peaks at f_IF with phase +phi (upper sideband, mixer sign +1)', () => {
+  it('s = I cos + Q sin peaks at f_IF with phase -phi, i.e. A cos(wt - phi) (upper sideband, mixer sign +1)', () => {
     const s = modulateSsb(held.i, held.q, { sampleRate: fs, intermediateFrequency: fIF, sideband: 'upper', mixerSign: 1 });
     expect(peakBin(s)).toBe(k0);
     const [re, im] = dftBin(s, k0);
     expect(Math.hypot(re, im) / ((N * amplitude) / 2)).toBeCloseTo(1, 12);
-    expect(wrap(Math.atan2(im, re) - phi)).toBeCloseTo(0, 12);
+    expect(wrap(Math.atan2(im, re) + phi)).toBeCloseTo(0, 12);
   });
-  it('the lower sideband (or mixer sign -1) conjugates the phase: -phi at f_IF', () => {
+  it('the lower sideband (or mixer sign -1) conjugates the phase: +phi at f_IF', () => {
     for (const [sideband, mixerSign] of [['lower', 1], ['upper', -1]] as const) {
       const s = modulateSsb(held.i, held.q, { sampleRate: fs, intermediateFrequency: fIF, sideband, mixerSign });
       const [re, im] = dftBin(s, k0);
-      expect(wrap(Math.atan2(im, re) + phi)).toBeCloseTo(0, 12);
+      expect(wrap(Math.atan2(im, re) - phi)).toBeCloseTo(0, 12);
     }
   });
-  it('after an ideal mixer (multiply by cos of the LO), the chosen sideband carries the drive phase phi and the other -phi', () => {
+  it('after an ideal mixer (multiply by cos of the LO), the chosen sideband is A cos(w_d t - phi), the drive at phase phi, and the image A cos(w t + phi)', () => {
     const kLO = 120; // LO at 300 MHz; sidebands at bins 172 (upper) and 68 (lower), all below N/2
     for (const sideband of ['upper', 'lower'] as const) {
       const s = modulateSsb(held.i, held.q, { sampleRate: fs, intermediateFrequency: fIF, sideband, mixerSign: 1 });
@@ -123,8 +124,8 @@ describe('SSB spectrum (a plain DFT)', () => {
       const [ir, ii] = dftBin(rf, image);
       // cos(a) cos(b) halves each line: |X| = N A / 4 at both sidebands.
       expect(Math.hypot(cr, ci) / ((N * amplitude) / 4)).toBeCloseTo(1, 12);
-      expect(wrap(Math.atan2(ci, cr) - phi)).toBeCloseTo(0, 12);
-      expect(wrap(Math.atan2(ii, ir) + phi)).toBeCloseTo(0, 12);
+      expect(wrap(Math.atan2(ci, cr) + phi)).toBeCloseTo(0, 12);
+      expect(wrap(Math.atan2(ii, ir) - phi)).toBeCloseTo(0, 12);
     }
   });
 
