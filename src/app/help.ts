@@ -3,7 +3,7 @@
 // listed whole in the documentation panel. Keys are the control's `data-help`, id or name.
 
 /** The documentation pages shipped with the app. */
-export type DocPage = 'readme' | 'spec' | 'analysis';
+export type DocPage = 'readme' | 'spec' | 'analysis' | 'physics';
 
 /** One field's help. */
 export interface FieldHelp {
@@ -101,6 +101,13 @@ export const FIELD_HELP: Record<string, FieldHelp> = {
   'x-if': { label: 'IF', what: 'Intermediate frequency of the single-sideband channel.', unit: 'Hz (between 0 and half the sample rate)', typical: '50-200 MHz', doc: README('From design to samples') },
   'x-sideband': { label: 'Sideband', what: 'Which sideband of the intermediate frequency carries the pulse.', unit: 'a choice', typical: 'upper', doc: README('From design to samples') },
   'x-mixer-sign': { label: 'Mixer sign', what: 'Sign of the quadrature term, s(t) = I cos(2π f t) ∓ Q sin(2π f t), set by how your mixer is wired.', unit: 'a choice', typical: '+ (check on your setup)', doc: README('From design to samples') },
+  'x-upconversion': {
+    label: 'Upconversion',
+    what: 'How your IQ mixer combines the two channels into the drive at the qubit: I cos + Q sin (the model’s own convention, Q written as designed) or I cos − Q sin (Q written negated, so the qubit still receives the designed drive).',
+    unit: 'a choice',
+    typical: 'plus (check the sign on your setup)',
+    doc: README('From design to samples'),
+  },
   'x-marker': { label: 'Marker channel', what: 'Adds a channel that is 1 while the pulse plays, for triggering.', unit: 'on or off', typical: 'off', doc: README('Formats') },
   'x-format': { label: 'Format', what: 'The file written: CSV, NumPy .npy, raw int16 with a JSON description, WAV, or pulse JSON.', unit: 'a choice', typical: 'npy', doc: README('Formats') },
   'x-units': { label: 'Units', what: 'Whether the file holds DAC codes or Rabi frequencies in Hz.', unit: 'a choice', typical: 'codes', doc: README('Formats') },

@@ -27,7 +27,7 @@ describe('documentation pages', () => {
   });
 
   it('points every field at a heading that exists in its page', () => {
-    const pages = { readme: 'README.md', spec: 'docs/spec.md', analysis: 'docs/analysis.md' };
+    const pages = { readme: 'README.md', spec: 'docs/spec.md', analysis: 'docs/analysis.md', physics: 'docs/physics.md' };
     const anchors = Object.fromEntries(
       Object.entries(pages).map(([k, file]) => [k, new Set([...readFileSync(file, 'utf8').matchAll(/^#{1,6} (.*)$/gm)].map((m) => slug(m[1])))]),
     );
