@@ -1,6 +1,7 @@
 // The project file (and the autosaved session): the spec, the pulses with their figures,
 // and the view settings. Read strictly, whole or not at all, so that a malformed file
 // changes nothing; pulses are checked again by the library's pulse reader on opening.
+import { MAX_AXIS_POINTS } from '../core/grid.ts';
 import type { Evaluation } from '../core/types.ts';
 import { RESAMPLE_METHODS, UPCONVERSIONS, WAVEFORM_FORMATS } from '../io/export/index.ts';
 import type { ExportForm } from './export-form.ts';
@@ -92,7 +93,7 @@ function axis(value: unknown, where: string): { min: number; max: number; points
   const obj = record(value, where);
   const min = finite(obj.min, `${where}.min`);
   const max = finite(obj.max, `${where}.max`, (x) => x >= min, 'a number >= min');
-  const points = finite(obj.points, `${where}.points`, (x) => Number.isInteger(x) && x >= 1 && x <= 2001, 'a whole number from 1 to 2001');
+  const points = finite(obj.points, `${where}.points`, (x) => Number.isInteger(x) && x >= 1 && x <= MAX_AXIS_POINTS, `a whole number from 1 to ${MAX_AXIS_POINTS}`);
   return { min, max, points };
 }
 

@@ -3,16 +3,14 @@
 // words and as JSON.
 import { basename } from 'node:path';
 import { ArgumentError } from '../core/errors.ts';
-import type { RobustnessSummary } from '../core/robustness.ts';
+import { DEFAULT_REGION_POINTS, MAX_AXIS_POINTS, checkAxis, ensembleRegion, type Region } from '../core/grid.ts';
+import type { PulseJudgement } from '../core/compare.ts';
 import type { GridAxis, Problem, Pulse } from '../core/types.ts';
 import { flagValue, type FlagSpec, type ParsedArgs } from './args.ts';
 import { formatFrequency, formatInfidelity, formatRelative, formatTarget, formatTime } from './format.ts';
 
 /** Points per axis of the default region. */
-export const DEFAULT_POINTS = 101;
-
-/** Largest points per axis the map accepts (as robustnessMap). */
-const MAX_POINTS = 2001;
+export const DEFAULT_POINTS = DEFAULT_REGION_POINTS;
 
 /** The region and threshold flags, in help order. */
 export const REGION_FLAGS: FlagSpec[] = [
@@ -28,33 +26,30 @@ export function numberFlag(text: string, flag: string, allowed: string, ok: (x: 
   return x;
 }
 
-/** A grid axis from "MIN:MAX:N". */
+/** A grid axis from "MIN:MAX:N", checked as the library checks a map's axes. */
 export function parseGrid(text: string, flag: string, lowest = -Infinity): GridAxis {
   const parts = text.split(':');
-  const form = `MIN:MAX:N with MIN <= MAX and N a whole number from 1 to ${MAX_POINTS}`;
+  const form = `MIN:MAX:N with MIN <= MAX and N a whole number from 1 to ${MAX_AXIS_POINTS}`;
   if (parts.length !== 3) throw new ArgumentError(`${flag}: "${text}" is not allowed; ${form}`);
-  const min = numberFlag(parts[0], flag, form);
-  const max = numberFlag(parts[1], flag, form);
-  const points = numberFlag(parts[2], flag, form, (n) => Number.isInteger(n) && n >= 1 && n <= MAX_POINTS);
-  if (min > max) throw new ArgumentError(`${flag}: "${text}" is not allowed; ${form}`);
-  if (min <= lowest) throw new ArgumentError(`${flag}: "${text}" is not allowed; MIN must be above ${lowest} (the drive would vanish)`);
-  return { min, max, points };
+  const axis = { min: numberFlag(parts[0], flag, form), max: numberFlag(parts[1], flag, form), points: numberFlag(parts[2], flag, form) };
+  try {
+    checkAxis(axis, flag, lowest);
+  } catch {
+    // The library names the axis's fields; the user typed one text.
+    const why = axis.min <= lowest && axis.min <= axis.max ? `MIN must be above ${lowest} (the drive would vanish)` : form;
+    throw new ArgumentError(`${flag}: "${text}" is not allowed; ${why}`);
+  }
+  return axis;
 }
 
 /** The region of a map: the flags' grids, or the ensemble's range on each axis (one point where it has none). */
-export function regionOf(flags: ParsedArgs['flags'], problem: Problem): { detuning: GridAxis; amplitudeError: GridAxis } {
-  const range = (pick: (m: Problem['members'][number]) => number): GridAxis => {
-    const v = problem.members.map(pick);
-    const min = Math.min(...v);
-    const max = Math.max(...v);
-    return { min, max, points: min === max ? 1 : DEFAULT_POINTS };
-  };
-  const text = (name: string) => flagValue(flags, name);
-  const d = text('detuning');
-  const a = text('amplitude');
+export function regionOf(flags: ParsedArgs['flags'], problem: Problem): Region {
+  const d = flagValue(flags, 'detuning');
+  const a = flagValue(flags, 'amplitude');
+  const range = ensembleRegion(problem);
   return {
-    detuning: d !== undefined ? parseGrid(d, '--detuning') : range((m) => m.detuning),
-    amplitudeError: a !== undefined ? parseGrid(a, '--amplitude', -1) : range((m) => m.amplitudeError),
+    detuning: d !== undefined ? parseGrid(d, '--detuning') : range.detuning,
+    amplitudeError: a !== undefined ? parseGrid(a, '--amplitude', -1) : range.amplitudeError,
   };
 }
 
@@ -78,21 +73,26 @@ export function formatWidth(value: number, reachedLimit: boolean, kind: 'detunin
   return reachedLimit ? `>= ${text}` : text;
 }
 
-/** The summary as aligned "label  value" lines. */
-export function summaryText(s: RobustnessSummary): string {
+/** The figures of one pulse as aligned "label  value" lines (`gatesmith map`). */
+export function summaryText(j: PulseJudgement, members: number): string {
+  const f = j.figures;
+  const { choice, region } = j;
+  const at = (detuning: number, amplitudeError: number) => `detuning ${formatFrequency(detuning)}, amplitude error ${formatRelative(amplitudeError)}`;
   const rows: [string, string][] = [
-    ['target', formatTarget(s.targetUsed)],
-    ...(s.targetNote ? [['note', s.targetNote] as [string, string]] : []),
-    ['region', `detuning ${formatGrid(s.detuning, 'detuning')}; amplitude error ${formatGrid(s.amplitudeError, 'amplitudeError')}`],
-    ['mean infidelity', `${formatInfidelity(s.meanInfidelity)} (unweighted, over the grid)`],
-    ['worst infidelity', `${formatInfidelity(s.worstInfidelity)} at detuning ${formatFrequency(s.worstAt.detuning)}, amplitude error ${formatRelative(s.worstAt.amplitudeError)}`],
-    ['area below threshold', `${percent(s.areaFraction)} of the grid below ${formatInfidelity(s.threshold)}`],
-    ['detuning half-width', `${formatWidth(s.detuningHalfWidth, s.detuningInterval.reachedLimit, 'detuning')} (below threshold from ${formatFrequency(s.detuningInterval.lower)} to ${formatFrequency(s.detuningInterval.upper)} at zero amplitude error)`],
-    ['amplitude half-width', `${formatWidth(s.amplitudeHalfWidth, s.amplitudeInterval.reachedLimit, 'amplitudeError')} (below threshold from ${formatRelative(s.amplitudeInterval.lower)} to ${formatRelative(s.amplitudeInterval.upper)} at zero detuning)`],
-    ['duration', formatTime(s.durationS)],
-    ['peak amplitude', formatFrequency(s.peakRabiHz)],
-    ['pulse area', `${Number(s.pulseAreaTurns.toPrecision(5))} turns (integral of |Omega| dt; 1 turn = 360 degrees)`],
-    ['energy', `${Number(s.energyHz2S.toPrecision(5))} Hz^2 s (integral of |Omega|^2 dt)`],
+    ['target', formatTarget(choice.targetUsed)],
+    ...(choice.targetNote ? [['note', choice.targetNote] as [string, string]] : []),
+    ['mean infidelity', `${formatInfidelity(f.meanInfidelity)} (weighted mean over the spec's ensemble, ${members} member${members === 1 ? '' : 's'})`],
+    ['worst infidelity', `${formatInfidelity(f.worstInfidelity)} (worst member of the ensemble: ${at(f.worstMember.detuning, f.worstMember.amplitudeError)})`],
+    ['region', `detuning ${formatGrid(region.detuning, 'detuning')}; amplitude error ${formatGrid(region.amplitudeError, 'amplitudeError')}`],
+    ['region mean', `${formatInfidelity(f.regionMeanInfidelity)} (unweighted mean over the grid)`],
+    ['region worst', `${formatInfidelity(f.regionWorstInfidelity)} at ${at(f.regionWorstAt.detuning, f.regionWorstAt.amplitudeError)}`],
+    ['area below threshold', `${percent(f.areaFraction)} of the grid below ${formatInfidelity(j.threshold)}`],
+    ['detuning half-width', `${formatWidth(f.detuningHalfWidth, f.detuningInterval.reachedLimit, 'detuning')} (below threshold from ${formatFrequency(f.detuningInterval.lower)} to ${formatFrequency(f.detuningInterval.upper)} at zero amplitude error)`],
+    ['amplitude half-width', `${formatWidth(f.amplitudeHalfWidth, f.amplitudeInterval.reachedLimit, 'amplitudeError')} (below threshold from ${formatRelative(f.amplitudeInterval.lower)} to ${formatRelative(f.amplitudeInterval.upper)} at zero detuning)`],
+    ['duration', formatTime(f.durationS)],
+    ['peak amplitude', formatFrequency(f.peakRabiHz)],
+    ['pulse area', `${Number(f.pulseAreaTurns.toPrecision(5))} turns (integral of |Omega| dt; 1 turn = 360 degrees)`],
+    ['energy', `${Number(f.energyHz2S.toPrecision(5))} Hz^2 s (integral of |Omega|^2 dt)`],
   ];
   const width = Math.max(...rows.map(([k]) => k.length));
   return rows.map(([k, v]) => `${k.padEnd(width)}  ${v}`).join('\n') + '\n';

@@ -42,7 +42,8 @@ elements then run at slightly different Rabi rates, which leaves a detuning-corr
 sequence (CORPSE, Knill) a first-order residue proportional to the printed spread; see
 docs/analysis.md. The pulse's metadata names the sequence, its source, its elements and
 its ideal operation (Knill: a 180 degree rotation about the axis at PHI - 30 degrees;
-90-180-90: the inversion |0> -> |1>), which map and compare use.
+90-180-90: the inversion |0> -> |1>); map and compare say beside the pulse how that ideal
+meets the spec's target.
 
 Example:
   gatesmith composite bb1 --angle-deg 90 --rabi-max 1e7 --dt 2e-9 --out bb1-x90.pulse.json

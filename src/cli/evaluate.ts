@@ -1,6 +1,7 @@
 // `gatesmith evaluate SPEC PULSE [--json]`: the figures of a pulse on a spec's target and
 // ensemble, per member and in summary.
-import type { Evaluation, Problem, Pulse } from '../core/types.ts';
+import type { JudgedEvaluation } from '../core/compare.ts';
+import type { Problem, Pulse } from '../core/types.ts';
 import { optionsHelp, usageLine } from './args.ts';
 import type { ArgSpec } from './args.ts';
 import { defineCommand } from './command.ts';
@@ -11,7 +12,7 @@ import { formatFrequency, formatInfidelity, formatRelative, formatTarget, format
 const ARGS: ArgSpec = {
   command: 'evaluate',
   positionals: ['SPEC', 'PULSE'],
-  flags: [{ name: 'json', help: 'print {members, meanInfidelity, worstInfidelity} as JSON instead of a table' }],
+  flags: [{ name: 'json', help: 'print {members, meanInfidelity, worstInfidelity, target, note} as JSON instead of a table' }],
 };
 
 const HELP = `Evaluate a pulse on the target and ensemble of a spec.
@@ -23,7 +24,9 @@ are used. PULSE is a pulse file (JSON with "dt" in seconds and arrays "i", "q" i
 or any waveform that \`gatesmith export\` wrote (csv, npy, raw with its FILE.json
 description, wav), evaluated as the instrument plays it, padding included.
 Prints each member's detuning, amplitude error, weight and infidelity, then the weighted
-mean and the worst member.
+mean and the worst member. The pulse is judged against the spec's target; a pulse whose
+metadata names its own ideal gets a note on how that ideal meets the target (as in map and
+compare; see docs/analysis.md "Which target").
 
 Options:
 ${optionsHelp(ARGS)}
@@ -41,8 +44,8 @@ export const evaluateCommand: Command = defineCommand({
     for (const warning of mismatches(pulse, spec.problem)) io.stderr(`warning: ${warning}\n`);
 
     // Loaded here so that --help and bad input never wait for the wasm core.
-    const api = await import('../core/api.ts');
-    const evaluation = api.evaluate(spec.json, pulse);
+    const { evaluateJudged } = await import('../core/compare.ts');
+    const evaluation = evaluateJudged(spec.problem, pulse);
     if (flags.json) {
       const json = {
         members: evaluation.members.map((m) => ({
@@ -53,6 +56,8 @@ export const evaluateCommand: Command = defineCommand({
         })),
         meanInfidelity: evaluation.meanInfidelity,
         worstInfidelity: evaluation.worstInfidelity,
+        target: evaluation.target,
+        note: evaluation.note,
       };
       io.stdout(JSON.stringify(json, null, 2) + '\n');
     } else {
@@ -78,7 +83,7 @@ function mismatches(pulse: Pulse, problem: Problem): string[] {
   return warnings;
 }
 
-function evaluationTable(ev: Evaluation, problem: Problem, pulse: Pulse): string {
+function evaluationTable(ev: JudgedEvaluation, problem: Problem, pulse: Pulse): string {
   const header = ['detuning', 'amplitude error', 'weight', 'infidelity'];
   const rows = ev.members.map((m) => [
     formatFrequency(m.detuning),
@@ -90,7 +95,8 @@ function evaluationTable(ev: Evaluation, problem: Problem, pulse: Pulse): string
   const line = (cells: string[]) => cells.map((cell, c) => cell.padStart(widths[c])).join('  ');
   const worst = ev.members[ev.worstIndex];
   return [
-    `target: ${formatTarget(problem.target)}; pulse: ${pulse.i.length} samples of ${formatTime(pulse.dt)}`,
+    `target: ${formatTarget(ev.target)}; pulse: ${pulse.i.length} samples of ${formatTime(pulse.dt)}`,
+    ...(ev.note ? [`note: ${ev.note}`] : []),
     line(header),
     ...rows.map(line),
     '',

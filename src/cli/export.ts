@@ -4,6 +4,7 @@
 import { writeFileSync } from 'node:fs';
 import { ArgumentError, SpecError } from '../core/errors.ts';
 import { parseSpec } from '../core/spec.ts';
+import { chooseTarget } from '../core/target-choice.ts';
 import type { Problem, Pulse } from '../core/types.ts';
 import { encodeWaveform, WAVEFORM_FORMATS, type WaveformFormat } from '../io/export/formats.ts';
 import type { SampleUnits } from '../io/export/playback.ts';
@@ -173,16 +174,25 @@ function settingsFromFlags(
   }
 }
 
-/** The problem whose ensemble judges the gate: --spec, else the pulse's own spec, else none (with a note why). */
+/**
+ * The problem whose ensemble judges the gate: --spec, else the pulse's own spec, else none
+ * (with a note why); its target is the one the app judges the pulse against (target-choice.ts).
+ */
 function judgingProblem(specPath: string | undefined, pulse: Pulse): { problem: Problem | null; note: string } {
-  if (specPath !== undefined) return { problem: loadSpec(specPath).problem, note: `the ensemble of ${specPath}` };
+  const judged = (problem: Problem, note: string) => {
+    const choice = chooseTarget(problem.target, pulse);
+    return { problem: { ...problem, target: choice.targetUsed }, note: choice.targetNote ? `${note} (${choice.targetNote})` : note };
+  };
+  if (specPath !== undefined) return judged(loadSpec(specPath).problem, `the ensemble of ${specPath}`);
   if (pulse.metadata.spec !== undefined) {
+    let problem: Problem;
     try {
-      return { problem: parseSpec(pulse.metadata.spec), note: "the ensemble of the pulse's metadata.spec" };
+      problem = parseSpec(pulse.metadata.spec);
     } catch (error) {
       const reason = error instanceof Error ? error.message : String(error);
       return { problem: null, note: `the pulse's metadata.spec is not a valid spec (${reason}); give --spec SPEC to evaluate the gate` };
     }
+    return judged(problem, "the ensemble of the pulse's metadata.spec");
   }
   return { problem: null, note: 'the pulse carries no spec; give --spec SPEC to evaluate the gate' };
 }

@@ -24,10 +24,13 @@ Usage: ${usageLine(ARGS)}
 
 SPEC gives the target (and, by default, the region: the range of its ensemble on each
 axis, ${DEFAULT_POINTS} x ${DEFAULT_POINTS} points; an axis the ensemble does not vary is one point).
-PULSE is a pulse file. A pulse whose metadata names its own ideal (the Knill sequence,
-90-180-90) is compared with that ideal, and the output says so.
+PULSE is a pulse file. It is judged against the spec's target; a pulse whose metadata
+names its own ideal (composites do) gets a note on how that ideal meets the target (the
+Knill sequence meets a 180 degree gate up to a z rotation after it, and is judged against
+its own ideal; a sequence built for another rotation is judged against the spec's target).
 
-Prints the summary: mean and worst infidelity over the grid, the fraction of the grid
+Prints the figures: mean and worst infidelity over the spec's ensemble (weighted, as the
+design minimises them); over the grid, the region mean and region worst and the fraction
 below the threshold, the half-widths around zero error (found on each axis through zero
 error to 1e-7 relative, not limited by the grid or the region), duration, peak amplitude,
 pulse area (turns) and energy (Hz^2 s). See docs/analysis.md.
@@ -55,15 +58,18 @@ export const mapCommand: Command = defineCommand({
     if (out !== undefined) checkWritable(out, '--out');
 
     // Loaded here so that --help and bad input never wait for the wasm core.
-    const { summarise } = await import('../core/robustness.ts');
-    const { summary, map } = summarise(spec.problem.target, pulse, region.detuning, region.amplitudeError, { threshold });
+    const { judgePulse } = await import('../core/compare.ts');
+    const judgement = judgePulse(spec.problem, pulse, { region, threshold });
+    const { choice, figures, map } = judgement;
+    // One object for the JSON output and the map file: the target, the region, the figures.
+    const summary = { ...choice, ...judgement.region, threshold: judgement.threshold, ...figures };
     if (out !== undefined) {
-      const context = { pulseName: pulseName(pulse, pulsePath), target: summary.targetUsed, targetNote: summary.targetNote };
+      const context = { pulseName: pulseName(pulse, pulsePath), target: choice.targetUsed, targetNote: choice.targetNote };
       writeText(out, format === 'csv' ? writeMapCsv(map, context) : writeMapJson(map, context, summary), '--out');
     }
     if (flags.json) io.stdout(JSON.stringify({ pulse: pulseName(pulse, pulsePath), ...summary, out: out ?? null }, null, 2) + '\n');
     else {
-      io.stdout(`pulse: ${pulseName(pulse, pulsePath)}\n` + summaryText(summary) + (out !== undefined ? `map written to ${out}\n` : ''));
+      io.stdout(`pulse: ${pulseName(pulse, pulsePath)}\n` + summaryText(judgement, spec.problem.members.length) + (out !== undefined ? `map written to ${out}\n` : ''));
     }
     return 0;
   },

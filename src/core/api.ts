@@ -3,6 +3,8 @@
 // workers. Validation happens here; the kernels trust what they are given.
 import { ArgumentError, describeValue } from './errors.ts';
 import { checkPulse, encodeMembers, encodeTarget, targetMode } from './encode.ts';
+import { bestStart } from './best-start.ts';
+import { axisValues, checkRegion } from './grid.ts';
 import { parseSpec } from './spec.ts';
 import type {
   DesignResult, Evaluation, GridAxis, Member, Problem, Progress, Pulse, StartResult, StopReason, Target,
@@ -82,33 +84,13 @@ function figures(target: Target, pulse: Pulse, scale: Float64Array, detuning: Fl
   });
 }
 
-/** Values of a uniform grid axis (a single point sits at the midpoint). */
-export function axisValues(axis: GridAxis): Float64Array {
-  const v = new Float64Array(axis.points);
-  for (let k = 0; k < axis.points; k++) {
-    v[k] = axis.points === 1 ? (axis.min + axis.max) / 2 : axis.min + ((axis.max - axis.min) * k) / (axis.points - 1);
-  }
-  return v;
-}
-
-function checkAxis(axis: GridAxis, name: string, lowest = -Infinity): void {
-  if (!Number.isInteger(axis.points) || axis.points < 1 || axis.points > 2001) {
-    throw new ArgumentError(`${name}.points: ${describeValue(axis.points)} is not allowed; it must be a whole number from 1 to 2001`);
-  }
-  if (!Number.isFinite(axis.min) || !Number.isFinite(axis.max) || axis.min > axis.max) {
-    throw new ArgumentError(`${name}: ${describeValue([axis.min, axis.max])} is not allowed; min and max must be finite with min <= max`);
-  }
-  if (axis.min <= lowest) throw new ArgumentError(`${name}.min: ${axis.min} is not allowed; it must be above ${lowest}`);
-}
-
 /** Members per core call of a map: bounds the arena and keeps each call short. */
 const MAP_CHUNK = 8192;
 
 /** Infidelity of a pulse on a detuning x amplitude-error grid. */
 export function robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): RobustnessMap {
   checkPulse(pulse);
-  checkAxis(detuning, 'detuning');
-  checkAxis(amplitudeError, 'amplitudeError', -1);
+  checkRegion({ detuning, amplitudeError });
   const dv = axisValues(detuning), av = axisValues(amplitudeError);
   const total = dv.length * av.length;
   const infidelity = new Float64Array(total);
@@ -188,10 +170,9 @@ async function designNow(problem: Problem, options: DesignOptions): Promise<Desi
   return bestOfStarts(problem, starts, t0);
 }
 
-/** The design result of finished starts: the lowest objective wins and is evaluated. */
-export function bestOfStarts(problem: Problem, starts: StartResult[], t0: number): DesignResult {
-  let best = starts[0];
-  for (const r of starts) if (r.objective < best.objective) best = r;
+/** The design result of finished starts: the best (best-start.ts) is evaluated. */
+function bestOfStarts(problem: Problem, starts: StartResult[], t0: number): DesignResult {
+  const best = bestStart(starts);
   const evaluation = evaluateMembers(problem.target, best.pulse, problem.members);
   best.pulse.metadata.figures = {
     meanInfidelity: evaluation.meanInfidelity,

@@ -17,7 +17,7 @@ try {
     progressPulseEveryMs: workerData.progressPulseEveryMs,
     onProgress: (progress) => post({ kind: 'progress', progress }),
   });
-  post({ kind: 'done', starts: result.starts });
+  post({ kind: 'done', result });
 } catch (error) {
   const e = error instanceof Error ? error : new Error(String(error));
   post({ kind: 'error', name: e.name, message: e.message, stack: e.stack });

@@ -76,13 +76,13 @@ export function encodeMembers(members: readonly Member[], multiple = 4, normalis
   return { count: members.length, padded, scale, detuning, weight };
 }
 
-/** Check that a pulse has a positive dt and equal-length finite samples. */
+/** Check that a pulse has a finite dt > 0 and equal-length, non-empty, finite samples (every entry point: core, files, export). */
 export function checkPulse(pulse: Pulse): void {
-  if (!(pulse.dt > 0) || !Number.isFinite(pulse.dt)) throw new ArgumentError(`pulse.dt: ${describeValue(pulse.dt)} is not allowed; it must be a positive number of seconds`);
-  if (pulse.i.length !== pulse.q.length) throw new ArgumentError(`pulse.q: length ${pulse.q.length} differs from pulse.i length ${pulse.i.length}`);
-  if (pulse.i.length === 0) throw new ArgumentError('pulse.i: the pulse has no samples');
+  if (!(pulse.dt > 0) || !Number.isFinite(pulse.dt)) throw new ArgumentError(`pulse.dt: ${describeValue(pulse.dt)} is not allowed; a finite sample length > 0 (s)`);
+  if (pulse.i.length !== pulse.q.length) throw new ArgumentError(`pulse.q: ${pulse.q.length} samples is not allowed; as many as pulse.i (${pulse.i.length})`);
+  if (pulse.i.length === 0) throw new ArgumentError('pulse.i: 0 samples is not allowed; the pulse needs at least 1');
   for (let k = 0; k < pulse.i.length; k++) {
-    if (!Number.isFinite(pulse.i[k])) throw new ArgumentError(`pulse.i[${k}]: ${describeValue(pulse.i[k])} is not a finite number of Hz`);
-    if (!Number.isFinite(pulse.q[k])) throw new ArgumentError(`pulse.q[${k}]: ${describeValue(pulse.q[k])} is not a finite number of Hz`);
+    if (!Number.isFinite(pulse.i[k])) throw new ArgumentError(`pulse.i[${k}]: ${describeValue(pulse.i[k])} is not allowed; a finite Rabi frequency (Hz)`);
+    if (!Number.isFinite(pulse.q[k])) throw new ArgumentError(`pulse.q[${k}]: ${describeValue(pulse.q[k])} is not allowed; a finite Rabi frequency (Hz)`);
   }
 }

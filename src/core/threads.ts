@@ -1,18 +1,19 @@
 // Design with the starts spread over Node worker threads (the command line's way to use
 // every core; the app does the same with Web Workers). Each thread runs the ordinary
-// design() on its share of the start indices; the best start wins as in design().
+// design() on its share of the start indices; the best start wins as in design() (best-start.ts).
 import { createRequire } from 'node:module';
 import { availableParallelism } from 'node:os';
 import { pathToFileURL } from 'node:url';
 import { Worker } from 'node:worker_threads';
-import { bestOfStarts, design, toProblem } from './api.ts';
+import { design, toProblem } from './api.ts';
+import { mergeDesigns } from './best-start.ts';
 import type { DesignOptions } from './api.ts';
-import type { DesignResult, Progress, StartResult } from './types.ts';
+import type { DesignResult, Progress } from './types.ts';
 
 /** Messages from a design thread. */
 export type ThreadMessage =
   | { kind: 'progress'; progress: Progress }
-  | { kind: 'done'; starts: StartResult[] }
+  | { kind: 'done'; result: DesignResult }
   | { kind: 'error'; name: string; message: string; stack?: string };
 
 /** Options of a threaded design: those of design() plus the number of threads. */
@@ -30,8 +31,7 @@ export async function designInThreads(spec: unknown, options: ThreadedDesignOpti
   const t0 = performance.now();
   const shares = Array.from({ length: threads }, (_, t) => indices.filter((_, k) => k % threads === t));
   const runs = shares.map((share) => runThread(problem, share, options));
-  const starts = (await Promise.all(runs)).flat().sort((a, b) => a.start - b.start);
-  return bestOfStarts(problem, starts, t0);
+  return mergeDesigns(await Promise.all(runs), (performance.now() - t0) / 1000);
 }
 
 // Threads do not inherit the TypeScript loader: each registers tsx, then loads the thread module.
@@ -43,7 +43,7 @@ function threadBootstrap(): string {
   return `import(${JSON.stringify(tsx)}).then((m) => { m.register(); return import(${JSON.stringify(thread)}); });`;
 }
 
-function runThread(problem: unknown, startIndices: number[], options: ThreadedDesignOptions): Promise<StartResult[]> {
+function runThread(problem: unknown, startIndices: number[], options: ThreadedDesignOptions): Promise<DesignResult> {
   return new Promise((resolve, reject) => {
     const worker = new Worker(threadBootstrap(), {
       eval: true,
@@ -54,7 +54,7 @@ function runThread(problem: unknown, startIndices: number[], options: ThreadedDe
     if (options.signal?.aborted) stop();
     worker.on('message', (message: ThreadMessage) => {
       if (message.kind === 'progress') options.onProgress?.(message.progress);
-      else if (message.kind === 'done') resolve(message.starts);
+      else if (message.kind === 'done') resolve(message.result);
       else {
         const error = new Error(message.message);
         error.name = message.name;

@@ -1,7 +1,8 @@
 // Robustness-map files: CSV (a '#' commented header, one header row, then one row per grid
 // point: detuning_hz, amplitude_error, infidelity) and JSON (the grid axes, the values in
 // the map's row-major order and the summary figures). Doubles are written exactly.
-import { axisValues, type RobustnessMap } from '../core/api.ts';
+import type { RobustnessMap } from '../core/api.ts';
+import { axisValues } from '../core/grid.ts';
 import type { RobustnessSummary } from '../core/robustness.ts';
 import type { Target } from '../core/types.ts';
 

@@ -2,7 +2,8 @@
 // frequencies (Hz) of each sample, a format name and version, and free metadata.
 // Reading is lenient about what surrounds dt, i and q (any JSON object carrying them is a
 // pulse) and strict about those three; writing keeps every double exactly.
-import { ArgumentError, PulseFormatError, describeValue } from '../core/errors.ts';
+import { checkPulse } from '../core/encode.ts';
+import { PulseFormatError, describeValue } from '../core/errors.ts';
 import type { Pulse, PulseMetadata } from '../core/types.ts';
 
 /** The `format` name written into every pulse file. */
@@ -59,19 +60,14 @@ export function readPulse(input: string | unknown, options: ReadPulseOptions = {
 
 /** Writes a pulse as JSON text that reads back to the same doubles. */
 export function writePulse(pulse: Pulse): string {
-  if (typeof pulse.dt !== 'number' || !Number.isFinite(pulse.dt) || pulse.dt <= 0) {
-    throw new ArgumentError(`pulse.dt: ${describeValue(pulse.dt)} is not allowed; a finite number > 0 (s)`);
-  }
-  if (pulse.i.length !== pulse.q.length) {
-    throw new ArgumentError(`pulse.i and pulse.q have ${pulse.i.length} and ${pulse.q.length} samples; they must match`);
-  }
+  checkPulse(pulse);
   const lines = [
     '{',
     `  "format": ${JSON.stringify(PULSE_FORMAT)},`,
     `  "version": ${PULSE_VERSION},`,
     `  "dt": ${formatNumber(pulse.dt)},`,
-    `  "i": ${formatSamples(pulse.i, 'i')},`,
-    `  "q": ${formatSamples(pulse.q, 'q')},`,
+    `  "i": ${formatSamples(pulse.i)},`,
+    `  "q": ${formatSamples(pulse.q)},`,
     `  "metadata": ${JSON.stringify(pulse.metadata ?? {}, null, 2).replace(/\n/g, '\n  ')}`,
     '}',
   ];
@@ -113,14 +109,10 @@ function formatNumber(x: number): string {
   return Object.is(x, -0) ? '-0' : JSON.stringify(x);
 }
 
-function formatSamples(samples: ArrayLike<number>, field: string): string {
+function formatSamples(samples: ArrayLike<number>): string {
   const parts: string[] = new Array(samples.length);
   for (let k = 0; k < samples.length; k++) {
-    const x = samples[k];
-    if (!Number.isFinite(x)) {
-      throw new ArgumentError(`pulse.${field}[${k}]: ${describeValue(x)} is not allowed; a finite number (Hz)`);
-    }
-    parts[k] = formatNumber(x);
+    parts[k] = formatNumber(samples[k]);
   }
   return `[${parts.join(', ')}]`;
 }

@@ -2,6 +2,8 @@
 // Designs spread their starts over the pool and keep the best pulse; maps come back coarse
 // first, then at full resolution in bands computed in parallel. The only `wrap`.
 import { proxy, releaseProxy, wrap, type Endpoint, type Remote } from 'comlink';
+import { mergeDesigns } from '../core/best-start.ts';
+import { axisValue } from '../core/grid.ts';
 import type { DesignResult, Evaluation, GridAxis, Member, Pulse, Target, Vec3 } from '../core/types.ts';
 import type { EncodedWaveform } from '../io/export/index.ts';
 import type {
@@ -47,11 +49,6 @@ export function bandRows(rows: number, bands: number): Array<[number, number]> {
   return out;
 }
 
-/** The grid value of index k of a uniform axis, as the library places it. */
-export function axisValue(axis: GridAxis, k: number): number {
-  return axis.points === 1 ? (axis.min + axis.max) / 2 : axis.min + ((axis.max - axis.min) * k) / (axis.points - 1);
-}
-
 /** A coarser axis over the same range: about a quarter of the points, never fewer than 2 (or 1). */
 export function coarseAxis(axis: GridAxis, factor = 4): GridAxis {
   if (axis.points <= 2) return { ...axis };
@@ -66,14 +63,7 @@ export function shareStarts(starts: number, workers: number): number[][] {
   return groups;
 }
 
-/** One design from the shares of several workers: the best start by objective, every start listed. */
-export function mergeShares(shares: DesignResult[], elapsedS: number, stopped: boolean): DesignOutcome {
-  if (shares.length === 0) throw new Error('mergeShares: no worker returned a result');
-  let best = shares[0];
-  for (const share of shares) if (share.best.objective < best.best.objective) best = share;
-  const starts = shares.flatMap((s) => s.starts).sort((a, b) => a.start - b.start);
-  return { pulse: best.pulse, evaluation: best.evaluation, best: best.best, starts, elapsedS, stopped };
-}
+export { axisValue };
 
 /** The client over a pool: one worker for analysis, the others for designs. */
 export class CoreClient {
@@ -121,7 +111,7 @@ export class CoreClient {
     const sink = onProgress ? proxy(onProgress) : undefined;
     try {
       const shares = await Promise.all(groups.map((group, w) => this.designers[w].design(spec, group, sink, livePulseEveryMs)));
-      return mergeShares(shares, (performance.now() - t0) / 1000, this.stopRequested);
+      return { ...mergeDesigns(shares, (performance.now() - t0) / 1000), stopped: this.stopRequested };
     } catch (error) {
       await this.stop();
       throw error;

@@ -1,7 +1,8 @@
 // The library as the worker serves it: the same functions the command line calls.
-import { blochTrajectory, design, evaluate, evaluateMembers, robustnessMap } from '../core/api.ts';
-import { buildComposite, compositeNames, type CompositeName } from '../core/composites.ts';
-import { cut, summarise } from '../core/robustness.ts';
+import { blochTrajectory, design, evaluateMembers, robustnessMap } from '../core/api.ts';
+import { compare, evaluateJudged } from '../core/compare.ts';
+import { compositeNames } from '../core/composites.ts';
+import { cuts } from '../core/robustness.ts';
 import { heldSpectrum } from '../core/spectrum.ts';
 import { parseSpec } from '../core/spec.ts';
 import { readPulse, writePulse } from '../io/pulse.ts';
@@ -12,14 +13,13 @@ import type { CoreLibrary } from './service.ts';
 export const library: CoreLibrary = {
   parseSpec,
   design,
-  evaluate,
+  evaluate: evaluateJudged,
   evaluateMembers,
   robustnessMap,
   blochTrajectory,
   heldSpectrum,
-  summarise,
-  cut,
-  buildComposite: (name, options) => buildComposite(name as CompositeName, options),
+  compare,
+  cuts,
   composites: compositeNames,
   readPulse,
   writePulse,

@@ -2,6 +2,8 @@
 // coarse call per job. The worker implements CoreService (service.ts); the page reaches it
 // only through the client (client.ts).
 import type { DesignResult, Evaluation, GridAxis, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
+import type { CompareRow, NamedPulse } from '../core/compare.ts';
+import type { Cuts } from '../core/robustness.ts';
 import type { EncodedWaveform, ExportReport, SampleUnits, WaveformFormat } from '../io/export/index.ts';
 import type { Spectrum, SpectrumRequest } from '../core/spectrum.ts';
 
@@ -63,41 +65,10 @@ export interface MapResult {
 }
 
 /** One-dimensional cuts through zero error: along detuning (no amplitude error) and along amplitude error (no detuning). */
-export interface Cuts {
-  detuning: Float64Array;
-  detuningInfidelity: Float64Array;
-  amplitudeError: Float64Array;
-  amplitudeErrorInfidelity: Float64Array;
-}
+export type { Cuts } from '../core/robustness.ts';
 
-/** Figures of a pulse: on the spec's ensemble, over a region of errors (issue 3's summary), and of its samples. */
-export interface PulseFigures {
-  /** Weighted mean over the spec's ensemble. */
-  meanInfidelity: number;
-  /** Worst member of the spec's ensemble. */
-  worstInfidelity: number;
-  /** Unweighted mean over the region's grid (the command line's `compare` figure). */
-  regionMeanInfidelity: number;
-  /** Fraction of the grid whose infidelity stays below the threshold. */
-  robustArea: number;
-  /** Largest detuning half-width around zero below the threshold (Hz). */
-  detuningHalfWidth: number;
-  /** Largest amplitude-error half-width around zero below the threshold (relative). */
-  amplitudeHalfWidth: number;
-  duration: number;
-  /** Largest sqrt(I^2 + Q^2) over the samples (Hz). */
-  peak: number;
-  /** Integral of |Omega| dt, in turns. */
-  pulseArea: number;
-  /** Integral of |Omega|^2 dt (Hz^2 s). */
-  energy: number;
-}
-
-/** A pulse to compare, given by the page (designed or opened). */
-export interface NamedPulse {
-  name: string;
-  pulse: Pulse;
-}
+/** A pulse's figures and a comparison row, exactly as the library (and `gatesmith compare --json`) gives them. */
+export type { CompareFigures, CompareRow, NamedPulse } from '../core/compare.ts';
 
 /** What the comparison computes: the same grid, threshold and ensemble for every row. */
 export interface CompareRequest {
@@ -107,20 +78,6 @@ export interface CompareRequest {
   detuning: GridAxis;
   amplitudeError: GridAxis;
   threshold: number;
-}
-
-/** One row of the comparison: a pulse, the target it is judged against, its figures and cuts. */
-export interface CompareRow {
-  name: string;
-  origin: string;
-  /** Absent when the sequence cannot be built for this target (the error says why). */
-  pulse?: Pulse;
-  target?: Target;
-  /** Set when the pulse is judged against its own ideal rather than the spec's target. */
-  note?: string;
-  figures?: PulseFigures;
-  cuts?: Cuts;
-  error?: ErrorInfo;
 }
 
 /** What an exported waveform is judged against: a target and the ensemble's members (the spec's, normally). */

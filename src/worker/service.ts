@@ -3,24 +3,21 @@
 // MessageChannel in one realm, exactly as the worker does across threads.
 import type { DesignOptions, RobustnessMap } from '../core/api.ts';
 import type { Spectrum, SpectrumRequest } from '../core/spectrum.ts';
-import type { Cut, ErrorAxis, RobustnessSummary, SummaryOptions } from '../core/robustness.ts';
+import type { CompareOptions, Comparison, NamedPulse } from '../core/compare.ts';
+import type { Cuts } from '../core/robustness.ts';
 import type { DesignResult, Evaluation, GridAxis, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
 import type { EncodedWaveform, EncodeOptions, ExportedWaveform, ExportReport, PulseEvaluator, WaveformFormat } from '../io/export/index.ts';
 import type {
-  CompareRequest,
-  CompareRow,
   CoreInfo,
   CoreService,
   ExportPreview,
   CompositeChoice,
-  Cuts,
   EnsemblePaths,
   ErrorInfo,
   LivePulse,
   MapResult,
   ProgressPoint,
   ProgressSink,
-  PulseFigures,
   SpecCheck,
 } from './protocol.ts';
 import { releaseProxy } from 'comlink';
@@ -30,17 +27,17 @@ import { moved } from './transfer.ts';
 export interface CoreLibrary {
   parseSpec(json: unknown): Problem;
   design(spec: unknown, options?: DesignOptions): Promise<DesignResult>;
+  /** Figures on the spec's ensemble against the target the pulse is judged against (core/target-choice.ts). */
   evaluate(spec: unknown, pulse: Pulse): Evaluation;
   evaluateMembers(target: Target, pulse: Pulse, members: Member[]): Evaluation;
   robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): RobustnessMap;
   blochTrajectory(pulse: Pulse, member: Member, from: Vec3): Float64Array;
   /** |X(D)| of the held pulse over a span of detunings. */
   heldSpectrum(pulse: Pulse, request: SpectrumRequest): Spectrum;
-  /** Summary figures of a pulse over a region (against its own ideal when it names one). */
-  summarise(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, options?: SummaryOptions): { summary: RobustnessSummary; map: RobustnessMap };
-  /** Infidelity along one error axis, the other held at zero. */
-  cut(target: Target, pulse: Pulse, axis: ErrorAxis, grid: GridAxis): Cut;
-  buildComposite(name: string, options: { angleDeg: number; axisDeg: number; rabiMax: number; dt: number }): Pulse;
+  /** Pulses and composite sequences judged on one spec, best first (what `gatesmith compare` prints). */
+  compare(spec: unknown, pulses: readonly NamedPulse[], options?: CompareOptions): Comparison;
+  /** The cuts through zero error along each axis. */
+  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): Cuts;
   composites: readonly CompositeChoice[];
   readPulse(text: string): Pulse;
   writePulse(pulse: Pulse): string;
@@ -94,12 +91,6 @@ class ProgressBatcher {
   }
 }
 
-/** Axis phase (degrees) and angle of a gate target whose axis lies in the xy-plane, else null. */
-export function planarGate(target: Target): { angleDeg: number; axisDeg: number } | null {
-  if (target.kind !== 'gate' || Math.abs(target.axis[2]) > 1e-9) return null;
-  return { angleDeg: (target.angleRad * 180) / Math.PI, axisDeg: (Math.atan2(target.axis[1], target.axis[0]) * 180) / Math.PI };
-}
-
 /** Sample indices kept when a path of n samples is drawn with at most `maxPoints` points: 0, even steps, n. */
 export function thinnedIndices(samples: number, maxPoints: number): Int32Array {
   const count = Math.max(2, Math.min(samples + 1, Math.floor(maxPoints)));
@@ -122,72 +113,6 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
   // Jobs need the loaded core; stop and checkSpec do not and stay immediate. Jobs may
   // overlap: the library nests short jobs above a waiting design and queues designs.
   const withCore = <T>(job: () => T | Promise<T>): Promise<T> => ensureLoaded().then(job);
-
-  const cuts = (target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): Cuts => {
-    const alongDetuning = library.cut(target, pulse, 'detuning', detuning);
-    const alongAmplitude = library.cut(target, pulse, 'amplitudeError', amplitudeError);
-    return {
-      detuning: alongDetuning.values,
-      detuningInfidelity: alongDetuning.infidelity,
-      amplitudeError: alongAmplitude.values,
-      amplitudeErrorInfidelity: alongAmplitude.infidelity,
-    };
-  };
-
-  const compareRow = (name: string, origin: string, pulse: Pulse, problem: Problem, request: CompareRequest): CompareRow => {
-    const { summary } = library.summarise(problem.target, pulse, request.detuning, request.amplitudeError, { threshold: request.threshold });
-    const target = summary.targetUsed;
-    // Mean and worst are over the spec's own ensemble (what the design minimised); the
-    // area and half-widths over the region of the request.
-    const evaluation = library.evaluateMembers(target, pulse, problem.members);
-    const figures: PulseFigures = {
-      meanInfidelity: evaluation.meanInfidelity,
-      worstInfidelity: evaluation.worstInfidelity,
-      regionMeanInfidelity: summary.meanInfidelity,
-      robustArea: summary.areaFraction,
-      detuningHalfWidth: summary.detuningHalfWidth,
-      amplitudeHalfWidth: summary.amplitudeHalfWidth,
-      duration: summary.durationS,
-      peak: summary.peakRabiHz,
-      pulseArea: summary.pulseAreaTurns,
-      energy: summary.energyHz2S,
-    };
-    return {
-      name,
-      origin,
-      pulse,
-      target,
-      ...(summary.targetNote ? { note: summary.targetNote } : {}),
-      figures,
-      cuts: cuts(target, pulse, request.detuning, request.amplitudeError),
-    };
-  };
-
-  const compareAll = (request: CompareRequest): CompareRow[] => {
-    const problem = library.parseSpec(request.spec);
-    const rows: CompareRow[] = request.pulses.map((p) =>
-      compareRow(p.name, String(p.pulse.metadata.origin ?? 'design'), p.pulse, problem, request),
-    );
-    const gate = planarGate(problem.target);
-    for (const name of request.composites) {
-      const title = library.composites.find((c) => c.name === name)?.title ?? name;
-      if (!gate) {
-        rows.push({
-          name: title,
-          origin: 'composite',
-          error: { name: 'ArgumentError', message: 'composite sequences are built for a gate target whose axis lies in the xy-plane' },
-        });
-        continue;
-      }
-      try {
-        const pulse = library.buildComposite(name, { ...gate, rabiMax: problem.rabiMax, dt: problem.dt });
-        rows.push(compareRow(title, 'composite', pulse, problem, request));
-      } catch (error) {
-        rows.push({ name: title, origin: 'composite', error: errorInfo(error) });
-      }
-    }
-    return moved(rows);
-  };
 
   return {
     async ready(): Promise<CoreInfo> {
@@ -243,11 +168,15 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
     },
 
     cuts(target, pulse, detuning, amplitudeError) {
-      return withCore(() => moved(cuts(target, pulse, detuning, amplitudeError)));
+      return withCore(() => moved(library.cuts(target, pulse, detuning, amplitudeError)));
     },
 
     compare(request) {
-      return withCore(() => compareAll(request));
+      return withCore(() => {
+        const { spec, pulses, composites, detuning, amplitudeError, threshold } = request;
+        const { rows } = library.compare(spec, pulses, { composites, region: { detuning, amplitudeError }, threshold, cuts: true });
+        return moved(rows);
+      });
     },
 
     trajectory(pulse, member, from) {

@@ -204,7 +204,7 @@ describe('design then evaluate, the transmon demo', () => {
     expect(r.code, r.stderr).toBe(0);
     expect(r.stderr).toBe('');
     const ev = JSON.parse(r.stdout);
-    expect(Object.keys(ev)).toEqual(['members', 'meanInfidelity', 'worstInfidelity']);
+    expect(Object.keys(ev)).toEqual(['members', 'meanInfidelity', 'worstInfidelity', 'target', 'note']);
     expect(ev.members).toHaveLength(25);
     for (const m of ev.members) expect(Object.keys(m)).toEqual(['detuning', 'amplitudeError', 'weight', 'infidelity']);
     // Same pulse, same ensemble: the same figure as the design reported.

@@ -167,6 +167,24 @@ describe.skipIf(reason !== null)('the app in Chromium', () => {
     await recordViolations(page);
   }, 120_000);
 
+  it('builds the inversion sequences for a state-transfer target and says beside each how it meets it', async () => {
+    const { page } = await fresh();
+    // The state-transfer default is the inversion |0> -> |1> (+z -> -z).
+    await page.getByLabel('State transfer').check();
+    await page.keyboard.press('Alt+4');
+    await page.getByLabel('90-180-90').check();
+    await page.getByLabel('Knill').check();
+    // Rectangular, BB1, SK1, CORPSE (the default choices) and the two just chosen, all built.
+    await page.waitForFunction(() => document.querySelectorAll('[data-testid=compare-table] tbody tr td.mono').length >= 6 * 9, undefined, { timeout: 30_000 });
+    const names = await page.locator('[data-testid=compare-table] tbody th').allTextContents();
+    for (const name of ['90-180-90', 'Knill', 'BB1']) expect(names.some((n) => n.includes(name))).toBe(true);
+    expect(await page.locator('[data-testid=compare-table] .error-text').count()).toBe(0);
+    const notes = await page.locator('.note').allTextContents();
+    expect(notes.filter((n) => n.includes("meets the spec's state transfer")).length).toBe(names.length);
+    await screenshot(page, 'e2e-05b-compare-inversion');
+    await recordViolations(page);
+  }, 120_000);
+
   it('draws the waveform as I/Q and as amplitude and phase, and turns the Bloch sphere on a drag', async () => {
     const { page } = await fresh();
     await page.getByTestId('run').click();

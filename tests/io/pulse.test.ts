@@ -145,6 +145,6 @@ describe('writing', () => {
     expect(() => writePulse({ ...base, q: new Float64Array([0, Infinity]) })).toThrow(/pulse\.q\[1\]: Infinity/);
     expect(() => writePulse({ ...base, i: new Float64Array([NaN, 0]) })).toThrow(ArgumentError);
     expect(() => writePulse({ ...base, dt: 0 })).toThrow(/pulse\.dt: 0/);
-    expect(() => writePulse({ ...base, q: new Float64Array([0]) })).toThrow(/2 and 1 samples/);
+    expect(() => writePulse({ ...base, q: new Float64Array([0]) })).toThrow(/pulse\.q: 1 samples is not allowed; as many as pulse\.i \(2\)/);
   });
 });

@@ -2,6 +2,7 @@
 // at hand (designed, opened, built for comparison), the view settings, and keeping all of
 // it: autosave, project files and links. Reactive (Svelte runes); the worker is reached
 // only through the client.
+import { chooseTarget, type TargetChoice } from '../../core/target-choice.ts';
 import type { Evaluation, Problem, Pulse, Target } from '../../core/types.ts';
 import type { CoreClient } from '../../worker/client.ts';
 import type { CompositeChoice, ErrorInfo, SpecCheck } from '../../worker/protocol.ts';
@@ -130,11 +131,22 @@ export class Session {
     return this.pulses.find((p) => p.id === this.selectedId) ?? null;
   }
 
-  /** What a pulse is judged against: a composite's own ideal operation, else the spec's target. */
+  /** What a pulse is judged against: the library's choice for the spec's target (core/target-choice.ts), null without a valid spec. */
   targetOf(entry: PulseEntry | null): Target | null {
-    const ideal = entry?.pulse.metadata.ideal as Target | undefined;
-    if (ideal && typeof ideal === 'object' && (ideal.kind === 'gate' || ideal.kind === 'state')) return ideal;
-    return this.problem?.target ?? null;
+    return this.targetChoiceOf(entry)?.targetUsed ?? null;
+  }
+
+  /** The spec's target, the one a pulse is judged against and the note beside it; null without a pulse or a valid spec. */
+  targetChoiceOf(entry: PulseEntry | null): TargetChoice | null {
+    const target = this.problem?.target;
+    if (!target) return null;
+    if (!entry) return { targetGiven: target, targetUsed: target, targetNote: null };
+    try {
+      return chooseTarget(target, entry.pulse);
+    } catch (error) {
+      // A malformed metadata.ideal in an opened file: judged against the spec's target, and said so.
+      return { targetGiven: target, targetUsed: target, targetNote: (error as Error).message };
+    }
   }
 
   /** Loads the core, then restores the session: the link's spec first, else the autosave, else the demo. */

@@ -1,7 +1,8 @@
 // From a design pulse to the waveform the instrument plays:
 // resample -> pad -> (optional SSB) -> quantise (docs/physics.md sections 5 and 6).
-import { ArgumentError, ExportError } from '../../core/errors.ts';
+import { ExportError } from '../../core/errors.ts';
 import type { Pulse } from '../../core/types.ts';
+import { checkPulse } from '../../core/encode.ts';
 import { channelNames, DESCRIPTION_KIND, driveAtQubit, type WaveformDescription } from './description.ts';
 import { padArray, padding } from './padding.ts';
 import { codeStepHz, quantise } from './quantise.ts';
@@ -112,19 +113,6 @@ export function exportWaveform(pulse: Pulse, settingsInput: unknown): ExportedWa
     }
   }
   return { description, settings, codes, ideal, holdSamples: resampled.holdSamples, warnings };
-}
-
-function checkPulse(pulse: Pulse): void {
-  if (!(pulse.dt > 0) || !Number.isFinite(pulse.dt)) {
-    throw new ArgumentError(`pulse.dt: ${pulse.dt} is not allowed; a finite sample length > 0 (s)`);
-  }
-  if (pulse.i.length === 0 || pulse.i.length !== pulse.q.length) {
-    throw new ArgumentError(`pulse.q: ${pulse.q.length} samples is not allowed; as many as pulse.i (${pulse.i.length}), at least 1`);
-  }
-  for (const [name, x] of [['i', pulse.i], ['q', pulse.q]] as const) {
-    const bad = x.findIndex((v) => !Number.isFinite(v));
-    if (bad >= 0) throw new ArgumentError(`pulse.${name}[${bad}]: ${x[bad]} is not allowed; a finite Rabi frequency (Hz)`);
-  }
 }
 
 /** Refuse a waveform whose peak exceeds full scale (docs/physics.md section 6: never written, never clipped). */
