@@ -1,10 +1,14 @@
 // The only file of the core that exports to JavaScript: thin (pointer, length, ...)
 // wrappers. Validation happens in TypeScript (src/core); kernels trust their inputs.
+// Every job works on a problem block (problem.ts) reached by a pointer.
 
 export { arenaReset, arenaAlloc, arenaRelease, arenaUsed } from './memory';
-export { ensembleFigure, blochPath, currentSeriesTerms, currentHalvings } from './ensemble';
-export { ensembleGradient } from './gradient';
-export { problemSet, problemVariables, problemInfidelity, controlsFromVariables, objective } from './control';
+export { problemCreate, problemFree, problemBuffer } from './problem';
 export {
-  optInit, optStep, optObjective, optGradientNorm, optVariables, optEvaluations, optIterations,
+  problemFigure, problemGradient, problemInfidelity, problemVariables, problemSeries,
+  controlsFromVariables, objective,
+} from './control';
+export { blochPath } from './qubit';
+export {
+  optInit, optStep, optObjective, optGradientNorm, optVariables, optGradient, optEvaluations, optIterations, optStoredPairs, optMoveTo,
 } from './lbfgs';

@@ -1,62 +1,110 @@
 // L-BFGS with a line search satisfying the strong Wolfe conditions, over the objective
-// of control.ts. One call of optStep is one iteration, so that JavaScript can stream
-// progress, watch the clock and stop a run between iterations.
+// of a problem block (control.ts). One call of optStep is one iteration, so that
+// JavaScript can stream progress, watch the clock and stop a run between iterations.
+// The state lives in the block (an Lbfgs header and its arrays, memory.ts), so runs
+// interleave. With the box bound the iteration is lbfgsb.ts's; the memory of correction
+// pairs, the line search and the bookkeeping are shared.
 // see: Nocedal & Wright, Numerical Optimization (2nd ed.), Algorithm 7.4 (two-loop
 // recursion, H0 = gamma I with gamma = s'y / y'y, eq. 7.20), Algorithms 3.5 and 3.6
 // (line search and zoom), and eq. 3.59 (cubic interpolation of the zoom step).
 
 import { objective } from './control';
-import { arenaAlloc } from './memory';
+import { Problem, BOUND_BOX } from './problem';
+import { lbfgsbBytes, lbfgsbPlace, lbfgsbStep, lbfgsbPairAdded, projectedGradientNorm } from './lbfgsb';
 
+/** Status of optStep: an iteration was taken. */
 export const STEP_OK: i32 = 0;
+/** Status of optStep: the (projected) gradient is below the tolerance. */
 export const STEP_GRADIENT_TOLERANCE: i32 = 1;
+/** Status of optStep: no step lowered the objective. */
 export const STEP_LINE_SEARCH_FAILED: i32 = 2;
-export const STEP_NO_MEMORY: i32 = 3;
 
 const C1: f64 = 1e-4;
 const C2: f64 = 0.9;
 const MAX_BRACKET: i32 = 20;
 const MAX_ZOOM: i32 = 30;
 
-let nVar: i32 = 0;
-let mem: i32 = 0;
-let stored: i32 = 0;
-let newest: i32 = -1;
-let gradTol: f64 = 0.0;
-let xPtr: usize = 0;
-let gPtr: usize = 0;
-let xtPtr: usize = 0;
-let gtPtr: usize = 0;
-let dPtr: usize = 0;
-let sPtr: usize = 0;
-let yPtr: usize = 0;
-let rhoPtr: usize = 0;
-let alphaPtr: usize = 0;
-let fx: f64 = 0.0;
-let ft: f64 = 0.0;
-let evaluations: i32 = 0;
-let iterations: i32 = 0;
+/** The optimiser's state (an unmanaged struct in the problem block). */
+@unmanaged export class Lbfgs {
+  nVar: i32;
+  mem: i32;
+  stored: i32;
+  newest: i32;
+  evaluations: i32;
+  iterations: i32;
+  box: i32;
+  _pad: i32;
+  gradTol: f64;
+  fx: f64;
+  ft: f64;
+  x: usize;
+  g: usize;
+  xt: usize;
+  gt: usize;
+  d: usize;
+  s: usize;
+  y: usize;
+  rho: usize;
+  alpha: usize;
+  b: usize;
+}
 
-@inline function at(p: usize, k: i32): usize { return p + (<usize>k << 3); }
+@inline function f64s(count: i32): usize { return ((<usize>count << 3) + 15) & ~(<usize>15); }
+/** Address of f64 number k of an array. */
+@inline export function at(p: usize, k: i32): usize { return p + (<usize>k << 3); }
 
-function dot(a: usize, b: usize, n: i32): f64 {
+/** Bytes of an optimiser for nVar variables and `mem` pairs (header included). */
+export function lbfgsBytes(nVar: i32, mem: i32, box: bool): usize {
+  const header = (offsetof<Lbfgs>() + 15) & ~(<usize>15);
+  let bytes = header + 5 * f64s(nVar) + 2 * <usize>mem * f64s(nVar) + 2 * f64s(mem);
+  if (box) bytes += lbfgsbBytes(nVar, mem);
+  return bytes;
+}
+
+/** Lay the optimiser's arrays out after its header (memory already zeroed). */
+export function lbfgsPlace(o: Lbfgs, nVar: i32, mem: i32, gradientTolerance: f64, box: bool): void {
+  o.nVar = nVar; o.mem = mem; o.stored = 0; o.newest = -1; o.gradTol = gradientTolerance;
+  o.box = box ? 1 : 0;
+  let ptr = changetype<usize>(o) + ((offsetof<Lbfgs>() + 15) & ~(<usize>15));
+  o.x = ptr; ptr += f64s(nVar);
+  o.g = ptr; ptr += f64s(nVar);
+  o.xt = ptr; ptr += f64s(nVar);
+  o.gt = ptr; ptr += f64s(nVar);
+  o.d = ptr; ptr += f64s(nVar);
+  o.s = ptr; ptr += <usize>mem * f64s(nVar);
+  o.y = ptr; ptr += <usize>mem * f64s(nVar);
+  o.rho = ptr; ptr += f64s(mem);
+  o.alpha = ptr; ptr += f64s(mem);
+  if (box) { o.b = ptr; lbfgsbPlace(o, ptr); }
+}
+
+/** The optimiser of a problem block. */
+@inline export function optimiserOf(ptr: usize): Lbfgs { return changetype<Lbfgs>(changetype<Problem>(ptr).opt); }
+
+/** a . b over n values. */
+export function dot(a: usize, b: usize, n: i32): f64 {
   let s: f64 = 0.0;
   for (let k = 0; k < n; k++) s += load<f64>(at(a, k)) * load<f64>(at(b, k));
   return s;
 }
 
-function normInf(a: usize, n: i32): f64 {
+/** Largest |a_k| over n values. */
+export function normInf(a: usize, n: i32): f64 {
   let s: f64 = 0.0;
   for (let k = 0; k < n; k++) s = Math.max(s, Math.abs(load<f64>(at(a, k))));
   return s;
 }
 
+/** Pointer to correction vector `slot` of a ring (S or Y). */
+@inline export function pairAt(base: usize, o: Lbfgs, slot: i32): usize { return base + <usize>slot * f64s(o.nVar); }
+
 /** Evaluate the trial point x + alpha d into xt, gt; returns phi'(alpha) = gt.d. */
-function trial(alpha: f64): f64 {
-  for (let k = 0; k < nVar; k++) store<f64>(at(xtPtr, k), load<f64>(at(xPtr, k)) + alpha * load<f64>(at(dPtr, k)));
-  ft = objective(xtPtr, gtPtr);
-  evaluations++;
-  return dot(gtPtr, dPtr, nVar);
+function trial(p: usize, o: Lbfgs, alpha: f64): f64 {
+  const n = o.nVar, x = o.x, d = o.d, xt = o.xt;
+  for (let k = 0; k < n; k++) store<f64>(at(xt, k), load<f64>(at(x, k)) + alpha * load<f64>(at(d, k)));
+  o.ft = objective(p, xt, o.gt);
+  o.evaluations++;
+  return dot(o.gt, d, n);
 }
 
 /** Minimiser of the cubic through (a, fa, da), (b, fb, db), kept inside the interval's middle 80 %. */
@@ -76,72 +124,74 @@ function cubicStep(a: f64, fa: f64, da: f64, b: f64, fb: f64, db: f64): f64 {
 }
 
 /**
- * Start a run from the variables at x0 (n values) with `memory` correction pairs.
- * Returns the objective at x0 (NaN when the arena is exhausted).
+ * Start the problem's optimiser from the variables at x0. Returns the objective at x0.
  */
-export function optInit(x0: usize, n: i32, memory_: i32, gradientTolerance: f64): f64 {
-  nVar = n; mem = memory_; stored = 0; newest = -1; gradTol = gradientTolerance;
-  evaluations = 0; iterations = 0;
-  const bytes = <usize>n << 3;
-  xPtr = arenaAlloc(bytes); gPtr = arenaAlloc(bytes);
-  xtPtr = arenaAlloc(bytes); gtPtr = arenaAlloc(bytes); dPtr = arenaAlloc(bytes);
-  sPtr = arenaAlloc(bytes * <usize>mem); yPtr = arenaAlloc(bytes * <usize>mem);
-  rhoPtr = arenaAlloc(<usize>mem << 3); alphaPtr = arenaAlloc(<usize>mem << 3);
-  if (alphaPtr == 0 || xPtr == 0 || sPtr == 0 || yPtr == 0) return NaN;
-  memory.copy(xPtr, x0, bytes);
-  fx = objective(xPtr, gPtr);
-  evaluations = 1;
-  return fx;
+export function optInit(p: usize, x0: usize): f64 {
+  const o = optimiserOf(p);
+  o.stored = 0; o.newest = -1; o.evaluations = 0; o.iterations = 0;
+  memory.copy(o.x, x0, <usize>o.nVar << 3);
+  o.fx = objective(p, o.x, o.g);
+  o.evaluations = 1;
+  return o.fx;
+}
+
+/** Forget every correction pair (the next step is along the steepest descent). */
+export function forgetPairs(o: Lbfgs): void {
+  o.stored = 0; o.newest = -1;
 }
 
 /** d = -H g by the two-loop recursion. */
-function direction(): void {
-  for (let k = 0; k < nVar; k++) store<f64>(at(dPtr, k), -load<f64>(at(gPtr, k)));
-  if (stored == 0) return;
-  const bytes = <usize>nVar << 3;
-  let idx = newest;
-  for (let c = 0; c < stored; c++) {
-    const s = sPtr + <usize>idx * bytes, y = yPtr + <usize>idx * bytes;
-    const a = load<f64>(at(rhoPtr, idx)) * dot(s, dPtr, nVar);
-    store<f64>(at(alphaPtr, idx), a);
-    for (let k = 0; k < nVar; k++) store<f64>(at(dPtr, k), load<f64>(at(dPtr, k)) - a * load<f64>(at(y, k)));
+function direction(o: Lbfgs): void {
+  const n = o.nVar, mem = o.mem, d = o.d, g = o.g;
+  for (let k = 0; k < n; k++) store<f64>(at(d, k), -load<f64>(at(g, k)));
+  if (o.stored == 0) return;
+  let idx = o.newest;
+  for (let c = 0; c < o.stored; c++) {
+    const s = pairAt(o.s, o, idx), y = pairAt(o.y, o, idx);
+    const a = load<f64>(at(o.rho, idx)) * dot(s, d, n);
+    store<f64>(at(o.alpha, idx), a);
+    for (let k = 0; k < n; k++) store<f64>(at(d, k), load<f64>(at(d, k)) - a * load<f64>(at(y, k)));
     idx = idx == 0 ? mem - 1 : idx - 1;
   }
-  const sN = sPtr + <usize>newest * bytes, yN = yPtr + <usize>newest * bytes;
-  const gamma = dot(sN, yN, nVar) / dot(yN, yN, nVar);
-  for (let k = 0; k < nVar; k++) store<f64>(at(dPtr, k), gamma * load<f64>(at(dPtr, k)));
-  idx = (newest - stored + 1 + mem) % mem;
-  for (let c = 0; c < stored; c++) {
-    const s = sPtr + <usize>idx * bytes, y = yPtr + <usize>idx * bytes;
-    const b = load<f64>(at(rhoPtr, idx)) * dot(y, dPtr, nVar);
-    const a = load<f64>(at(alphaPtr, idx));
-    for (let k = 0; k < nVar; k++) store<f64>(at(dPtr, k), load<f64>(at(dPtr, k)) + (a - b) * load<f64>(at(s, k)));
+  const sN = pairAt(o.s, o, o.newest), yN = pairAt(o.y, o, o.newest);
+  const gamma = dot(sN, yN, n) / dot(yN, yN, n);
+  for (let k = 0; k < n; k++) store<f64>(at(d, k), gamma * load<f64>(at(d, k)));
+  idx = (o.newest - o.stored + 1 + mem) % mem;
+  for (let c = 0; c < o.stored; c++) {
+    const s = pairAt(o.s, o, idx), y = pairAt(o.y, o, idx);
+    const b = load<f64>(at(o.rho, idx)) * dot(y, d, n);
+    const a = load<f64>(at(o.alpha, idx));
+    for (let k = 0; k < n; k++) store<f64>(at(d, k), load<f64>(at(d, k)) + (a - b) * load<f64>(at(s, k)));
     idx = (idx + 1) % mem;
   }
 }
 
-/** Strong-Wolfe line search along d; on success xt, gt, ft hold the accepted point. */
-function lineSearch(f0: f64, dphi0: f64, alpha1: f64): bool {
+/**
+ * Strong-Wolfe line search along d, steps at most alphaMax; on success xt, gt, ft hold
+ * the accepted point. A step cut at alphaMax is accepted once it decreases enough.
+ */
+export function lineSearch(p: usize, o: Lbfgs, f0: f64, dphi0: f64, alpha1: f64, alphaMax: f64): bool {
   let aPrev: f64 = 0.0, fPrev = f0, dPrev = dphi0;
-  let alpha = alpha1;
+  let alpha = Math.min(alpha1, alphaMax);
   for (let i = 0; i < MAX_BRACKET; i++) {
-    const dphi = trial(alpha);
-    const f = ft;
+    const dphi = trial(p, o, alpha);
+    const f = o.ft;
     if (!isFinite(f)) { alpha = 0.5 * (aPrev + alpha); continue; }
-    if (f > f0 + C1 * alpha * dphi0 || (i > 0 && f >= fPrev)) return zoom(f0, dphi0, aPrev, fPrev, dPrev, alpha, f, dphi);
+    if (f > f0 + C1 * alpha * dphi0 || (i > 0 && f >= fPrev)) return zoom(p, o, f0, dphi0, aPrev, fPrev, dPrev, alpha, f, dphi);
     if (Math.abs(dphi) <= -C2 * dphi0) return true;
-    if (dphi >= 0.0) return zoom(f0, dphi0, alpha, f, dphi, aPrev, fPrev, dPrev);
+    if (dphi >= 0.0) return zoom(p, o, f0, dphi0, alpha, f, dphi, aPrev, fPrev, dPrev);
+    if (alpha >= alphaMax) return true;
     aPrev = alpha; fPrev = f; dPrev = dphi;
-    alpha *= 2.0;
+    alpha = Math.min(2.0 * alpha, alphaMax);
   }
   return false;
 }
 
-function zoom(f0: f64, dphi0: f64, lo: f64, flo: f64, dlo: f64, hi: f64, fhi: f64, dhi: f64): bool {
+function zoom(p: usize, o: Lbfgs, f0: f64, dphi0: f64, lo: f64, flo: f64, dlo: f64, hi: f64, fhi: f64, dhi: f64): bool {
   for (let j = 0; j < MAX_ZOOM; j++) {
     const alpha = cubicStep(lo, flo, dlo, hi, fhi, dhi);
-    const dphi = trial(alpha);
-    const f = ft;
+    const dphi = trial(p, o, alpha);
+    const f = o.ft;
     if (f > f0 + C1 * alpha * dphi0 || f >= flo) {
       hi = alpha; fhi = f; dhi = dphi;
     } else {
@@ -152,58 +202,97 @@ function zoom(f0: f64, dphi0: f64, lo: f64, flo: f64, dlo: f64, hi: f64, fhi: f6
     if (Math.abs(hi - lo) <= 1e-16 * Math.max(1.0, Math.abs(lo))) break;
   }
   // The interval has closed: accept the best decrease found, if any (sufficient decrease holds there).
-  if (lo > 0.0 && flo < f0) { trial(lo); return ft < f0; }
+  if (lo > 0.0 && flo < f0) { trial(p, o, lo); return o.ft < f0; }
   return false;
 }
 
-/** One L-BFGS iteration. Returns STEP_OK, STEP_GRADIENT_TOLERANCE or STEP_LINE_SEARCH_FAILED. */
-export function optStep(): i32 {
-  if (normInf(gPtr, nVar) <= gradTol) return STEP_GRADIENT_TOLERANCE;
-  direction();
-  let dphi0 = dot(gPtr, dPtr, nVar);
+/**
+ * Keep the pair s = xt - x, y = gt - g when its curvature s'y is positive enough; then
+ * move to xt. The test comes first, so a rejected pair leaves the ring as it was.
+ */
+export function acceptStep(o: Lbfgs): void {
+  const n = o.nVar, x = o.x, xt = o.xt, g = o.g, gt = o.gt;
+  let sy: f64 = 0.0, ss: f64 = 0.0, yy: f64 = 0.0;
+  for (let k = 0; k < n; k++) {
+    const s = load<f64>(at(xt, k)) - load<f64>(at(x, k));
+    const y = load<f64>(at(gt, k)) - load<f64>(at(g, k));
+    sy += s * y; ss += s * s; yy += y * y;
+  }
+  if (sy > 1e-300 && sy > 2.2e-16 * Math.sqrt(ss * yy)) {
+    const slot = (o.newest + 1) % o.mem;
+    const sP = pairAt(o.s, o, slot), yP = pairAt(o.y, o, slot);
+    for (let k = 0; k < n; k++) {
+      store<f64>(at(sP, k), load<f64>(at(xt, k)) - load<f64>(at(x, k)));
+      store<f64>(at(yP, k), load<f64>(at(gt, k)) - load<f64>(at(g, k)));
+    }
+    store<f64>(at(o.rho, slot), 1.0 / sy);
+    o.newest = slot;
+    if (o.stored < o.mem) o.stored++;
+    if (o.box != 0) lbfgsbPairAdded(o, slot);
+  }
+  memory.copy(x, xt, <usize>n << 3);
+  memory.copy(g, gt, <usize>n << 3);
+  o.fx = o.ft;
+  o.iterations++;
+}
+
+/** One iteration. Returns STEP_OK, STEP_GRADIENT_TOLERANCE or STEP_LINE_SEARCH_FAILED. */
+export function optStep(p: usize): i32 {
+  const o = optimiserOf(p);
+  if (o.box != 0) return lbfgsbStep(p, o);
+  const n = o.nVar;
+  if (normInf(o.g, n) <= o.gradTol) return STEP_GRADIENT_TOLERANCE;
+  direction(o);
+  let dphi0 = dot(o.g, o.d, n);
   if (!(dphi0 < 0.0)) {
     // Not a descent direction (curvature information went bad): restart from -g.
-    stored = 0; newest = -1;
-    direction();
-    dphi0 = dot(gPtr, dPtr, nVar);
+    forgetPairs(o);
+    direction(o);
+    dphi0 = dot(o.g, o.d, n);
   }
-  const alpha1 = stored == 0 ? Math.min(1.0, 0.5 / normInf(gPtr, nVar)) : 1.0;
-  if (!lineSearch(fx, dphi0, alpha1)) {
-    if (stored == 0) return STEP_LINE_SEARCH_FAILED;
+  const alpha1 = o.stored == 0 ? Math.min(1.0, 0.5 / normInf(o.g, n)) : 1.0;
+  if (!lineSearch(p, o, o.fx, dphi0, alpha1, Infinity)) {
+    if (o.stored == 0) return STEP_LINE_SEARCH_FAILED;
     // Retry once along steepest descent with the memory cleared.
-    stored = 0; newest = -1;
-    direction();
-    dphi0 = dot(gPtr, dPtr, nVar);
-    if (!lineSearch(fx, dphi0, Math.min(1.0, 0.5 / normInf(gPtr, nVar)))) return STEP_LINE_SEARCH_FAILED;
+    forgetPairs(o);
+    direction(o);
+    dphi0 = dot(o.g, o.d, n);
+    if (!lineSearch(p, o, o.fx, dphi0, Math.min(1.0, 0.5 / normInf(o.g, n)), Infinity)) return STEP_LINE_SEARCH_FAILED;
   }
-  // New pair s = xt - x, y = gt - g, kept only when the curvature s'y is positive.
-  const bytes = <usize>nVar << 3;
-  const slot = (newest + 1) % mem;
-  const s = sPtr + <usize>slot * bytes, y = yPtr + <usize>slot * bytes;
-  for (let k = 0; k < nVar; k++) {
-    store<f64>(at(s, k), load<f64>(at(xtPtr, k)) - load<f64>(at(xPtr, k)));
-    store<f64>(at(y, k), load<f64>(at(gtPtr, k)) - load<f64>(at(gPtr, k)));
-  }
-  const sy = dot(s, y, nVar);
-  if (sy > 1e-300 && sy > 2.2e-16 * Math.sqrt(dot(s, s, nVar) * dot(y, y, nVar))) {
-    store<f64>(at(rhoPtr, slot), 1.0 / sy);
-    newest = slot;
-    if (stored < mem) stored++;
-  }
-  memory.copy(xPtr, xtPtr, bytes);
-  memory.copy(gPtr, gtPtr, bytes);
-  fx = ft;
-  iterations++;
+  acceptStep(o);
   return STEP_OK;
 }
 
+/**
+ * Move the optimiser to the variables at xPtr: evaluate there and accept the point as
+ * the next iterate, offering the pair like a step would (re-centring, tests). With
+ * `forget` the correction pairs are dropped after the move. Returns the objective there.
+ */
+export function optMoveTo(p: usize, xPtr: usize, forget: bool): f64 {
+  const o = optimiserOf(p);
+  memory.copy(o.xt, xPtr, <usize>o.nVar << 3);
+  o.ft = objective(p, o.xt, o.gt);
+  o.evaluations++;
+  acceptStep(o);
+  o.iterations--;
+  if (forget) forgetPairs(o);
+  return o.fx;
+}
+
 /** Objective at the current point. */
-export function optObjective(): f64 { return fx; }
-/** Infinity norm of the gradient at the current point. */
-export function optGradientNorm(): f64 { return normInf(gPtr, nVar); }
+export function optObjective(p: usize): f64 { return optimiserOf(p).fx; }
+/** Infinity norm of the gradient (projected onto the box for the box bound) at the current point. */
+export function optGradientNorm(p: usize): f64 {
+  const o = optimiserOf(p);
+  return o.box != 0 ? projectedGradientNorm(o) : normInf(o.g, o.nVar);
+}
 /** Pointer to the current variables. */
-export function optVariables(): usize { return xPtr; }
+export function optVariables(p: usize): usize { return optimiserOf(p).x; }
+/** Pointer to the gradient at the current variables. */
+export function optGradient(p: usize): usize { return optimiserOf(p).g; }
 /** Objective evaluations so far. */
-export function optEvaluations(): i32 { return evaluations; }
+export function optEvaluations(p: usize): i32 { return optimiserOf(p).evaluations; }
 /** Iterations so far. */
-export function optIterations(): i32 { return iterations; }
+export function optIterations(p: usize): i32 { return optimiserOf(p).iterations; }
+/** Correction pairs held (for tests of the memory). */
+export function optStoredPairs(p: usize): i32 { return optimiserOf(p).stored; }

@@ -2,15 +2,18 @@
 // Bloch trajectories. The same code serves the command line (Node) and the app's
 // workers. Validation happens here; the kernels trust what they are given.
 import { ArgumentError, describeValue } from './errors.ts';
-import { checkPulse, encodeMembers, encodeTarget, targetMode } from './encode.ts';
+import { BUFFER, createBlock, readBuffer, setSamples } from './block.ts';
+import { checkPulse, encodeMembers, encodeTarget, type EncodedMembers } from './encode.ts';
+import { StartRun } from './run.ts';
+import { checkProblemAngles, checkPulseAngles } from './limits.ts';
+import { checkProblem, checkTarget } from './problem-check.ts';
 import { bestStart } from './best-start.ts';
 import { axisValues, checkRegion } from './grid.ts';
 import { parseSpec } from './spec.ts';
 import type {
   DesignResult, Evaluation, GridAxis, Member, Problem, Progress, Pulse, StartResult, StopReason, Target,
 } from './types.ts';
-import { getCore, loadCore, STEP_GRADIENT_TOLERANCE, STEP_LINE_SEARCH_FAILED } from './wasm.ts';
-import { initialVariables } from './start.ts';
+import { getCore, loadCore } from './wasm.ts';
 
 /** Options of a design run. */
 export interface DesignOptions {
@@ -43,9 +46,9 @@ function isProblem(spec: unknown): spec is Problem {
     && typeof p.target === 'object' && p.target !== null && 'kind' in p.target;
 }
 
-/** A Problem as given, or the spec JSON validated into one. */
+/** A Problem checked with the spec's rules, or the spec JSON validated into one. */
 export function toProblem(spec: unknown): Problem {
-  return isProblem(spec) ? spec : parseSpec(spec);
+  return isProblem(spec) ? checkProblem(spec) : parseSpec(spec);
 }
 
 /** Evaluate a pulse on a spec's (or problem's) ensemble and target. */
@@ -56,9 +59,11 @@ export function evaluate(spec: unknown, pulse: Pulse): Evaluation {
 
 /** Evaluate a pulse for a target on explicit members (weights normalised here). */
 export function evaluateMembers(target: Target, pulse: Pulse, members: Member[]): Evaluation {
+  checkTarget(target);
   checkPulse(pulse);
-  const enc = encodeMembers(members, 4, true);
-  const perMember = figures(target, pulse, enc.scale, enc.detuning, enc.weight);
+  const enc = encodeMembers(members, 2, true);
+  checkPulseAngles(pulse, members);
+  const perMember = figures(target, pulse, enc);
   let mean = 0;
   let worstIndex = 0;
   const out = members.map((m, j) => {
@@ -69,18 +74,15 @@ export function evaluateMembers(target: Target, pulse: Pulse, members: Member[])
   return { members: out, meanInfidelity: mean, worstInfidelity: perMember[worstIndex], worstIndex };
 }
 
-/** Per-member infidelities from the core (arrays padded to a multiple of 4). */
-function figures(target: Target, pulse: Pulse, scale: Float64Array, detuning: Float64Array, weight: Float64Array): Float64Array {
+/** Per-member infidelities from the core (members padded to the system's multiple). */
+function figures(target: Target, pulse: Pulse, enc: EncodedMembers): Float64Array {
   const core = getCore();
   const n = pulse.i.length;
-  const m = scale.length;
   return core.job(() => {
-    const iPtr = core.put(pulse.i), qPtr = core.put(pulse.q);
-    const sPtr = core.put(scale), dPtr = core.put(detuning), wPtr = core.put(weight);
-    const tPtr = core.put(encodeTarget(target));
-    const outPtr = core.alloc(m);
-    core.exports.ensembleFigure(iPtr, qPtr, n, pulse.dt, sPtr, dPtr, wPtr, m, tPtr, targetMode(target), outPtr);
-    return core.read(outPtr, m);
+    const p = createBlock(core, { target, segments: n, dt: pulse.dt, members: enc });
+    setSamples(core, p, pulse.i, pulse.q);
+    core.exports.problemFigure(p);
+    return readBuffer(core, p, BUFFER.perMember, enc.padded);
   });
 }
 
@@ -89,21 +91,24 @@ const MAP_CHUNK = 8192;
 
 /** Infidelity of a pulse on a detuning x amplitude-error grid. */
 export function robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): RobustnessMap {
+  checkTarget(target);
   checkPulse(pulse);
   checkRegion({ detuning, amplitudeError });
+  const far = Math.max(Math.abs(detuning.min), Math.abs(detuning.max));
+  checkPulseAngles(pulse, [{ detuning: far, amplitudeError: amplitudeError.max, weight: 1 }, { detuning: far, amplitudeError: amplitudeError.min, weight: 1 }]);
   const dv = axisValues(detuning), av = axisValues(amplitudeError);
   const total = dv.length * av.length;
   const infidelity = new Float64Array(total);
   for (let start = 0; start < total; start += MAP_CHUNK) {
     const count = Math.min(MAP_CHUNK, total - start);
-    const padded = Math.ceil(count / 4) * 4;
+    const padded = Math.ceil(count / 2) * 2;
     const scale = new Float64Array(padded), det = new Float64Array(padded), weight = new Float64Array(padded);
     for (let j = 0; j < padded; j++) {
       const idx = start + Math.min(j, count - 1);
       scale[j] = 1 + av[Math.floor(idx / dv.length)];
       det[j] = dv[idx % dv.length];
     }
-    infidelity.set(figures(target, pulse, scale, det, weight).subarray(0, count), start);
+    infidelity.set(figures(target, pulse, { count, padded, scale, detuning: det, weight }).subarray(0, count), start);
   }
   return { detuning: { ...detuning }, amplitudeError: { ...amplitudeError }, infidelity };
 }
@@ -111,8 +116,10 @@ export function robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, 
 /** Bloch vector after each sample, 3*(N+1) values starting with `from`. */
 export function blochTrajectory(pulse: Pulse, member: Member, from: [number, number, number]): Float64Array {
   checkPulse(pulse);
+  encodeMembers([member], 2, false);
+  checkPulseAngles(pulse, [member]);
   const norm = Math.hypot(from[0], from[1], from[2]);
-  if (!(norm > 0)) throw new ArgumentError(`from: ${describeValue(from)} is not allowed; give a non-zero Bloch vector`);
+  if (!(norm > 0) || !Number.isFinite(norm)) throw new ArgumentError(`from: ${describeValue(from)} is not allowed; give a non-zero Bloch vector of finite numbers`);
   const core = getCore();
   const n = pulse.i.length;
   return core.job(() => {
@@ -141,16 +148,16 @@ function yieldToEventLoop(): Promise<void> {
 
 const YIELD_EVERY_MS = 15;
 
-// The optimiser's state lives in the core's globals: designs on one core run one after
-// another (short jobs such as maps may still run while a design waits between iterations).
-let designQueue: Promise<unknown> = Promise.resolve();
-
-/** Design a pulse by ensemble GRAPE with L-BFGS. */
+/** Design a pulse by ensemble GRAPE with L-BFGS (each start on its own problem block, so designs run side by side). */
 export function design(spec: unknown, options: DesignOptions = {}): Promise<DesignResult> {
-  const problem = toProblem(spec);
-  const run = designQueue.then(() => designNow(problem, options));
-  designQueue = run.catch(() => undefined);
-  return run;
+  try {
+    const problem = toProblem(spec);
+    // Refused (SegmentAngleError) when a segment at the bound could turn a member further than the core computes exactly.
+    checkProblemAngles(problem);
+    return designNow(problem, options);
+  } catch (error) {
+    return Promise.reject(error);
+  }
 }
 
 async function designNow(problem: Problem, options: DesignOptions): Promise<DesignResult> {
@@ -186,29 +193,11 @@ function bestOfStarts(problem: Problem, starts: StartResult[], t0: number): Desi
 
 /** One optimiser start; ends on a stop criterion, the signal, or the time left. */
 async function runStart(problem: Problem, start: number, options: DesignOptions, t0: number, timeLeftS: number): Promise<StartResult> {
-  const core = getCore();
-  const ex = core.exports;
-  const { segments: n, dt, rabiMax, constraints, optimizer } = problem;
-  // Pairs of members; the gradient kernel takes a last pair alone (assembly/gradient.ts).
-  const enc = encodeMembers(problem.members, 2, true);
+  const { dt, rabiMax, constraints, optimizer } = problem;
   const tStart = performance.now();
   const deadline = tStart + Math.max(0, timeLeftS) * 1000;
-
-  // The start's buffers live above this mark until it ends; short jobs run during its
-  // waits nest above them (see Core.job).
-  const mark = core.mark();
+  const run = new StartRun(problem, start);
   try {
-    const iPtr = core.alloc(n), qPtr = core.alloc(n);
-    const sPtr = core.put(enc.scale), dPtr = core.put(enc.detuning), wPtr = core.put(enc.weight);
-    const tPtr = core.put(encodeTarget(problem.target));
-    const outPtr = core.alloc(enc.padded), gIPtr = core.alloc(n), gQPtr = core.alloc(n), workPtr = core.alloc(12 * n);
-    const nVar = ex.problemSet(n, dt, rabiMax, constraints.bound === 'box' ? 1 : 0, constraints.zeroEdges ? 1 : 0,
-      constraints.smoothness, targetMode(problem.target), enc.padded, iPtr, qPtr, sPtr, dPtr, wPtr, tPtr, outPtr, gIPtr, gQPtr, workPtr);
-    const x0 = core.put(initialVariables(problem, start, nVar));
-    const f0 = ex.optInit(x0, nVar, optimizer.memory, optimizer.gradientTolerance);
-    if (Number.isNaN(f0)) throw new RangeError(`the core ran out of memory for ${n} segments x ${enc.padded} members`);
-
-    let iteration = 0;
     let stopReason: StopReason = 'max-iterations';
     let lastYield = performance.now();
     let lastPulse = -Infinity;
@@ -216,46 +205,38 @@ async function runStart(problem: Problem, start: number, options: DesignOptions,
       if (!options.onProgress) return;
       const now = performance.now();
       const progress: Progress = {
-        start, iteration, meanInfidelity: ex.problemInfidelity(), objective: ex.optObjective(),
-        gradientNorm: ex.optGradientNorm(), elapsedS: (now - t0) / 1000,
+        start, iteration: run.iterations, meanInfidelity: run.infidelity, objective: run.objective,
+        gradientNorm: run.gradientNorm, elapsedS: (now - t0) / 1000,
       };
       if (options.progressPulseEveryMs !== undefined && now - lastPulse >= options.progressPulseEveryMs) {
         lastPulse = now;
-        progress.pulse = { i: core.read(iPtr, n), q: core.read(qPtr, n) };
+        progress.pulse = run.samples();
       }
       options.onProgress(progress);
     };
     report();
     for (;;) {
-      if (ex.problemInfidelity() <= optimizer.targetInfidelity) { stopReason = 'target-reached'; break; }
+      if (run.infidelity <= optimizer.targetInfidelity) { stopReason = 'target-reached'; break; }
       if (options.signal?.aborted) { stopReason = 'stopped'; break; }
-      if (iteration >= optimizer.maxIterations) { stopReason = 'max-iterations'; break; }
+      if (run.iterations >= optimizer.maxIterations) { stopReason = 'max-iterations'; break; }
       if (performance.now() >= deadline) { stopReason = 'time-limit'; break; }
-      const status = ex.optStep();
-      if (status === STEP_GRADIENT_TOLERANCE) { stopReason = 'gradient-tolerance'; break; }
-      if (status === STEP_LINE_SEARCH_FAILED) { stopReason = 'line-search-failed'; break; }
-      iteration++;
+      const stop = run.step();
+      if (stop) { stopReason = stop; break; }
       report();
       if (performance.now() - lastYield > YIELD_EVERY_MS) {
         await yieldToEventLoop();
         lastYield = performance.now();
       }
     }
-    // Samples of the accepted point (the last trial of a line search may differ).
-    ex.controlsFromVariables(ex.optVariables());
-    const pulse: Pulse = {
-      dt,
-      i: core.read(iPtr, n),
-      q: core.read(qPtr, n),
-      metadata: { origin: 'design', name: `design start ${start}` },
-    };
+    const samples = run.samples();
+    const pulse: Pulse = { dt, i: samples.i, q: samples.q, metadata: { origin: 'design', name: `design start ${start}` } };
     holdBound(pulse, rabiMax, constraints.bound);
     return {
-      start, pulse, meanInfidelity: ex.problemInfidelity(), objective: ex.optObjective(),
-      iterations: iteration, evaluations: ex.optEvaluations(), stopReason, elapsedS: (performance.now() - tStart) / 1000,
+      start, pulse, meanInfidelity: run.infidelity, objective: run.objective,
+      iterations: run.iterations, evaluations: run.evaluations, stopReason, elapsedS: (performance.now() - tStart) / 1000,
     };
   } finally {
-    core.release(mark);
+    run.dispose();
   }
 }
 

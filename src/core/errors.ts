@@ -27,6 +27,20 @@ export class ArgumentError extends Error {
   override name = 'ArgumentError';
 }
 
+/**
+ * A value the core cannot compute exactly: a segment whose rotation angle is beyond what
+ * the series and double-angle path of the kernels handle (assembly/su2.ts).
+ */
+export class SegmentAngleError extends Error {
+  override name = 'SegmentAngleError';
+  /** The field or argument to change, e.g. "rabiMax" or "pulse.i[12]". */
+  readonly field: string;
+  constructor(field: string, message: string) {
+    super(message);
+    this.field = field;
+  }
+}
+
 /** A short printable form of a bad value for error messages. */
 export function describeValue(value: unknown): string {
   if (value === undefined) return 'missing value';

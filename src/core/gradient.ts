@@ -1,6 +1,9 @@
 // The ensemble figure and its exact gradient from the wasm core, as plain arrays:
 // for tests against the oracle and for the benchmark (which re-runs a prepared job).
-import { checkPulse, encodeMembers, encodeTarget, targetMode } from './encode.ts';
+import { BUFFER, createBlock, readBuffer, setSamples } from './block.ts';
+import { checkPulse, encodeMembers } from './encode.ts';
+import { checkPulseAngles } from './limits.ts';
+import { checkTarget } from './problem-check.ts';
 import type { Member, Pulse, Target } from './types.ts';
 import { getCore } from './wasm.ts';
 
@@ -16,26 +19,35 @@ export interface FigureGradient {
 export interface GradientJob {
   run(): number;
   result(): FigureGradient;
+  /** Series settings of the last run: terms and halvings (assembly/qubit.ts). */
+  series(): { terms: number; halvings: number };
   dispose(): void;
 }
 
-/** Place pulse, members and target in the core for repeated gradient evaluations. */
+/** Place pulse, members and target in a held problem block for repeated gradient evaluations. */
 export function prepareGradientJob(target: Target, pulse: Pulse, members: Member[]): GradientJob {
+  checkTarget(target);
   checkPulse(pulse);
   const core = getCore();
   const n = pulse.i.length;
   const enc = encodeMembers(members, 2, true);
-  const mark = core.mark();
-  const iPtr = core.put(pulse.i), qPtr = core.put(pulse.q);
-  const sPtr = core.put(enc.scale), dPtr = core.put(enc.detuning), wPtr = core.put(enc.weight);
-  const tPtr = core.put(encodeTarget(target));
-  const outPtr = core.alloc(enc.padded), gIPtr = core.alloc(n), gQPtr = core.alloc(n), workPtr = core.alloc(12 * n);
-  const mode = targetMode(target);
-  const run = (): number => core.exports.ensembleGradient(iPtr, qPtr, n, pulse.dt, sPtr, dPtr, wPtr, enc.padded, tPtr, mode, outPtr, gIPtr, gQPtr, workPtr);
+  checkPulseAngles(pulse, members);
+  const p = createBlock(core, { target, segments: n, dt: pulse.dt, members: enc, held: true });
+  setSamples(core, p, pulse.i, pulse.q);
+  const run = (): number => core.exports.problemGradient(p);
   return {
     run,
-    result: () => ({ mean: run(), perMember: core.read(outPtr, enc.count), gradI: core.read(gIPtr, n), gradQ: core.read(gQPtr, n) }),
-    dispose: () => core.release(mark),
+    result: () => ({
+      mean: run(),
+      perMember: readBuffer(core, p, BUFFER.perMember, enc.count),
+      gradI: readBuffer(core, p, BUFFER.gradI, n),
+      gradQ: readBuffer(core, p, BUFFER.gradQ, n),
+    }),
+    series: () => {
+      const packed = core.exports.problemSeries(p);
+      return { terms: packed & 0xff, halvings: packed >> 8 };
+    },
+    dispose: () => core.exports.problemFree(p),
   };
 }
 

@@ -5,6 +5,7 @@
 import { SpecError } from './errors.ts';
 import { parseEnsemble } from './spec-ensemble.ts';
 import { childPath, readBoolean, readChoice, readNumber, readObject, readText, readUnitVector } from './spec-fields.ts';
+import type { NumberRule } from './spec-fields.ts';
 import type { Constraints, OptimizerSettings, Problem, Target } from './types.ts';
 
 /** Most segments a pulse may have. */
@@ -89,21 +90,33 @@ function parseConstraints(value: unknown, segments: number): Constraints {
   };
 }
 
+/** The rules of the `optimizer` fields, shared by parseSpec and checkProblem. */
+export const OPTIMIZER_RULES: Readonly<Record<keyof OptimizerSettings, NumberRule>> = {
+  starts: { integer: true, min: 1, max: 64 },
+  // A 32-bit unsigned seed fits every generator the core may use.
+  seed: { integer: true, min: 0, max: 4294967295 },
+  maxIterations: { integer: true, min: 1, max: 100000 },
+  targetInfidelity: { min: 0, max: 1 },
+  gradientTolerance: { min: 0 },
+  timeLimit: { min: 0, minExclusive: true, unit: 's' },
+  memory: { integer: true, min: 1, max: 100 },
+};
+
 function parseOptimizer(value: unknown): OptimizerSettings {
   const path = 'optimizer';
   if (value === undefined) return { ...DEFAULT_OPTIMIZER };
-  const keys = ['starts', 'seed', 'maxIterations', 'targetInfidelity', 'gradientTolerance', 'timeLimit', 'memory'];
+  const keys = Object.keys(OPTIMIZER_RULES);
   const obj = readObject(value, path, keys, 'the optimizer settings');
   const d = DEFAULT_OPTIMIZER;
+  const r = OPTIMIZER_RULES;
   return {
-    starts: readNumber(obj, 'starts', path, { integer: true, min: 1, max: 64 }, d.starts),
-    // A 32-bit unsigned seed fits every generator the core may use.
-    seed: readNumber(obj, 'seed', path, { integer: true, min: 0, max: 4294967295 }, d.seed),
-    maxIterations: readNumber(obj, 'maxIterations', path, { integer: true, min: 1, max: 100000 }, d.maxIterations),
-    targetInfidelity: readNumber(obj, 'targetInfidelity', path, { min: 0, max: 1 }, d.targetInfidelity),
-    gradientTolerance: readNumber(obj, 'gradientTolerance', path, { min: 0 }, d.gradientTolerance),
+    starts: readNumber(obj, 'starts', path, r.starts, d.starts),
+    seed: readNumber(obj, 'seed', path, r.seed, d.seed),
+    maxIterations: readNumber(obj, 'maxIterations', path, r.maxIterations, d.maxIterations),
+    targetInfidelity: readNumber(obj, 'targetInfidelity', path, r.targetInfidelity, d.targetInfidelity),
+    gradientTolerance: readNumber(obj, 'gradientTolerance', path, r.gradientTolerance, d.gradientTolerance),
     // null is accepted as "no limit" because JSON cannot spell Infinity.
-    timeLimit: obj.timeLimit === null ? Infinity : readNumber(obj, 'timeLimit', path, { min: 0, minExclusive: true, unit: 's' }, d.timeLimit),
-    memory: readNumber(obj, 'memory', path, { integer: true, min: 1, max: 100 }, d.memory),
+    timeLimit: obj.timeLimit === null ? Infinity : readNumber(obj, 'timeLimit', path, r.timeLimit, d.timeLimit),
+    memory: readNumber(obj, 'memory', path, r.memory, d.memory),
   };
 }

@@ -8,6 +8,7 @@ import { Worker } from 'node:worker_threads';
 import { design, toProblem } from './api.ts';
 import { mergeDesigns } from './best-start.ts';
 import type { DesignOptions } from './api.ts';
+import { checkProblemAngles } from './limits.ts';
 import type { DesignResult, Progress } from './types.ts';
 
 /** Messages from a design thread. */
@@ -25,6 +26,7 @@ export interface ThreadedDesignOptions extends DesignOptions {
 /** Design a pulse with the starts spread over worker threads; one thread runs in-process. */
 export async function designInThreads(spec: unknown, options: ThreadedDesignOptions = {}): Promise<DesignResult> {
   const problem = toProblem(spec);
+  checkProblemAngles(problem);
   const indices = options.startIndices ?? Array.from({ length: problem.optimizer.starts }, (_, k) => k);
   const threads = Math.max(1, Math.min(options.threads ?? availableParallelism(), indices.length));
   if (threads === 1) return design(problem, options);

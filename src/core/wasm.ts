@@ -1,36 +1,38 @@
 // Loading the wasm core and moving arrays in and out of its memory: the one place on
 // the TypeScript side that touches wasm memory (see assembly/memory.ts for the layout).
 
-/** The functions the core exports (assembly/index.ts). */
+/** The functions the core exports (assembly/index.ts); `p` is a problem block (assembly/problem.ts). */
 export interface CoreExports {
   memory: WebAssembly.Memory;
   arenaReset(): void;
   arenaAlloc(bytes: number): number;
   arenaUsed(): number;
   arenaRelease(used: number): void;
-  ensembleFigure(iPtr: number, qPtr: number, n: number, dt: number, scalePtr: number, detPtr: number,
-    wPtr: number, m: number, targetPtr: number, mode: number, outPtr: number): number;
-  ensembleGradient(iPtr: number, qPtr: number, n: number, dt: number, scalePtr: number, detPtr: number,
-    wPtr: number, m: number, targetPtr: number, mode: number, outPtr: number,
-    gIPtr: number, gQPtr: number, workPtr: number): number;
+  problemCreate(system: number, dim: number, mode: number, n: number, dt: number, m: number,
+    drive: number, nDrive: number, driveDt: number, driveValues: number,
+    bound: number, zeroEdges: number, rabiMax: number, smoothness: number,
+    memory: number, gradientTolerance: number, held: number): number;
+  problemFree(p: number): void;
+  problemBuffer(p: number, which: number): number;
+  problemFigure(p: number): number;
+  problemGradient(p: number): number;
+  problemInfidelity(p: number): number;
+  problemVariables(p: number): number;
+  problemSeries(p: number): number;
+  controlsFromVariables(p: number, xPtr: number): void;
+  objective(p: number, xPtr: number, gPtr: number): number;
   blochPath(iPtr: number, qPtr: number, n: number, dt: number, scale: number, detuning: number,
     targetPtr: number, outPtr: number): void;
-  currentSeriesTerms(): number;
-  currentHalvings(): number;
-  problemSet(n: number, dt: number, rabiMax: number, box: number, zeroEdges: number, smoothness: number,
-    mode: number, m: number, iPtr: number, qPtr: number, scalePtr: number, detPtr: number, wPtr: number,
-    targetPtr: number, outPtr: number, gIPtr: number, gQPtr: number, workPtr: number): number;
-  problemVariables(): number;
-  problemInfidelity(): number;
-  controlsFromVariables(xPtr: number): void;
-  objective(xPtr: number, gPtr: number): number;
-  optInit(x0: number, n: number, memory: number, gradientTolerance: number): number;
-  optStep(): number;
-  optObjective(): number;
-  optGradientNorm(): number;
-  optVariables(): number;
-  optEvaluations(): number;
-  optIterations(): number;
+  optInit(p: number, x0: number): number;
+  optStep(p: number): number;
+  optObjective(p: number): number;
+  optGradientNorm(p: number): number;
+  optVariables(p: number): number;
+  optGradient(p: number): number;
+  optEvaluations(p: number): number;
+  optIterations(p: number): number;
+  optStoredPairs(p: number): number;
+  optMoveTo(p: number, xPtr: number, forget: number): number;
 }
 
 /** Status codes of optStep (assembly/lbfgs.ts). */

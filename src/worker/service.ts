@@ -111,7 +111,7 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
   const running = new Set<AbortController>();
   const ensureLoaded = () => (loading ??= (options.load ?? (async () => undefined))());
   // Jobs need the loaded core; stop and checkSpec do not and stay immediate. Jobs may
-  // overlap: the library nests short jobs above a waiting design and queues designs.
+  // overlap: each job and each design start has its own problem block in the core.
   const withCore = <T>(job: () => T | Promise<T>): Promise<T> => ensureLoaded().then(job);
 
   return {

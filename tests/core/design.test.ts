@@ -54,6 +54,26 @@ describe('design', () => {
     expect(result.evaluation.meanInfidelity).toBeCloseTo(seen[abortedAt].meanInfidelity, 12);
   });
 
+  it('progress can carry the accepted pulse at every iteration; the last one is the pulse a stop returns', async () => {
+    // What a front end keeps when it ends a run by terminating its worker.
+    const controller = new AbortController();
+    const seen: Progress[] = [];
+    const result = await design({ ...baseSpec, optimizer: { starts: 1, seed: 1, maxIterations: 1000 } }, {
+      signal: controller.signal,
+      progressPulseEveryMs: 0,
+      onProgress: (p) => {
+        seen.push(p);
+        if (p.iteration === 30) controller.abort();
+      },
+    });
+    expect(seen.every((p) => p.pulse !== undefined && p.pulse.i.length === 100)).toBe(true);
+    const last = seen[seen.length - 1].pulse!;
+    expect(Array.from(last.i)).toEqual(Array.from(result.pulse.i));
+    expect(Array.from(last.q)).toEqual(Array.from(result.pulse.q));
+    // Its figure is the one reported with it.
+    expect(evaluate(baseSpec, { ...result.pulse, i: last.i, q: last.q }).meanInfidelity).toBeCloseTo(seen[seen.length - 1].meanInfidelity, 14);
+  });
+
   it('never exceeds the amplitude bound; the box is used only when named', async () => {
     const disc = await design({ ...baseSpec, rabiMax: 4e6 });
     for (let k = 0; k < disc.pulse.i.length; k++) expect(Math.hypot(disc.pulse.i[k], disc.pulse.q[k])).toBeLessThanOrEqual(4e6);
@@ -108,8 +128,8 @@ describe('design', () => {
   });
 
   it('maps and evaluations run while a design waits, and two designs at once, change nothing', async () => {
-    // The core has one arena and one optimiser state: short jobs nest above a running
-    // start's buffers, and designs queue (src/core/api.ts); both leave the result as alone.
+    // Each job and each design start has its own problem block (assembly/problem.ts):
+    // short jobs nest above a running start's block and two designs run side by side.
     const alone = await design(baseSpec);
     const probe = { kind: 'gate' as const, axis: [1, 0, 0] as [number, number, number], angleRad: Math.PI / 2 };
     let maps = 0;
