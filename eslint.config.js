@@ -7,7 +7,7 @@ import globals from 'globals';
 import svelteConfig from './svelte.config.js';
 
 export default tseslint.config(
-  { ignores: ['node_modules/', 'dist/', 'build/', 'assembly/', 'test-results/'] },
+  { ignores: ['node_modules/', 'dist/', 'dist.*/', 'build/', 'assembly/', 'test-results/'] },
   js.configs.recommended,
   ...tseslint.configs.recommended,
   ...svelte.configs.recommended,

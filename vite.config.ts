@@ -18,10 +18,11 @@ export default defineConfig({
   preview: { host: '127.0.0.1' },
   // Every asset, the wasm included, is served from the page's origin: nothing inlined as
   // data: URLs (the CSP allows only 'self') and nothing fetched from elsewhere.
-  build: { outDir: 'dist', assetsInlineLimit: 0, target: 'es2022', chunkSizeWarningLimit: 1024 },
+  build: { outDir: 'build/app', assetsInlineLimit: 0, target: 'es2022', chunkSizeWarningLimit: 1024 },
   worker: { format: 'es' },
   test: {
     include: ['tests/**/*.test.ts'],
+    globalSetup: ['tests/global-setup.ts'],
     testTimeout: 60_000,
     pool: 'forks',
   },

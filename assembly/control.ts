@@ -11,7 +11,7 @@
 // and last samples are held at zero and carry no variable.
 
 import { Problem, BOUND_BOX } from './problem';
-import { driveForward, driveTranspose } from './drive';
+import { driveForward, driveTranspose, drivePenalty } from './drive';
 import { systemFigure, systemGradient } from './system';
 
 const TANH_CAP: f64 = 1.0 - 8.881784197001252e-16;
@@ -82,6 +82,11 @@ function smoothnessPenalty(p: Problem): f64 {
   return scale * sum;
 }
 
+/** The drive the system sees from the problem's samples (the drive stage alone). */
+export function problemDrive(ptr: usize): void {
+  driveForward(changetype<Problem>(ptr));
+}
+
 /** Figure of the problem's samples: drive stage, then the system's figure (maps, evaluations). */
 export function problemFigure(ptr: usize): f64 {
   const p = changetype<Problem>(ptr);
@@ -101,12 +106,17 @@ export function problemGradient(ptr: usize): f64 {
   return fig;
 }
 
-/** Objective (mean infidelity + penalty) at x; writes its gradient with respect to x to g. */
+/** Objective (mean infidelity + smoothness penalty + the drive's own penalty) at x; writes its gradient with respect to x to g. */
 export function objective(ptr: usize, xPtr: usize, gPtr: usize): f64 {
   const p = changetype<Problem>(ptr);
   controlsFromVariables(ptr, xPtr);
-  const fig = problemGradient(ptr);
-  const pen = smoothnessPenalty(p);
+  driveForward(p);
+  const fig = systemGradient(p);
+  p.infidelity = fig;
+  // The drive's own penalty acts on d/d(drive), so it joins before the transpose.
+  const drivePen = drivePenalty(p);
+  driveTranspose(p);
+  const pen = smoothnessPenalty(p) + drivePen;
   const rabiMax = p.rabiMax;
   const box = p.bound == BOUND_BOX;
   for (let f = 0; f < p.free; f++) {

@@ -4,16 +4,19 @@
 // The pipeline of every figure and gradient is
 //   optimiser variables -> bounded samples (control.ts) -> drive (forward)
 //   -> system figure / gradient (system.ts) -> transpose -> chain rule (control.ts).
-// Today the map is the identity: the drive buffers alias the sample buffers (problem.ts),
-// so both directions cost nothing. To add a map (a line: samples held, oversampled,
-// convolved with a kernel), add a kind, its nDrive and driveDt in driveSamples/driveStep
-// (the block then gets separate drive buffers), its parameters in p.driveData
-// (p.driveValues f64, filled from JavaScript), and one case in each function below.
+// The identity map aliases the drive buffers to the sample buffers (problem.ts), so both
+// directions cost nothing. A line (line.ts: samples held on a finer grid and convolved
+// with the line's kernel) has drive buffers of its own and its parameters in p.driveData,
+// filled from JavaScript. To add a map: a kind, its parameters, one case in each function
+// below.
 
 import { Problem } from './problem';
+import { lineForward, lineTranspose, lineBoundPenalty } from './line';
 
 /** The drive is the samples themselves. */
 export const DRIVE_IDENTITY: i32 = 0;
+/** The samples held on dt / oversample and convolved with a line's kernel (line.ts). */
+export const DRIVE_LINE: i32 = 1;
 
 /** Whether the drive of a kind has buffers of its own (false: it aliases the samples). */
 export function driveHasBuffers(kind: i32): bool {
@@ -24,6 +27,7 @@ export function driveHasBuffers(kind: i32): bool {
 export function driveForward(p: Problem): void {
   switch (p.drive) {
     case DRIVE_IDENTITY: return;
+    case DRIVE_LINE: lineForward(p); return;
     default: return;
   }
 }
@@ -32,6 +36,15 @@ export function driveForward(p: Problem): void {
 export function driveTranspose(p: Problem): void {
   switch (p.drive) {
     case DRIVE_IDENTITY: return;
+    case DRIVE_LINE: lineTranspose(p); return;
     default: return;
+  }
+}
+
+/** A penalty on the drive itself (the line's drive bound), its gradient added to p.gradDriveI/Q; 0 for the identity. */
+export function drivePenalty(p: Problem): f64 {
+  switch (p.drive) {
+    case DRIVE_LINE: return lineBoundPenalty(p);
+    default: return 0.0;
   }
 }

@@ -5,7 +5,7 @@
 export { arenaReset, arenaAlloc, arenaRelease, arenaUsed } from './memory';
 export { problemCreate, problemFree, problemBuffer } from './problem';
 export {
-  problemFigure, problemGradient, problemInfidelity, problemVariables, problemSeries,
+  problemFigure, problemGradient, problemDrive, problemInfidelity, problemVariables, problemSeries,
   controlsFromVariables, objective,
 } from './control';
 export { blochPath } from './qubit';

@@ -1,15 +1,21 @@
 // The benchmark: speed figures measured in one run, printed as a table (or one JSON
 // object with --json). Never a test: figures vary 10-30 % with the machine's load.
 //   npm run bench            table for people
-//   npm run bench -- --json  {"objectiveGradient": [...], "design": [...], "maps": [...], "app": {...}}
+//   npm run bench -- --json  {"objectiveGradient": [...], "design": [...], "maps": [...], "line": {...}, "app": {...}}
 //   npm run bench -- --no-app  without the browser figures (bench/app-bench.ts)
+//   npm run bench -- --no-command  without the command's start-up and Ctrl-C figures (bench/command-bench.ts)
 import { readFileSync, readdirSync } from 'node:fs';
 import { design, evaluateMembers, robustnessMap } from '../src/core/api.ts';
+import { createBlock, freeBlock, setSamples } from '../src/core/block.ts';
+import { encodeMembers } from '../src/core/encode.ts';
 import { prepareGradientJob } from '../src/core/gradient.ts';
 import { heldSpectrum } from '../src/core/spectrum.ts';
-import type { Member, Pulse, Target } from '../src/core/types.ts';
+import { FFT_CROSSOVER, lineLayout } from '../src/core/line.ts';
+import type { Line, Member, Pulse, Target } from '../src/core/types.ts';
+import { getCore } from '../src/core/wasm.ts';
 import { ensembleGradient as oracleGradient, memberInfidelity } from '../tests/reference/oracle.ts';
 import { appBenchmark, type AppFigures } from './app-bench.ts';
+import { commandBenchmark, type CommandFigures } from './command-bench.ts';
 
 const json = process.argv.includes('--json');
 const log = (text: string): void => {
@@ -135,7 +141,64 @@ for (const file of readdirSync(exampleDir).filter((f) => f.endsWith('.json')).so
   log(`${row.name.padEnd(26)} ${wallS.toFixed(3).padStart(6)}   ${row.meanInfidelity.toExponential(2).padStart(15)}   ${row.worstInfidelity.toExponential(2).padStart(16)}   ${row.iterations}`);
 }
 
-// 5. The app in headless Chromium (skipped without /usr/bin/chromium).
+// 5. The line: the drive map's two methods (the FFT crossover), and designs with and without a line.
+log('\nthe line\'s drive map, samples -> drive (one block, forward map alone): direct sum against FFT');
+log('samples  kernel (held)  FFT size   direct us      FFT us   n Lc / (N log2 N)');
+const lineMaps: { samples: number; heldKernel: number; fftSize: number; directUs: number; fftUs: number; ratio: number }[] = [];
+const core = getCore();
+for (const n of [24, 100, 400, 1600]) {
+  for (const bandwidth of [3e9, 3e8, 6e7, 1.5e7]) {
+    const line: Line = { oversample: 8, response: { kind: 'gaussian', bandwidth }, delay: 0, boundOn: 'programmed' };
+    const pulse = smoothPulse(n, n / 2.4e9, 1e7);
+    const time = (method: 'direct' | 'fft'): { us: number; layout: ReturnType<typeof lineLayout> } => {
+      const layout = lineLayout(line, n, pulse.dt, method);
+      const enc = encodeMembers([{ detuning: 0, amplitudeError: 0, weight: 1 }], 2, true);
+      const p = createBlock(core, { target: gate, segments: n, dt: pulse.dt, members: enc, drive: layout, held: true });
+      setSamples(core, p, pulse.i, pulse.q);
+      const run = (): void => core.exports.problemDrive(p);
+      const us = 1000 * median(run, repsFor(run, 150));
+      freeBlock(core, p);
+      return { us, layout };
+    };
+    const direct = time('direct'), fft = time('fft');
+    const lc = direct.layout.values[1], size = fft.layout.values[3];
+    const row = { samples: n, heldKernel: lc, fftSize: size, directUs: direct.us, fftUs: fft.us, ratio: (n * lc) / (size * Math.log2(size)) };
+    lineMaps.push(row);
+    log(`${String(n).padStart(7)}  ${String(lc).padStart(13)}  ${String(size).padStart(8)}  ${direct.us.toFixed(1).padStart(9)}  ${fft.us.toFixed(1).padStart(10)}   ${row.ratio.toFixed(2)}`);
+  }
+}
+// The crossover: the ratio where the two methods take equal time, between the largest
+// ratio at which the direct sum still wins and the smallest at which the FFT does.
+const directWins = lineMaps.filter((r) => r.directUs <= r.fftUs).map((r) => r.ratio);
+const fftWins = lineMaps.filter((r) => r.fftUs < r.directUs).map((r) => r.ratio);
+const crossover = directWins.length && fftWins.length ? Math.sqrt(Math.max(...directWins) * Math.min(...fftWins)) : NaN;
+log(`measured crossover n Lc / (N log2 N) ~ ${crossover.toFixed(2)} (the library uses the FFT above ${FFT_CROSSOVER})`);
+
+log('\ndesigns with and without a line (Gaussian 300 MHz, oversample 8; the spec\'s own line where it has one), one thread');
+log('name                       without s   with s   mean infidelity without / through the line');
+const lineDesigns: { name: string; withoutS: number; withS: number; meanWithout: number; meanWith: number }[] = [];
+for (const file of readdirSync(exampleDir).filter((f) => f.endsWith('.json')).sort()) {
+  const spec = JSON.parse(readFileSync(new URL(file, exampleDir), 'utf8'));
+  const { line, ...bare } = spec;
+  const lined = { ...bare, line: line ?? { oversample: 8, response: { gaussian: { bandwidth: 3e8 } } } };
+  const t0 = performance.now();
+  const a = await design(bare);
+  const t1 = performance.now();
+  const b = await design(lined);
+  const t2 = performance.now();
+  const row = { name: file.replace(/\.json$/, ''), withoutS: (t1 - t0) / 1000, withS: (t2 - t1) / 1000, meanWithout: a.evaluation.meanInfidelity, meanWith: b.evaluation.meanInfidelity };
+  lineDesigns.push(row);
+  log(`${row.name.padEnd(26)} ${row.withoutS.toFixed(3).padStart(9)}  ${row.withS.toFixed(3).padStart(7)}   ${row.meanWithout.toExponential(2)} / ${row.meanWith.toExponential(2)}`);
+}
+
+// 6. The compiled command: start-up against bare Node, Ctrl-C latency.
+let command: CommandFigures | null = null;
+if (!process.argv.includes('--no-command')) {
+  log('');
+  command = await commandBenchmark(log);
+}
+
+// 7. The app in headless Chromium (skipped without /usr/bin/chromium).
 let app: AppFigures | null = null;
 if (!process.argv.includes('--no-app')) {
   log('');
@@ -143,5 +206,5 @@ if (!process.argv.includes('--no-app')) {
 }
 
 if (json) {
-  process.stdout.write(JSON.stringify({ objectiveGradient, design: designs, maps, spectrum, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs }, app }) + '\n');
+  process.stdout.write(JSON.stringify({ objectiveGradient, design: designs, maps, spectrum, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs }, line: { maps: lineMaps, crossover, designs: lineDesigns }, command, app }) + '\n');
 }

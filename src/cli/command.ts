@@ -13,6 +13,8 @@ export interface CliIO {
    * absent where there is none to catch. Tests pass one they can trigger.
    */
   onInterrupt?: (handler: () => void) => () => void;
+  /** Asks the user a yes/no question; absent without a terminal to ask on (scripts, CI). */
+  confirm?: (question: string) => Promise<boolean>;
 }
 
 /** One subcommand: its name, a one-line summary, its --help text and its body. */

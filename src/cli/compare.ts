@@ -2,13 +2,15 @@
 // pulses on one grid and one target, one row per pulse, best first by a chosen figure.
 import { ArgumentError } from '../core/errors.ts';
 import type { CompareRow, Comparison, SortFigure } from '../core/compare.ts';
-import type { Problem } from '../core/types.ts';
+import type { Problem, Pulse } from '../core/types.ts';
 import { flagValue, optionsHelp, usageLine, type ArgSpec } from './args.ts';
 import { REGION_FLAGS, formatGrid, formatWidth, percent, pulseName, regionOf, thresholdOf } from './analysis-flags.ts';
 import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
-import { loadPulse, loadSpec } from './files.ts';
+import { targetJson } from '../io/target-json.ts';
+import { loadSpec, loadWaveform, printWarnings } from './files.ts';
 import { formatFrequency, formatInfidelity, formatTarget, formatTime } from './format.ts';
+import { describeLine } from '../core/line-spec.ts';
 
 // Kept in step with SORT_FIGURES in src/core/compare.ts (checked by the tests); listed
 // here so that --help needs no import of the core.
@@ -31,7 +33,8 @@ per pulse, best first.
 Usage: ${usageLine(ARGS)}
 
 SPEC gives the target, the ensemble and the default region (its ensemble's range,
-101 x 101 points). Each PULSE is a pulse file; --composites adds published sequences
+101 x 101 points). Each PULSE is a pulse file or any waveform \`gatesmith export\` wrote;
+--composites adds published sequences
 built to meet the spec's target at its rabiMax and sample time dt = duration / segments,
 each element rounded up to whole samples (see "gatesmith composite --list"): a gate about
 an axis in the xy-plane as it is; an inversion |0> <-> |1> as a 180 degree rotation (and
@@ -78,10 +81,12 @@ export const compareCommand: Command = defineCommand({
     const spec = loadSpec(specPath);
     const region = regionOf(flags, spec.problem);
     const threshold = thresholdOf(flags);
-    const files = pulsePaths.map((path) => {
-      const pulse = loadPulse(path);
-      return { name: pulseName(pulse, path), pulse, file: path };
-    });
+    const files: { name: string; pulse: Pulse; file: string }[] = [];
+    for (const path of pulsePaths) {
+      const pulse = await loadWaveform(path);
+      files.push({ name: pulseName(pulse, path), pulse, file: path });
+    }
+    printWarnings(io, spec.warnings);
 
     // Loaded here so that --help and bad input never wait for the wasm core.
     const { compare } = await import('../core/compare.ts');
@@ -106,7 +111,12 @@ export const compareCommand: Command = defineCommand({
       const file = pulse ? fileOf.get(pulse) : undefined;
       return file === undefined ? row : { ...row, file };
     });
-    if (flags.json) io.stdout(JSON.stringify({ ...comparison, rows }, null, 2) + '\n');
+    if (flags.json) {
+      // Targets in the spec's form, angles in degrees.
+      const rowsJson = rows.map((row) => (row.target ? { ...row, target: targetJson(row.target) } : row));
+      const json = { ...comparison, target: targetJson(comparison.target), rows: rowsJson, warnings: spec.warnings };
+      io.stdout(JSON.stringify(json, null, 2) + '\n');
+    }
     else io.stdout(compareTable(comparison, rows, spec.problem));
     return 0;
   },
@@ -155,6 +165,7 @@ function compareTable(comparison: Comparison, rows: Omit<CompareRow, 'pulse' | '
   const members = problem.members.length;
   return [
     `target: ${formatTarget(comparison.target)}`,
+    ...(problem.line ? [`every figure through the line: ${describeLine(problem.line)} (duration: the drive the qubit sees, tails included)`] : []),
     `mean, worst: over the spec's ensemble (${members} member${members === 1 ? '' : 's'}, weighted mean)`,
     `region: detuning ${formatGrid(comparison.detuning, 'detuning')}; amplitude error ${formatGrid(comparison.amplitudeError, 'amplitudeError')}`,
     `threshold ${formatInfidelity(comparison.threshold)}; sorted by ${comparison.sortBy}, best first; composites at rabiMax ${formatFrequency(problem.rabiMax)}, dt ${formatTime(problem.dt)}`,

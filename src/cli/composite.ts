@@ -6,11 +6,13 @@ import { ArgumentError } from '../core/errors.ts';
 import { buildComposite, compositeNames, type Bb1Placement, type CompositeMetadata, type CompositeName } from '../core/composites.ts';
 import type { Pulse } from '../core/types.ts';
 import { writePulse } from '../io/pulse.ts';
+import { targetJson } from '../io/target-json.ts';
 import { flagValue, optionsHelp, requiredFlag, usageLine, type ArgSpec } from './args.ts';
 import { numberFlag } from './analysis-flags.ts';
 import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
-import { checkWritable, writeText } from './files.ts';
+import { checkOutputName, checkWritable, printWarnings, writeFilesTogether } from './files.ts';
+import { frequencyWarning, sampleTimeWarning } from './unit-warnings.ts';
 import { formatFrequency, formatTarget, formatTime } from './format.ts';
 
 const ARGS: ArgSpec = {
@@ -84,7 +86,12 @@ export const compositeCommand: Command = defineCommand({
     const sigmasText = text('sigmas');
     const sigmas = sigmasText === undefined ? undefined : numberFlag(sigmasText, '--sigmas', 'a number of standard deviations in (0, 20]', positive);
     const out = text('out');
-    if (out !== undefined) checkWritable(out, '--out');
+    if (out !== undefined) {
+      checkOutputName(out, '--out', ['.json'], 'a pulse file (JSON)');
+      checkWritable(out, '--out');
+    }
+    const warnings = [frequencyWarning('--rabi-max', rabiMax), sampleTimeWarning('--dt', dt)].filter((w): w is string => w !== null);
+    printWarnings(io, warnings);
 
     let pulse: Pulse & { metadata: CompositeMetadata };
     try {
@@ -95,9 +102,12 @@ export const compositeCommand: Command = defineCommand({
       if (e.name === 'SpecError') throw new ArgumentError(flagNames(e.message));
       throw error;
     }
-    if (out !== undefined) writeText(out, writePulse(pulse), '--out');
+    // The file, read by people, gives the ideal's angle in degrees (the spec's form).
+    const ideal = targetJson(pulse.metadata.ideal);
+    if (out !== undefined) writeFilesTogether([{ path: out, data: writePulse({ ...pulse, metadata: { ...pulse.metadata, ideal } }) }], '--out');
     if (flags.json) {
-      io.stdout(JSON.stringify({ samples: pulse.i.length, dt: pulse.dt, durationS: pulse.i.length * pulse.dt, metadata: pulse.metadata, out: out ?? null }, null, 2) + '\n');
+      const metadata = { ...pulse.metadata, ideal };
+      io.stdout(JSON.stringify({ samples: pulse.i.length, dt: pulse.dt, durationS: pulse.i.length * pulse.dt, metadata, out: out ?? null, warnings }, null, 2) + '\n');
     } else io.stdout(elementsText(pulse, out));
     return 0;
   },

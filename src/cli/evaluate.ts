@@ -1,26 +1,32 @@
 // `gatesmith evaluate SPEC PULSE [--json]`: the figures of a pulse on a spec's target and
 // ensemble, per member and in summary.
 import type { JudgedEvaluation } from '../core/compare.ts';
-import type { Problem, Pulse } from '../core/types.ts';
+import { describeLine, lineJson } from '../core/line-spec.ts';
+import type { Line, Problem, Pulse } from '../core/types.ts';
+import { targetJson } from '../io/target-json.ts';
 import { optionsHelp, usageLine } from './args.ts';
 import type { ArgSpec } from './args.ts';
 import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
-import { loadSpec, loadWaveform } from './files.ts';
+import { loadSpec, loadWaveform, printWarnings } from './files.ts';
 import { formatFrequency, formatInfidelity, formatRelative, formatTarget, formatTime } from './format.ts';
 
 const ARGS: ArgSpec = {
   command: 'evaluate',
   positionals: ['SPEC', 'PULSE'],
-  flags: [{ name: 'json', help: 'print {members, meanInfidelity, worstInfidelity, target, note} as JSON instead of a table' }],
+  flags: [
+    { name: 'json', help: 'print {members, meanInfidelity, worstInfidelity, target, note, warnings} as JSON instead of a table' },
+    { name: 'no-line', help: "ignore the spec's line: the figures of the held samples as if the qubit saw them (the naive figure)" },
+  ],
 };
 
 const HELP = `Evaluate a pulse on the target and ensemble of a spec.
 
 Usage: ${usageLine(ARGS)}
 
-SPEC is a design spec (JSON; see docs/spec.md); only its target, ensemble and rabiMax
-are used. PULSE is a pulse file (JSON with "dt" in seconds and arrays "i", "q" in Hz)
+SPEC is a design spec (JSON; see docs/spec.md); its target, ensemble, rabiMax and line
+are used: with a line, the figures are of the drive the qubit sees through it
+(--no-line for the figures without it). PULSE is a pulse file (JSON with "dt" in seconds and arrays "i", "q" in Hz)
 or any waveform that \`gatesmith export\` wrote (csv, npy, raw with its FILE.json
 description, wav), evaluated as the instrument plays it, padding included.
 Prints each member's detuning, amplitude error, weight and infidelity, then the weighted
@@ -41,11 +47,13 @@ export const evaluateCommand: Command = defineCommand({
   async body([specPath, pulsePath], flags, io: CliIO): Promise<number> {
     const spec = loadSpec(specPath);
     const pulse = await loadWaveform(pulsePath);
-    for (const warning of mismatches(pulse, spec.problem)) io.stderr(`warning: ${warning}\n`);
+    const warnings = [...spec.warnings, ...mismatches(pulse, spec.problem)];
+    printWarnings(io, warnings);
 
     // Loaded here so that --help and bad input never wait for the wasm core.
     const { evaluateJudged } = await import('../core/compare.ts');
-    const evaluation = evaluateJudged(spec.problem, pulse);
+    const noLine = flags['no-line'] === true;
+    const evaluation = evaluateJudged(spec.problem, pulse, noLine);
     if (flags.json) {
       const json = {
         members: evaluation.members.map((m) => ({
@@ -56,12 +64,15 @@ export const evaluateCommand: Command = defineCommand({
         })),
         meanInfidelity: evaluation.meanInfidelity,
         worstInfidelity: evaluation.worstInfidelity,
-        target: evaluation.target,
+        target: targetJson(evaluation.target),
         note: evaluation.note,
+        // With a line in the spec: the line the figures went through (null: --no-line).
+        ...(spec.problem.line ? { line: noLine ? null : lineJson(spec.problem.line) } : {}),
+        warnings,
       };
       io.stdout(JSON.stringify(json, null, 2) + '\n');
     } else {
-      io.stdout(evaluationTable(evaluation, spec.problem, pulse));
+      io.stdout(evaluationTable(evaluation, spec.problem, pulse, noLine ? undefined : spec.problem.line));
     }
     return 0;
   },
@@ -74,7 +85,9 @@ function mismatches(pulse: Pulse, problem: Problem): string[] {
   let peak = 0;
   for (let k = 0; k < pulse.i.length; k++) peak = Math.max(peak, Math.hypot(pulse.i[k], pulse.q[k]));
   if (peak > problem.rabiMax * (1 + 1e-12)) {
-    warnings.push(`the pulse peaks at ${formatFrequency(peak)}, above the spec's rabiMax ${formatFrequency(problem.rabiMax)}`);
+    // The excess in words too: a quantised waveform may pass rabiMax by a fraction of a code.
+    const excess = Number((((peak - problem.rabiMax) / problem.rabiMax) * 100).toPrecision(2));
+    warnings.push(`the pulse peaks at ${peak} Hz, ${excess} % above the spec's rabiMax ${formatFrequency(problem.rabiMax)}`);
   }
   const length = pulse.dt * pulse.i.length;
   if (Math.abs(length - problem.duration) > 1e-9 * problem.duration) {
@@ -83,7 +96,7 @@ function mismatches(pulse: Pulse, problem: Problem): string[] {
   return warnings;
 }
 
-function evaluationTable(ev: JudgedEvaluation, problem: Problem, pulse: Pulse): string {
+function evaluationTable(ev: JudgedEvaluation, problem: Problem, pulse: Pulse, through: Line | undefined): string {
   const header = ['detuning', 'amplitude error', 'weight', 'infidelity'];
   const rows = ev.members.map((m) => [
     formatFrequency(m.detuning),
@@ -96,6 +109,7 @@ function evaluationTable(ev: JudgedEvaluation, problem: Problem, pulse: Pulse): 
   const worst = ev.members[ev.worstIndex];
   return [
     `target: ${formatTarget(ev.target)}; pulse: ${pulse.i.length} samples of ${formatTime(pulse.dt)}`,
+    through ? `through the line: ${describeLine(through)}` : problem.line ? "without the spec's line (--no-line): the held samples as the qubit's drive" : 'no line: the qubit sees the held samples',
     ...(ev.note ? [`note: ${ev.note}`] : []),
     line(header),
     ...rows.map(line),

@@ -1,7 +1,6 @@
 // `gatesmith export PULSE --format F --sample-rate HZ --bits B --full-scale HZ --out FILE`:
 // the waveform as the instrument plays it, written in an open format, and what that
 // does to the gate on the design's ensemble.
-import { writeFileSync } from 'node:fs';
 import { ArgumentError, SpecError } from '../core/errors.ts';
 import { parseSpec } from '../core/spec.ts';
 import { chooseTarget } from '../core/target-choice.ts';
@@ -14,8 +13,18 @@ import { exportWaveform } from '../io/export/waveform.ts';
 import { flagValue, optionsHelp, requiredFlag, usageLine, type ArgSpec } from './args.ts';
 import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
-import { checkWritable, loadPulse, loadSpec } from './files.ts';
+import { checkOutputName, checkWritable, loadSpec, loadWaveform, printWarnings, writeFilesTogether, type FileToWrite } from './files.ts';
+import { frequencyWarning } from './unit-warnings.ts';
 import { formatFrequency, formatInfidelity, formatRelative, formatTime } from './format.ts';
+
+/** The file-name extensions that fit each format (an output named otherwise with a known extension is refused). */
+const FORMAT_EXTENSIONS: Record<WaveformFormat, string[]> = {
+  csv: ['.csv'],
+  npy: ['.npy'],
+  raw: ['.bin', '.raw', '.i16', '.dat'],
+  wav: ['.wav'],
+  json: ['.json'],
+};
 
 /** Flag of each settings field, so that a bad value is reported under the name the user typed. */
 const FLAG_OF: Record<string, string> = {
@@ -65,8 +74,12 @@ optionally single-sideband modulated, quantised to DAC codes, written in an open
 
 Usage: ${usageLine(ARGS)}
 
-PULSE is a pulse file (JSON). Codes are round(x / full-scale * (2^(bits-1) - 1)). A pulse
-whose peak exceeds full scale is refused, never clipped. The report gives the peak in codes,
+PULSE is a pulse file (JSON) or any waveform this command wrote. Codes are
+round(x / full-scale * (2^(bits-1) - 1)). A pulse whose peak exceeds full scale is refused,
+never clipped; with the amplitude limit, rounding I and Q separately may lift the amplitude
+by up to sqrt(2)/2 code above full scale (the report says so when it does). The output
+never replaces PULSE or SPEC, and an existing output (with its description) is replaced
+whole or not at all. The report gives the peak in codes,
 the largest quantisation error, the length and padding, and the mean and worst infidelity of
 the exported waveform beside the design's on the spec's ensemble.
 
@@ -104,9 +117,21 @@ export const exportCommand: Command = defineCommand({
     if (units !== undefined && units !== 'codes' && units !== 'hz') {
       throw new ArgumentError(`export: --units ${units} is not allowed; codes or hz`);
     }
-    checkWritable(out, '--out');
-    const pulse = loadPulse(pulsePath);
-    const { problem, note } = judgingProblem(flag('spec'), pulse);
+    checkOutputName(out, '--out', FORMAT_EXTENSIONS[format], `${format} (--format ${format})`);
+    const specPath = flag('spec');
+    // The input, its description and the spec are never written over (npy and raw also write FILE.json).
+    const inputs = [pulsePath, `${pulsePath}.json`, ...(specPath !== undefined ? [specPath] : [])];
+    checkWritable(out, '--out', inputs);
+    if (format === 'npy' || format === 'raw') checkWritable(`${out}.json`, '--out (its description)', inputs);
+    const pulse = await loadWaveform(pulsePath);
+    const { problem, note, warnings: specWarnings } = judgingProblem(specPath, pulse);
+    const unitWarnings = [
+      frequencyWarning('--sample-rate', settings.sampleRate, 1e9, 'GS/s'),
+      frequencyWarning('--full-scale', settings.fullScale),
+      settings.intermediateFrequency !== undefined ? frequencyWarning('--if', settings.intermediateFrequency) : null,
+    ].filter((w): w is string => w !== null);
+    const inputWarnings = [...specWarnings, ...unitWarnings];
+    printWarnings(io, inputWarnings);
 
     const waveform = exportWaveform(pulse, settings);
     const encoded = await encodeWaveform(waveform, format, {
@@ -114,12 +139,14 @@ export const exportCommand: Command = defineCommand({
       metadata: pulse.metadata.name !== undefined ? { name: pulse.metadata.name } : {},
     });
     const report = await exportReport(problem, pulse, waveform);
-    writeBytes(out, encoded.bytes);
     const sidecar = encoded.sidecar ? `${out}.json` : null;
-    if (encoded.sidecar && sidecar) writeBytes(sidecar, encoded.sidecar);
+    const files: FileToWrite[] = [{ path: out, data: encoded.bytes }];
+    if (encoded.sidecar && sidecar) files.push({ path: sidecar, data: encoded.sidecar });
+    writeFilesTogether(files, '--out');
 
     if (flags.json) {
-      io.stdout(JSON.stringify({ files: { waveform: out, description: sidecar }, format, units: encoded.units, ...report }, null, 2) + '\n');
+      const json = { files: { waveform: out, description: sidecar }, format, units: encoded.units, ...report, warnings: [...inputWarnings, ...report.warnings] };
+      io.stdout(JSON.stringify(json, null, 2) + '\n');
     } else {
       io.stdout(reportText(report, { out, sidecar, format, units: encoded.units, problem, note }));
     }
@@ -178,31 +205,26 @@ function settingsFromFlags(
  * The problem whose ensemble judges the gate: --spec, else the pulse's own spec, else none
  * (with a note why); its target is the one the app judges the pulse against (target-choice.ts).
  */
-function judgingProblem(specPath: string | undefined, pulse: Pulse): { problem: Problem | null; note: string } {
-  const judged = (problem: Problem, note: string) => {
+function judgingProblem(specPath: string | undefined, pulse: Pulse): { problem: Problem | null; note: string; warnings: string[] } {
+  const judged = (problem: Problem, note: string, warnings: string[] = []) => {
     const choice = chooseTarget(problem.target, pulse);
-    return { problem: { ...problem, target: choice.targetUsed }, note: choice.targetNote ? `${note} (${choice.targetNote})` : note };
+    return { problem: { ...problem, target: choice.targetUsed }, note: choice.targetNote ? `${note} (${choice.targetNote})` : note, warnings };
   };
-  if (specPath !== undefined) return judged(loadSpec(specPath).problem, `the ensemble of ${specPath}`);
+  if (specPath !== undefined) {
+    const spec = loadSpec(specPath);
+    return judged(spec.problem, `the ensemble of ${specPath}`, spec.warnings);
+  }
   if (pulse.metadata.spec !== undefined) {
     let problem: Problem;
     try {
       problem = parseSpec(pulse.metadata.spec);
     } catch (error) {
       const reason = error instanceof Error ? error.message : String(error);
-      return { problem: null, note: `the pulse's metadata.spec is not a valid spec (${reason}); give --spec SPEC to evaluate the gate` };
+      return { problem: null, note: `the pulse's metadata.spec is not a valid spec (${reason}); give --spec SPEC to evaluate the gate`, warnings: [] };
     }
     return judged(problem, "the ensemble of the pulse's metadata.spec");
   }
-  return { problem: null, note: 'the pulse carries no spec; give --spec SPEC to evaluate the gate' };
-}
-
-function writeBytes(path: string, bytes: Uint8Array): void {
-  try {
-    writeFileSync(path, bytes);
-  } catch (error) {
-    throw new ArgumentError(`--out ${path}: cannot write (${error instanceof Error ? error.message : String(error)})`);
-  }
+  return { problem: null, note: 'the pulse carries no spec; give --spec SPEC to evaluate the gate', warnings: [] };
 }
 
 interface TextContext {
@@ -246,6 +268,13 @@ export function reportText(r: ExportReport, c: TextContext): string {
       row('exported, as played', r.gate.exported),
       row('exported, pulse only', r.gate.exportedPulseOnly),
     );
+    if (r.gate.withoutLine) {
+      lines.push(
+        `  the figures above are through the spec's line; without it (what ignoring the line would show):`,
+        row('design, no line', r.gate.withoutLine.design),
+        row('exported, no line', r.gate.withoutLine.exported),
+      );
+    }
   } else {
     lines.push(`gate          not evaluated: ${c.note}`);
   }

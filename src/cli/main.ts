@@ -3,18 +3,29 @@
 import { readFileSync } from 'node:fs';
 import { ArgumentError } from '../core/errors.ts';
 import type { CliIO, Command } from './command.ts';
-import { designCommand } from './design.ts';
-import { evaluateCommand } from './evaluate.ts';
-import { compositeCommand } from './composite.ts';
-import { mapCommand } from './map.ts';
-import { compareCommand } from './compare.ts';
-import { exportCommand } from './export.ts';
 
-/** Every subcommand; a new one is one import and one entry here. */
-export const COMMANDS: Command[] = [designCommand, evaluateCommand, compositeCommand, mapCommand, compareCommand, exportCommand];
+/** A subcommand as listed: its name and summary, and its module loaded only when it runs. */
+export interface CommandEntry {
+  name: string;
+  summary: string;
+  load: () => Promise<Command>;
+}
+
+/**
+ * Every subcommand; a new one is one entry here (its summary repeated from its file, which
+ * a test checks). Modules load on demand, so that --version and --help start as fast as Node.
+ */
+export const COMMANDS: CommandEntry[] = [
+  { name: 'design', summary: 'design a robust pulse for a spec', load: async () => (await import('./design.ts')).designCommand },
+  { name: 'evaluate', summary: 'figures of a pulse on a spec’s ensemble', load: async () => (await import('./evaluate.ts')).evaluateCommand },
+  { name: 'composite', summary: 'build a published composite pulse (BB1, SK1, CORPSE, ...) or list them', load: async () => (await import('./composite.ts')).compositeCommand },
+  { name: 'map', summary: 'robustness map of a pulse over detuning x amplitude error, with summary figures', load: async () => (await import('./map.ts')).mapCommand },
+  { name: 'compare', summary: 'table of summary figures of several pulses and composites, best first', load: async () => (await import('./compare.ts')).compareCommand },
+  { name: 'export', summary: 'write the quantised, padded waveform for an AWG (csv, npy, raw, wav, json)', load: async () => (await import('./export.ts')).exportCommand },
+];
 
 // Errors that mean the user's input is wrong (by name, so that errors from a worker count too).
-const BAD_INPUT = new Set(['SpecError', 'PulseFormatError', 'ArgumentError', 'ExportError']);
+const BAD_INPUT = new Set(['SpecError', 'PulseFormatError', 'ArgumentError', 'ExportError', 'SegmentAngleError']);
 const FILE_ERRORS = new Set(['ENOENT', 'EISDIR', 'ENOTDIR', 'EACCES', 'EPERM']);
 
 /** Runs the command line with `argv` (without node and the script); returns the exit code. */
@@ -38,11 +49,11 @@ export async function main(argv: string[], io: CliIO = processIO()): Promise<num
         io.stdout(mainHelp());
         return 0;
       }
-      io.stdout(findCommand(rest[0]).help);
+      io.stdout((await findCommand(rest[0]).load()).help);
       return 0;
     }
     if (first.startsWith('-')) throw new ArgumentError(`unknown option ${first}; before a command only --help and --version are allowed`);
-    return await findCommand(first).run(rest, io);
+    return await (await findCommand(first).load()).run(rest, io);
   } catch (error) {
     return reportError(error, io);
   }
@@ -70,7 +81,7 @@ Units are Hz and seconds in every file. Exit codes: 0 ok, 1 bad input, 2 interna
 `;
 }
 
-function findCommand(name: string): Command {
+function findCommand(name: string): CommandEntry {
   const command = COMMANDS.find((c) => c.name === name);
   if (!command) {
     throw new ArgumentError(`unknown command "${name}"; commands: ${COMMANDS.map((c) => c.name).join(', ')} (see gatesmith --help)`);
@@ -89,6 +100,7 @@ function reportError(error: unknown, io: CliIO): number {
 }
 
 // The real process streams; Ctrl-C once asks the running command to stop, twice exits.
+// Questions are asked only when both stdin and stderr are a terminal.
 function processIO(): CliIO {
   return {
     stdout: (text) => void process.stdout.write(text),
@@ -100,12 +112,23 @@ function processIO(): CliIO {
         presses++;
         if (presses === 1) handler();
         else {
-          process.stderr.write('\ninterrupted again: exiting without saving\n');
+          process.stderr.write('\ninterrupted again: exiting now\n');
           process.exit(130);
         }
       };
       process.on('SIGINT', listener);
       return () => void process.off('SIGINT', listener);
     },
+    confirm: process.stdin.isTTY && process.stderr.isTTY ? confirmOnTerminal : undefined,
   };
+}
+
+async function confirmOnTerminal(question: string): Promise<boolean> {
+  const { createInterface } = await import('node:readline/promises');
+  const rl = createInterface({ input: process.stdin, output: process.stderr });
+  try {
+    return /^\s*y(es)?\s*$/i.test(await rl.question(question));
+  } finally {
+    rl.close();
+  }
 }

@@ -6,7 +6,8 @@ import { flagValue, optionsHelp, usageLine, type ArgSpec } from './args.ts';
 import { DEFAULT_POINTS, REGION_FLAGS, pulseName, regionOf, summaryText, thresholdOf } from './analysis-flags.ts';
 import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
-import { checkWritable, loadPulse, loadSpec, writeText } from './files.ts';
+import { targetJson } from '../io/target-json.ts';
+import { checkOutputName, checkWritable, loadSpec, loadWaveform, printWarnings, writeFilesTogether } from './files.ts';
 
 const ARGS: ArgSpec = {
   command: 'map',
@@ -24,10 +25,11 @@ Usage: ${usageLine(ARGS)}
 
 SPEC gives the target (and, by default, the region: the range of its ensemble on each
 axis, ${DEFAULT_POINTS} x ${DEFAULT_POINTS} points; an axis the ensemble does not vary is one point).
-PULSE is a pulse file. It is judged against the spec's target; a pulse whose metadata
-names its own ideal (composites do) gets a note on how that ideal meets the target (the
-Knill sequence meets a 180 degree gate up to a z rotation after it, and is judged against
-its own ideal; a sequence built for another rotation is judged against the spec's target).
+PULSE is a pulse file or any waveform \`gatesmith export\` wrote. It is judged against the
+spec's target; a pulse whose metadata names its own ideal (composites do) gets a note on
+how that ideal meets the target (the Knill sequence meets a 180 degree gate up to a z
+rotation after it, and is judged against its own ideal; a sequence built for another
+rotation is judged against the spec's target).
 
 Prints the figures: mean and worst infidelity over the spec's ensemble (weighted, as the
 design minimises them); over the grid, the region mean and region worst and the fraction
@@ -52,10 +54,11 @@ export const mapCommand: Command = defineCommand({
     const out = flagValue(flags, 'out');
     const format = out === undefined ? null : mapFormat(out);
     const spec = loadSpec(specPath);
-    const pulse = loadPulse(pulsePath);
+    const pulse = await loadWaveform(pulsePath);
     const region = regionOf(flags, spec.problem);
     const threshold = thresholdOf(flags);
-    if (out !== undefined) checkWritable(out, '--out');
+    if (out !== undefined) checkWritable(out, '--out', [specPath, pulsePath]);
+    printWarnings(io, spec.warnings);
 
     // Loaded here so that --help and bad input never wait for the wasm core.
     const { judgePulse } = await import('../core/compare.ts');
@@ -65,10 +68,12 @@ export const mapCommand: Command = defineCommand({
     const summary = { ...choice, ...judgement.region, threshold: judgement.threshold, ...figures };
     if (out !== undefined) {
       const context = { pulseName: pulseName(pulse, pulsePath), target: choice.targetUsed, targetNote: choice.targetNote };
-      writeText(out, format === 'csv' ? writeMapCsv(map, context) : writeMapJson(map, context, summary), '--out');
+      writeFilesTogether([{ path: out, data: format === 'csv' ? writeMapCsv(map, context) : writeMapJson(map, context, summary) }], '--out');
     }
-    if (flags.json) io.stdout(JSON.stringify({ pulse: pulseName(pulse, pulsePath), ...summary, out: out ?? null }, null, 2) + '\n');
-    else {
+    if (flags.json) {
+      const json = { pulse: pulseName(pulse, pulsePath), ...summary, targetGiven: targetJson(summary.targetGiven), targetUsed: targetJson(summary.targetUsed) };
+      io.stdout(JSON.stringify({ ...json, out: out ?? null, warnings: spec.warnings }, null, 2) + '\n');
+    } else {
       io.stdout(`pulse: ${pulseName(pulse, pulsePath)}\n` + summaryText(judgement, spec.problem.members.length) + (out !== undefined ? `map written to ${out}\n` : ''));
     }
     return 0;
@@ -80,5 +85,6 @@ function mapFormat(out: string): 'csv' | 'json' {
   const lower = out.toLowerCase();
   if (lower.endsWith('.csv')) return 'csv';
   if (lower.endsWith('.json')) return 'json';
+  checkOutputName(out, '--out', ['.csv', '.json'], 'a map (CSV or JSON)');
   throw new ArgumentError(`--out ${out}: the name must end in .csv or .json (the format is chosen by it)`);
 }

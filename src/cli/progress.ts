@@ -23,7 +23,9 @@ export function progressReporter(io: CliIO, starts: number, maxIterations: numbe
   const iterations = new Map<number, number>();
   let best = Infinity;
   let lastDraw = -Infinity;
-  let lastStart = -1;
+  // Starts seen so far: a line marks each new one, once, whether starts run one after
+  // another or interleaved on several threads.
+  const seen = new Set<number>();
   let drawn = false;
   const total = starts * maxIterations;
 
@@ -41,8 +43,8 @@ export function progressReporter(io: CliIO, starts: number, maxIterations: numbe
       iterations.set(p.start, p.iteration);
       if (p.meanInfidelity < best) best = p.meanInfidelity;
       const t = now();
-      const newStart = p.start !== lastStart;
-      lastStart = p.start;
+      const newStart = !seen.has(p.start);
+      seen.add(p.start);
       const info = describe(p);
       if (io.isTTY) {
         if (t - lastDraw < BAR_EVERY_MS && !newStart) return;

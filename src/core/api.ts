@@ -4,6 +4,8 @@
 import { ArgumentError, describeValue } from './errors.ts';
 import { BUFFER, createBlock, readBuffer, setSamples } from './block.ts';
 import { checkPulse, encodeMembers, encodeTarget, type EncodedMembers } from './encode.ts';
+import { qubitDrive } from './line.ts';
+import { lineJson } from './line-spec.ts';
 import { StartRun } from './run.ts';
 import { checkProblemAngles, checkPulseAngles } from './limits.ts';
 import { checkProblem, checkTarget } from './problem-check.ts';
@@ -11,7 +13,7 @@ import { bestStart } from './best-start.ts';
 import { axisValues, checkRegion } from './grid.ts';
 import { parseSpec } from './spec.ts';
 import type {
-  DesignResult, Evaluation, GridAxis, Member, Problem, Progress, Pulse, StartResult, StopReason, Target,
+  DesignResult, Evaluation, GridAxis, Line, Member, Problem, Progress, Pulse, StartResult, StopReason, Target,
 } from './types.ts';
 import { getCore, loadCore } from './wasm.ts';
 
@@ -35,9 +37,15 @@ export interface RobustnessMap {
   infidelity: Float64Array;
 }
 
+/**
+ * The core's wasm: its bytes, a URL to fetch it from, or a compiled WebAssembly.Module (typed
+ * without the DOM's names, so that a Node-only TypeScript project checks these declarations).
+ */
+export type CoreSource = ArrayBuffer | ArrayBufferView | URL | string | object;
+
 /** Load the wasm core from a URL, bytes or module (browsers; Node loads it by itself). */
-export async function initCore(source: BufferSource | WebAssembly.Module | URL | string): Promise<void> {
-  await loadCore(source);
+export async function initCore(source: CoreSource): Promise<void> {
+  await loadCore(source as Parameters<typeof loadCore>[0]);
 }
 
 function isProblem(spec: unknown): spec is Problem {
@@ -51,19 +59,20 @@ export function toProblem(spec: unknown): Problem {
   return isProblem(spec) ? checkProblem(spec) : parseSpec(spec);
 }
 
-/** Evaluate a pulse on a spec's (or problem's) ensemble and target. */
+/** Evaluate a pulse on a spec's (or problem's) ensemble and target, through its line (if any). */
 export function evaluate(spec: unknown, pulse: Pulse): Evaluation {
   const problem = toProblem(spec);
-  return evaluateMembers(problem.target, pulse, problem.members);
+  return evaluateMembers(problem.target, pulse, problem.members, problem.line);
 }
 
-/** Evaluate a pulse for a target on explicit members (weights normalised here). */
-export function evaluateMembers(target: Target, pulse: Pulse, members: Member[]): Evaluation {
+/** Evaluate a pulse for a target on explicit members (weights normalised here), through `line` when given. */
+export function evaluateMembers(target: Target, pulse: Pulse, members: Member[], line?: Line): Evaluation {
   checkTarget(target);
   checkPulse(pulse);
   const enc = encodeMembers(members, 2, true);
-  checkPulseAngles(pulse, members);
-  const perMember = figures(target, pulse, enc);
+  const drive = qubitDrive(pulse, line);
+  checkPulseAngles(drive, members);
+  const perMember = figures(target, drive, enc);
   let mean = 0;
   let worstIndex = 0;
   const out = members.map((m, j) => {
@@ -89,11 +98,12 @@ function figures(target: Target, pulse: Pulse, enc: EncodedMembers): Float64Arra
 /** Members per core call of a map: bounds the arena and keeps each call short. */
 const MAP_CHUNK = 8192;
 
-/** Infidelity of a pulse on a detuning x amplitude-error grid. */
-export function robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): RobustnessMap {
+/** Infidelity of a pulse on a detuning x amplitude-error grid, through `line` when given. */
+export function robustnessMap(target: Target, programmed: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): RobustnessMap {
   checkTarget(target);
-  checkPulse(pulse);
+  checkPulse(programmed);
   checkRegion({ detuning, amplitudeError });
+  const pulse = qubitDrive(programmed, line);
   const far = Math.max(Math.abs(detuning.min), Math.abs(detuning.max));
   checkPulseAngles(pulse, [{ detuning: far, amplitudeError: amplitudeError.max, weight: 1 }, { detuning: far, amplitudeError: amplitudeError.min, weight: 1 }]);
   const dv = axisValues(detuning), av = axisValues(amplitudeError);
@@ -113,9 +123,10 @@ export function robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, 
   return { detuning: { ...detuning }, amplitudeError: { ...amplitudeError }, infidelity };
 }
 
-/** Bloch vector after each sample, 3*(N+1) values starting with `from`. */
-export function blochTrajectory(pulse: Pulse, member: Member, from: [number, number, number]): Float64Array {
-  checkPulse(pulse);
+/** Bloch vector after each sample of the drive the qubit sees (the pulse itself without a line), 3*(N+1) values starting with `from`. */
+export function blochTrajectory(programmed: Pulse, member: Member, from: [number, number, number], line?: Line): Float64Array {
+  checkPulse(programmed);
+  const pulse = qubitDrive(programmed, line);
   encodeMembers([member], 2, false);
   checkPulseAngles(pulse, [member]);
   const norm = Math.hypot(from[0], from[1], from[2]);
@@ -177,10 +188,11 @@ async function designNow(problem: Problem, options: DesignOptions): Promise<Desi
   return bestOfStarts(problem, starts, t0);
 }
 
-/** The design result of finished starts: the best (best-start.ts) is evaluated. */
-function bestOfStarts(problem: Problem, starts: StartResult[], t0: number): DesignResult {
+/** The design result of finished starts: the best (best-start.ts) is evaluated, through the problem's line. */
+export function bestOfStarts(problem: Problem, starts: StartResult[], t0: number): DesignResult {
   const best = bestStart(starts);
-  const evaluation = evaluateMembers(problem.target, best.pulse, problem.members);
+  const evaluation = evaluateMembers(problem.target, best.pulse, problem.members, problem.line);
+  if (problem.line) best.pulse.metadata.line = lineJson(problem.line);
   best.pulse.metadata.figures = {
     meanInfidelity: evaluation.meanInfidelity,
     worstInfidelity: evaluation.worstInfidelity,
@@ -231,12 +243,31 @@ async function runStart(problem: Problem, start: number, options: DesignOptions,
     const samples = run.samples();
     const pulse: Pulse = { dt, i: samples.i, q: samples.q, metadata: { origin: 'design', name: `design start ${start}` } };
     holdBound(pulse, rabiMax, constraints.bound);
+    if (problem.line?.boundOn === 'both') holdDriveBound(pulse, problem.line, rabiMax);
     return {
       start, pulse, meanInfidelity: run.infidelity, objective: run.objective,
       iterations: run.iterations, evaluations: run.evaluations, stopReason, elapsedS: (performance.now() - tStart) / 1000,
     };
   } finally {
     run.dispose();
+  }
+}
+
+/**
+ * Guarantee the bound on the drive the qubit sees ("boundOn": "both"): the design holds
+ * it by a penalty (assembly/line.ts), which leaves an excess of the order of the figure's
+ * gradient over its weight; the line is linear, so scaling the samples by rabiMax over
+ * the drive's peak removes it (the figures reported are of the scaled pulse).
+ */
+function holdDriveBound(pulse: Pulse, line: Line, rabiMax: number): void {
+  const drive = qubitDrive(pulse, line);
+  let peak = 0;
+  for (let j = 0; j < drive.i.length; j++) peak = Math.max(peak, Math.hypot(drive.i[j], drive.q[j]));
+  if (peak <= rabiMax) return;
+  const f = (rabiMax / peak) * (1 - 2 ** -52);
+  for (let k = 0; k < pulse.i.length; k++) {
+    pulse.i[k] *= f;
+    pulse.q[k] *= f;
   }
 }
 

@@ -9,6 +9,8 @@ import type { Core } from './wasm.ts';
 export const SYSTEM_QUBIT = 0;
 /** Drive maps of the core (assembly/drive.ts). */
 export const DRIVE_IDENTITY = 0;
+/** The line: samples held on dt / oversample and convolved with a kernel (assembly/line.ts, src/core/line.ts). */
+export const DRIVE_LINE = 1;
 /** Bound kinds of the core (assembly/problem.ts). */
 const BOUND = { none: 0, disc: 1, box: 2 } as const;
 /** Arrays of a block (assembly/problem.ts, BUFFER_*). */

@@ -44,11 +44,15 @@ export interface JudgedEvaluation extends Evaluation {
   note: string | null;
 }
 
-/** The figures of a pulse on a spec's ensemble, against the target chooseTarget picks (`gatesmith evaluate`, the app's figures of a pulse). */
-export function evaluateJudged(spec: unknown, pulse: Pulse): JudgedEvaluation {
+/**
+ * The figures of a pulse on a spec's ensemble, against the target chooseTarget picks, through
+ * the spec's line (`gatesmith evaluate`, the app's figures of a pulse); `withoutLine` ignores it.
+ */
+export function evaluateJudged(spec: unknown, pulse: Pulse, withoutLine = false): JudgedEvaluation {
   const problem = toProblem(spec);
   const choice = chooseTarget(problem.target, pulse);
-  return { ...evaluateMembers(choice.targetUsed, pulse, problem.members), target: choice.targetUsed, note: choice.targetNote };
+  const line = withoutLine ? undefined : problem.line;
+  return { ...evaluateMembers(choice.targetUsed, pulse, problem.members, line), target: choice.targetUsed, note: choice.targetNote };
 }
 
 /** The figures of a pulse against a spec (or problem): on its ensemble and over a region. */
@@ -57,8 +61,8 @@ export function judgePulse(spec: unknown, pulse: Pulse, options: JudgeOptions = 
   const region = options.region ?? ensembleRegion(problem);
   checkRegion(region);
   const choice = chooseTarget(problem.target, pulse);
-  const map = robustnessMap(choice.targetUsed, pulse, region.detuning, region.amplitudeError);
-  const summary = summariseMap(map, pulse, choice, options);
+  const map = robustnessMap(choice.targetUsed, pulse, region.detuning, region.amplitudeError, problem.line);
+  const summary = summariseMap(map, pulse, choice, { ...options, line: problem.line });
   const ensemble = evaluateJudged(problem, pulse);
   const worst = ensemble.members[ensemble.worstIndex];
   const figures: CompareFigures = {
@@ -141,6 +145,8 @@ export interface CompareRow {
   figures?: CompareFigures;
   /** Present when asked for (`cuts: true`). */
   cuts?: Cuts;
+  /** Mean and worst over the spec's ensemble without the spec's line (asked for by `withoutLine`, only with a line). */
+  noLine?: { meanInfidelity: number; worstInfidelity: number };
   error?: { name: string; message: string };
 }
 
@@ -152,6 +158,8 @@ export interface CompareOptions extends JudgeOptions {
   sortBy?: SortFigure;
   /** Attach the cuts through zero error over the region to each row. */
   cuts?: boolean;
+  /** Add each row's mean and worst without the spec's line (what ignoring it would show). */
+  withoutLine?: boolean;
 }
 
 /** The comparison: the spec's target, the region and threshold shared by every row, the rows best first. */
@@ -173,6 +181,7 @@ export function compare(spec: unknown, pulses: readonly NamedPulse[], options: C
   const built = compositesFor(problem.target, options.composites ?? [], problem);
   const judge = (name: string, pulse: Pulse): CompareRow => {
     const { choice, figures } = judgePulse(problem, pulse, { region, threshold });
+    const naive = options.withoutLine && problem.line ? evaluateJudged(problem, pulse, true) : null;
     return {
       name,
       origin: typeof pulse.metadata.origin === 'string' ? pulse.metadata.origin : 'pulse',
@@ -180,7 +189,8 @@ export function compare(spec: unknown, pulses: readonly NamedPulse[], options: C
       target: choice.targetUsed,
       note: choice.targetNote,
       figures,
-      ...(options.cuts ? { cuts: cutsThroughZero(choice.targetUsed, pulse, region.detuning, region.amplitudeError) } : {}),
+      ...(options.cuts ? { cuts: cutsThroughZero(choice.targetUsed, pulse, region.detuning, region.amplitudeError, problem.line) } : {}),
+      ...(naive ? { noLine: { meanInfidelity: naive.meanInfidelity, worstInfidelity: naive.worstInfidelity } } : {}),
     };
   };
   const rows: CompareRow[] = [

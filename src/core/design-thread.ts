@@ -1,7 +1,9 @@
-// One design thread of designInThreads (threads.ts): runs design() on its start indices,
-// streams progress, and stops when the parent says so.
+// One design thread of designInThreads (threads.ts): runs design() on its start indices one
+// start at a time, posting each start's result as it ends (so that a stop keeps every
+// finished start whole) and streaming progress; stops when the parent says so.
 import { parentPort, workerData } from 'node:worker_threads';
 import { design } from './api.ts';
+import type { Problem } from './types.ts';
 import type { ThreadMessage } from './threads.ts';
 
 const port = parentPort!;
@@ -11,13 +13,23 @@ port.on('message', (message) => {
 });
 const post = (message: ThreadMessage): void => port.postMessage(message);
 try {
-  const result = await design(workerData.problem, {
-    startIndices: workerData.startIndices,
-    signal: controller.signal,
-    progressPulseEveryMs: workerData.progressPulseEveryMs,
-    onProgress: (progress) => post({ kind: 'progress', progress }),
-  });
-  post({ kind: 'done', result });
+  const problem = workerData.problem as Problem;
+  const t0 = performance.now();
+  let ran = 0;
+  for (const start of workerData.startIndices as number[]) {
+    // One time budget for the thread's whole share, as design() keeps for its starts.
+    const timeLimit = problem.optimizer.timeLimit - (performance.now() - t0) / 1000;
+    if (ran > 0 && (controller.signal.aborted || timeLimit <= 0)) break;
+    const result = await design({ ...problem, optimizer: { ...problem.optimizer, timeLimit } }, {
+      startIndices: [start],
+      signal: controller.signal,
+      progressPulseEveryMs: workerData.progressPulseEveryMs,
+      onProgress: (progress) => post({ kind: 'progress', progress }),
+    });
+    post({ kind: 'start', result: result.starts[0] });
+    ran++;
+  }
+  post({ kind: 'done' });
 } catch (error) {
   const e = error instanceof Error ? error : new Error(String(error));
   post({ kind: 'error', name: e.name, message: e.message, stack: e.stack });

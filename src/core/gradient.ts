@@ -3,8 +3,9 @@
 import { BUFFER, createBlock, readBuffer, setSamples } from './block.ts';
 import { checkPulse, encodeMembers } from './encode.ts';
 import { checkPulseAngles } from './limits.ts';
+import { lineLayout, qubitDrive } from './line.ts';
 import { checkTarget } from './problem-check.ts';
-import type { Member, Pulse, Target } from './types.ts';
+import type { Line, Member, Pulse, Target } from './types.ts';
 import { getCore } from './wasm.ts';
 
 /** Figure and gradient of the weighted mean infidelity with respect to every sample (per Hz). */
@@ -24,15 +25,19 @@ export interface GradientJob {
   dispose(): void;
 }
 
-/** Place pulse, members and target in a held problem block for repeated gradient evaluations. */
-export function prepareGradientJob(target: Target, pulse: Pulse, members: Member[]): GradientJob {
+/**
+ * Place pulse, members and target in a held problem block for repeated gradient
+ * evaluations; through `line` (its direct sum or FFT forced by `method`) when given.
+ */
+export function prepareGradientJob(target: Target, pulse: Pulse, members: Member[], line?: Line, method?: 'direct' | 'fft'): GradientJob {
   checkTarget(target);
   checkPulse(pulse);
   const core = getCore();
   const n = pulse.i.length;
   const enc = encodeMembers(members, 2, true);
-  checkPulseAngles(pulse, members);
-  const p = createBlock(core, { target, segments: n, dt: pulse.dt, members: enc, held: true });
+  checkPulseAngles(qubitDrive(pulse, line), members);
+  const drive = line ? { drive: lineLayout(line, n, pulse.dt, method) } : {};
+  const p = createBlock(core, { target, segments: n, dt: pulse.dt, members: enc, held: true, ...drive });
   setSamples(core, p, pulse.i, pulse.q);
   const run = (): number => core.exports.problemGradient(p);
   return {
@@ -51,9 +56,9 @@ export function prepareGradientJob(target: Target, pulse: Pulse, members: Member
   };
 }
 
-/** Figure and exact gradient of a pulse on an ensemble (weights normalised). */
-export function figureAndGradient(target: Target, pulse: Pulse, members: Member[]): FigureGradient {
-  const job = prepareGradientJob(target, pulse, members);
+/** Figure and exact gradient of a pulse on an ensemble (weights normalised), through `line` when given. */
+export function figureAndGradient(target: Target, pulse: Pulse, members: Member[], line?: Line, method?: 'direct' | 'fft'): FigureGradient {
+  const job = prepareGradientJob(target, pulse, members, line, method);
   try {
     return job.result();
   } finally {

@@ -6,6 +6,7 @@
 // itself (a times the rounding unit); beyond, each halving loses accuracy, and above
 // about 2e9 rad the halving count overflows (NaN). So no segment may turn by more.
 import { SegmentAngleError } from './errors.ts';
+import { kernelOf } from './line-spec.ts';
 import type { Member, Problem, Pulse } from './types.ts';
 
 /** Largest half angle a segment may have (rad). */
@@ -51,12 +52,20 @@ export function checkPulseAngles(pulse: Pulse, members: readonly Member[]): void
 
 /** Refuse a design problem whose bound lets a segment turn some member by more than the core computes exactly. */
 export function checkProblemAngles(problem: Problem): void {
-  const peak = problem.constraints.bound === 'box' ? Math.SQRT2 * problem.rabiMax : problem.rabiMax;
-  const angle = segmentAngle(problem.dt, peak, problem.members);
+  let peak = problem.constraints.bound === 'box' ? Math.SQRT2 * problem.rabiMax : problem.rabiMax;
+  let dt = problem.dt;
+  if (problem.line) {
+    // Through a line the qubit sees steps of dt / oversample of at most the peak times sum |h|.
+    dt /= problem.line.oversample;
+    let gain = 0;
+    for (const v of kernelOf(problem.line, dt).h) gain += Math.abs(v);
+    peak *= gain;
+  }
+  const angle = segmentAngle(dt, peak, problem.members);
   if (angle <= MAX_SEGMENT_ANGLE) return;
   const { detuning } = extremes(problem.members);
-  if (Math.PI * problem.dt * detuning > MAX_SEGMENT_ANGLE) {
-    throw new SegmentAngleError('ensemble.detuning', `ensemble.detuning: ${detuning} Hz is not allowed; ${allowed(problem.dt)}`);
+  if (Math.PI * dt * detuning > MAX_SEGMENT_ANGLE) {
+    throw new SegmentAngleError('ensemble.detuning', `ensemble.detuning: ${detuning} Hz is not allowed; ${allowed(dt)}`);
   }
-  throw new SegmentAngleError('rabiMax', `rabiMax: ${problem.rabiMax} Hz is not allowed; ${allowed(problem.dt)} (this turns by ${angle.toPrecision(3)} rad)`);
+  throw new SegmentAngleError('rabiMax', `rabiMax: ${problem.rabiMax} Hz is not allowed; ${allowed(dt)} (this turns by ${angle.toPrecision(3)} rad)`);
 }

@@ -2,6 +2,7 @@
 // library refuses from every entry point what a spec would refuse: every error is a
 // SpecError naming the field as a spec would spell it.
 import { SpecError } from './errors.ts';
+import { checkLine } from './line-spec.ts';
 import { MAX_MEMBERS } from './spec-ensemble.ts';
 import { checkNumber, describeRule } from './spec-fields.ts';
 import { MAX_SEGMENTS, OPTIMIZER_RULES } from './spec.ts';
@@ -65,5 +66,6 @@ export function checkProblem(problem: Problem): Problem {
     if (o[key] === undefined) throw new SpecError(`optimizer.${key}`, undefined, `required: ${describeRule(rule)}`);
     checkNumber(o[key], `optimizer.${key}`, rule);
   }
+  if (problem.line !== undefined) checkLine(problem.line, problem.dt, problem.segments);
   return problem;
 }

@@ -3,11 +3,12 @@
 // what the app shows beside its maps. The target is the one target-choice.ts picks, and
 // every result says which it used.
 import { robustnessMap, type RobustnessMap } from './api.ts';
+import { qubitDrive } from './line.ts';
 import { axisValues } from './grid.ts';
 import { ArgumentError, describeValue } from './errors.ts';
 import { thresholdInterval, type ErrorAxis, type ThresholdInterval } from './threshold-width.ts';
 import { chooseTarget, type TargetChoice } from './target-choice.ts';
-import type { GridAxis, Pulse, Target } from './types.ts';
+import type { GridAxis, Line, Pulse, Target } from './types.ts';
 
 export type { ErrorAxis, ThresholdInterval } from './threshold-width.ts';
 export type { TargetChoice } from './target-choice.ts';
@@ -51,6 +52,8 @@ export interface RobustnessSummary extends PulseFigures, TargetChoice {
 export interface SummaryOptions {
   /** Infidelity threshold of the area and width figures (default 1e-4). */
   threshold?: number;
+  /** The line the pulse is played through: every figure is of the drive the qubit sees. */
+  line?: Line;
 }
 
 /** The infidelity along one error axis with the other error at zero. */
@@ -92,8 +95,9 @@ export function summariseMap(map: RobustnessMap, pulse: Pulse, choice: TargetCho
   }
   const dv = axisValues(map.detuning)[worst % map.detuning.points];
   const av = axisValues(map.amplitudeError)[Math.floor(worst / map.detuning.points)];
-  const detuningInterval = thresholdInterval(choice.targetUsed, pulse, 'detuning', threshold);
-  const amplitudeInterval = thresholdInterval(choice.targetUsed, pulse, 'amplitudeError', threshold);
+  const drive = qubitDrive(pulse, options.line);
+  const detuningInterval = thresholdInterval(choice.targetUsed, drive, 'detuning', threshold);
+  const amplitudeInterval = thresholdInterval(choice.targetUsed, drive, 'amplitudeError', threshold);
   return {
     ...choice,
     detuning: { ...map.detuning },
@@ -107,7 +111,7 @@ export function summariseMap(map: RobustnessMap, pulse: Pulse, choice: TargetCho
     amplitudeHalfWidth: amplitudeInterval.halfWidth,
     detuningInterval,
     amplitudeInterval,
-    ...pulseFigures(pulse),
+    ...pulseFigures(drive),
   };
 }
 
@@ -120,20 +124,20 @@ export function summarise(
   options: SummaryOptions = {},
 ): { summary: RobustnessSummary; map: RobustnessMap } {
   const choice = chooseTarget(target, pulse);
-  const map = robustnessMap(choice.targetUsed, pulse, detuning, amplitudeError);
+  const map = robustnessMap(choice.targetUsed, pulse, detuning, amplitudeError, options.line);
   return { summary: summariseMap(map, pulse, choice, options), map };
 }
 
 /** Infidelity along one error axis on a uniform grid, the other error held at zero. */
-export function cut(target: Target, pulse: Pulse, axis: ErrorAxis, grid: GridAxis): Cut {
+export function cut(target: Target, pulse: Pulse, axis: ErrorAxis, grid: GridAxis, line?: Line): Cut {
   if (axis !== 'detuning' && axis !== 'amplitudeError') {
     throw new ArgumentError(`axis: ${describeValue(axis)} is not allowed; "detuning" or "amplitudeError"`);
   }
   const choice = chooseTarget(target, pulse);
   const zero: GridAxis = { min: 0, max: 0, points: 1 };
   const map = axis === 'detuning'
-    ? robustnessMap(choice.targetUsed, pulse, grid, zero)
-    : robustnessMap(choice.targetUsed, pulse, zero, grid);
+    ? robustnessMap(choice.targetUsed, pulse, grid, zero, line)
+    : robustnessMap(choice.targetUsed, pulse, zero, grid, line);
   return { ...choice, axis, values: axisValues(grid), infidelity: map.infidelity };
 }
 
@@ -146,9 +150,9 @@ export interface Cuts {
 }
 
 /** The cut along detuning (no amplitude error) and along amplitude error (no detuning). */
-export function cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): Cuts {
-  const alongDetuning = cut(target, pulse, 'detuning', detuning);
-  const alongAmplitude = cut(target, pulse, 'amplitudeError', amplitudeError);
+export function cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): Cuts {
+  const alongDetuning = cut(target, pulse, 'detuning', detuning, line);
+  const alongAmplitude = cut(target, pulse, 'amplitudeError', amplitudeError, line);
   return {
     detuning: alongDetuning.values,
     detuningInfidelity: alongDetuning.infidelity,

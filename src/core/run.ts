@@ -3,6 +3,7 @@
 // between their steps) interleave in one core and each gives the pulse it gives alone.
 import { createBlock, freeBlock, readBuffer, BUFFER } from './block.ts';
 import { encodeMembers } from './encode.ts';
+import { lineLayout } from './line.ts';
 import { initialVariables } from './start.ts';
 import type { Problem, StopReason } from './types.ts';
 import { getCore, STEP_GRADIENT_TOLERANCE, STEP_LINE_SEARCH_FAILED, type Core } from './wasm.ts';
@@ -44,6 +45,7 @@ export class StartRun {
     this.ptr = createBlock(core, {
       target: problem.target, segments: n, dt, members: enc, bound: constraints.bound, zeroEdges: constraints.zeroEdges,
       rabiMax, smoothness: constraints.smoothness, optimizer, held: true,
+      ...(problem.line ? { drive: lineLayout(problem.line, n, dt) } : {}),
     });
     try {
       const nVar = core.exports.problemVariables(this.ptr);

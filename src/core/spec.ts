@@ -3,7 +3,9 @@
 // unknown keys are rejected so that a typo cannot silently fall back to a default.
 // The format is described for users in docs/spec.md.
 import { SpecError } from './errors.ts';
+import { parseJsonText } from './json-text.ts';
 import { parseEnsemble } from './spec-ensemble.ts';
+import { parseLine } from './line-spec.ts';
 import { childPath, readBoolean, readChoice, readNumber, readObject, readText, readUnitVector } from './spec-fields.ts';
 import type { NumberRule } from './spec-fields.ts';
 import type { Constraints, OptimizerSettings, Problem, Target } from './types.ts';
@@ -27,7 +29,7 @@ export const DEFAULT_OPTIMIZER: Readonly<OptimizerSettings> = {
   memory: 12,
 };
 
-const TOP_KEYS = ['name', 'description', 'target', 'duration', 'segments', 'rabiMax', 'ensemble', 'constraints', 'optimizer'];
+const TOP_KEYS = ['name', 'description', 'target', 'duration', 'segments', 'rabiMax', 'ensemble', 'constraints', 'optimizer', 'line'];
 
 /** Validates a design spec (parsed JSON) and returns the normalised problem. */
 export function parseSpec(json: unknown): Problem {
@@ -43,16 +45,19 @@ export function parseSpec(json: unknown): Problem {
   const members = parseEnsemble(spec.ensemble);
   const constraints = parseConstraints(spec.constraints, segments);
   const optimizer = parseOptimizer(spec.optimizer);
-  return { target, duration, segments, dt, rabiMax, members, constraints, optimizer };
+  const line = parseLine(spec.line, dt, segments);
+  return { target, duration, segments, dt, rabiMax, members, constraints, optimizer, ...(line ? { line } : {}) };
 }
 
 /** Parses spec text (a file's contents) as JSON, turning a syntax error into a SpecError. */
 export function specJsonFromText(text: string): unknown {
   try {
-    return JSON.parse(text);
+    return parseJsonText(text);
   } catch (error) {
-    const reason = error instanceof Error ? error.message : String(error);
-    throw new SpecError('spec', text.trim().slice(0, 30), `the spec must be valid JSON (${reason})`);
+    // The syntax error says where; the text itself is not echoed (it may not be text at all).
+    const e = new SpecError('spec', undefined, '');
+    e.message = (error as Error).message;
+    throw e;
   }
 }
 

@@ -150,7 +150,14 @@ function readIdeal(ideal: unknown): Target {
     return { kind: 'gate', axis: t.axis, angleRad: t.angleRad };
   }
   if (t && t.kind === 'state' && isVec3(t.from) && isVec3(t.to)) return { kind: 'state', from: t.from, to: t.to };
+  // The spec's form, angle in degrees, as the command line writes it into pulse files.
+  const gate = t?.gate as Record<string, unknown> | undefined;
+  if (gate && isVec3(gate.axis) && typeof gate.angleDeg === 'number' && Number.isFinite(gate.angleDeg)) {
+    return { kind: 'gate', axis: gate.axis, angleRad: (gate.angleDeg * Math.PI) / 180 };
+  }
+  const state = t?.state as Record<string, unknown> | undefined;
+  if (state && isVec3(state.from) && isVec3(state.to)) return { kind: 'state', from: state.from, to: state.to };
   throw new PulseFormatError(
-    `metadata.ideal: ${describeValue(ideal)} is not allowed; {"kind": "gate", "axis": [x, y, z], "angleRad": a} or {"kind": "state", "from": [x, y, z], "to": [x, y, z]}`,
+    `metadata.ideal: ${describeValue(ideal)} is not allowed; {"gate": {"axis": [x, y, z], "angleDeg": a}} or {"state": {"from": [x, y, z], "to": [x, y, z]}} (or the core's {"kind": "gate", "axis", "angleRad"})`,
   );
 }

@@ -1,20 +1,24 @@
 // Design with the starts spread over Node worker threads (the command line's way to use
-// every core; the app does the same with Web Workers). Each thread runs the ordinary
-// design() on its share of the start indices; the best start wins as in design() (best-start.ts).
+// every core and to stop at once; the app does the same with Web Workers). Each thread runs
+// the ordinary design() on its share of the start indices; the best start wins as in design()
+// (best-start.ts).
+// Stopping terminates the threads instead of waiting for an iteration to end (one
+// iteration of a large problem can take seconds): each running start then contributes the
+// last pulse it reported, which is its best so far since L-BFGS only accepts decreases.
 import { createRequire } from 'node:module';
 import { availableParallelism } from 'node:os';
 import { pathToFileURL } from 'node:url';
 import { Worker } from 'node:worker_threads';
-import { design, toProblem } from './api.ts';
-import { mergeDesigns } from './best-start.ts';
+import { bestOfStarts, toProblem } from './api.ts';
 import type { DesignOptions } from './api.ts';
 import { checkProblemAngles } from './limits.ts';
-import type { DesignResult, Progress } from './types.ts';
+import type { DesignResult, Problem, Progress, Pulse, StartResult } from './types.ts';
 
 /** Messages from a design thread. */
 export type ThreadMessage =
   | { kind: 'progress'; progress: Progress }
-  | { kind: 'done'; result: DesignResult }
+  | { kind: 'start'; result: StartResult }
+  | { kind: 'done' }
   | { kind: 'error'; name: string; message: string; stack?: string };
 
 /** Options of a threaded design: those of design() plus the number of threads. */
@@ -23,40 +27,98 @@ export interface ThreadedDesignOptions extends DesignOptions {
   threads?: number;
 }
 
-/** Design a pulse with the starts spread over worker threads; one thread runs in-process. */
+/** How often (ms) a thread sends its current samples, so that a stop loses little. */
+const KEEP_PULSE_EVERY_MS = 100;
+
+/** Raised when a threaded design is stopped before any start reported a pulse. */
+export class StoppedBeforeFirstIterationError extends Error {
+  override name = 'StoppedBeforeFirstIterationError';
+}
+
+/**
+ * Design a pulse with the starts spread over worker threads (at least one thread, even for
+ * one start). Aborting the signal terminates the threads at once and returns the best pulse
+ * reported so far; a start cut short has stopReason "stopped" and evaluations NaN.
+ */
 export async function designInThreads(spec: unknown, options: ThreadedDesignOptions = {}): Promise<DesignResult> {
   const problem = toProblem(spec);
   checkProblemAngles(problem);
   const indices = options.startIndices ?? Array.from({ length: problem.optimizer.starts }, (_, k) => k);
   const threads = Math.max(1, Math.min(options.threads ?? availableParallelism(), indices.length));
-  if (threads === 1) return design(problem, options);
   const t0 = performance.now();
   const shares = Array.from({ length: threads }, (_, t) => indices.filter((_, k) => k % threads === t));
-  const runs = shares.map((share) => runThread(problem, share, options));
-  return mergeDesigns(await Promise.all(runs), (performance.now() - t0) / 1000);
+  const latest = new Map<number, Progress>();
+  const finished: StartResult[] = [];
+  const onProgress = (p: Progress): void => {
+    const previous = latest.get(p.start);
+    // Keep the last report that carried samples, with the figures of that same iterate.
+    if (p.pulse || !previous?.pulse) latest.set(p.start, p);
+    if (options.onProgress) {
+      const { pulse, ...rest } = p;
+      options.onProgress(options.progressPulseEveryMs !== undefined && pulse ? p : rest);
+    }
+  };
+  const workers: Worker[] = [];
+  const runs = shares.map((share) => runThread(problem, share, options, workers, onProgress, finished));
+  // The threads end inside the abort itself, before whatever the caller does next.
+  const stopped = new Promise<'stopped'>((resolve) => {
+    const stop = (): void => {
+      for (const w of workers) void w.terminate();
+      resolve('stopped');
+    };
+    if (options.signal?.aborted) stop();
+    options.signal?.addEventListener('abort', stop, { once: true });
+  });
+  const outcome = await Promise.race([Promise.all(runs).then(() => 'done' as const), stopped]);
+  if (outcome === 'stopped') {
+    const done = new Set(finished.map((s) => s.start));
+    for (const [start, p] of latest) {
+      if (!done.has(start) && p.pulse) finished.push(startFromProgress(problem, p, t0));
+    }
+    if (finished.length === 0) throw new StoppedBeforeFirstIterationError('the design was stopped before its first iteration: there is no pulse yet');
+  }
+  finished.sort((a, b) => a.start - b.start);
+  return bestOfStarts(problem, finished, t0);
 }
 
-// Threads do not inherit the TypeScript loader: each registers tsx, then loads the thread module.
-function threadBootstrap(): string {
+/** A start cut short, from its last progress report with samples. */
+function startFromProgress(problem: Problem, p: Progress, t0: number): StartResult {
+  const pulse: Pulse = { dt: problem.dt, i: p.pulse!.i, q: p.pulse!.q, metadata: { origin: 'design', name: `design start ${p.start}` } };
+  return {
+    start: p.start, pulse, meanInfidelity: p.meanInfidelity, objective: p.objective, iterations: p.iteration,
+    evaluations: NaN, stopReason: 'stopped', elapsedS: (performance.now() - t0) / 1000,
+  };
+}
+
+// Compiled (dist/core/threads.js) the thread loads design-thread.js directly. From the
+// TypeScript sources (tests, benchmarks) it registers tsx first: threads do not inherit
+// the parent's loader. tsx is a development tool and never loaded by the package.
+function threadEntry(): { url: string | URL; eval: boolean } {
+  if (import.meta.url.endsWith('.js')) return { url: new URL('./design-thread.js', import.meta.url), eval: false };
   // The ESM build of tsx's API (its CommonJS build resolves its loader wrongly from a thread).
   const cjs = createRequire(import.meta.url).resolve('tsx/esm/api');
   const tsx = pathToFileURL(cjs.replace(/index\.cjs$/, 'index.mjs')).href;
   const thread = new URL('./design-thread.ts', import.meta.url).href;
-  return `import(${JSON.stringify(tsx)}).then((m) => { m.register(); return import(${JSON.stringify(thread)}); });`;
+  return { url: `import(${JSON.stringify(tsx)}).then((m) => { m.register(); return import(${JSON.stringify(thread)}); });`, eval: true };
 }
 
-function runThread(problem: unknown, startIndices: number[], options: ThreadedDesignOptions): Promise<DesignResult> {
+function runThread(
+  problem: unknown,
+  startIndices: number[],
+  options: ThreadedDesignOptions,
+  workers: Worker[],
+  onProgress: (p: Progress) => void,
+  finished: StartResult[],
+): Promise<void> {
   return new Promise((resolve, reject) => {
-    const worker = new Worker(threadBootstrap(), {
-      eval: true,
-      workerData: { problem, startIndices, progressPulseEveryMs: options.progressPulseEveryMs },
-    });
-    const stop = (): void => worker.postMessage('stop');
-    options.signal?.addEventListener('abort', stop, { once: true });
-    if (options.signal?.aborted) stop();
+    const entry = threadEntry();
+    const keepEvery = Math.min(options.progressPulseEveryMs ?? KEEP_PULSE_EVERY_MS, KEEP_PULSE_EVERY_MS);
+    const worker = new Worker(entry.url, { eval: entry.eval, workerData: { problem, startIndices, progressPulseEveryMs: keepEvery } });
+    workers.push(worker);
     worker.on('message', (message: ThreadMessage) => {
-      if (message.kind === 'progress') options.onProgress?.(message.progress);
-      else if (message.kind === 'done') resolve(message.result);
+      if (message.kind === 'progress') onProgress(message.progress);
+      else if (message.kind === 'start') finished.push(message.result);
+      else if (message.kind === 'done') resolve();
       else {
         const error = new Error(message.message);
         error.name = message.name;
@@ -65,6 +127,6 @@ function runThread(problem: unknown, startIndices: number[], options: ThreadedDe
       }
     });
     worker.on('error', reject);
-    worker.on('exit', () => options.signal?.removeEventListener('abort', stop));
+    worker.on('exit', () => resolve());
   });
 }

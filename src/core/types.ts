@@ -44,6 +44,32 @@ export interface OptimizerSettings {
   memory: number;
 }
 
+/** The response of the line between the instrument and the qubit (docs/physics.md section 5). */
+export type LineResponse =
+  /** |H(f)| = exp(-ln2 f^2 / (2 bandwidth^2)): -3 dB at `bandwidth` (Hz), symmetric, no delay. */
+  | { kind: 'gaussian'; bandwidth: number }
+  /** First-order RC stages in series, one -3 dB bandwidth (Hz) each. */
+  | { kind: 'lowpass'; bandwidths: number[] }
+  /** A measured impulse response, one value per fine step from lag 0 (normalised to unit gain); `source` names its file. */
+  | { kind: 'impulse'; values: number[]; source?: string };
+
+/** The line: the programmed samples held on dt / oversample and passed through a response. */
+export interface Line {
+  oversample: number;
+  /** Null: the held samples alone. */
+  response: LineResponse | null;
+  /** Overall delay (s), a whole number of fine steps. */
+  delay: number;
+  /** Where the amplitude bound holds: the programmed samples, or also the drive the qubit sees. */
+  boundOn: 'programmed' | 'both';
+  /**
+   * The fine step (s): the spec's dt / oversample. A pulse of another dt (an exported
+   * waveform) is simulated on a whole number of steps per sample near it; absent, on
+   * its own dt / oversample.
+   */
+  fineStep?: number;
+}
+
 /** A validated, normalised design problem (what `parseSpec` returns). */
 export interface Problem {
   target: Target;
@@ -58,6 +84,8 @@ export interface Problem {
   members: Member[];
   constraints: Constraints;
   optimizer: OptimizerSettings;
+  /** The line between the instrument and the qubit; absent: the qubit sees the held samples. */
+  line?: Line;
 }
 
 /** Metadata carried by a pulse file. */

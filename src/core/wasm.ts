@@ -16,6 +16,7 @@ export interface CoreExports {
   problemBuffer(p: number, which: number): number;
   problemFigure(p: number): number;
   problemGradient(p: number): number;
+  problemDrive(p: number): void;
   problemInfidelity(p: number): number;
   problemVariables(p: number): number;
   problemSeries(p: number): number;

@@ -5,6 +5,7 @@ import type { RobustnessMap } from '../core/api.ts';
 import { axisValues } from '../core/grid.ts';
 import type { RobustnessSummary } from '../core/robustness.ts';
 import type { Target } from '../core/types.ts';
+import { targetJson } from './target-json.ts';
 
 /** The `format` name of a JSON map file. */
 export const MAP_FORMAT = 'gatesmith.robustness-map';
@@ -30,7 +31,7 @@ export function writeMapCsv(map: RobustnessMap, context: MapContext): string {
   const lines = [
     '# gatesmith robustness map, CSV',
     `# pulse: ${oneLine(context.pulseName)}`,
-    `# target: ${JSON.stringify(context.target)}`,
+    `# target: ${JSON.stringify(targetJson(context.target))}`,
     ...(context.targetNote ? [`# note: ${oneLine(context.targetNote)}`] : []),
     `# figure: ${FIGURE}`,
     `# grid: detuning ${d.min}..${d.max} Hz in ${d.points} points x amplitude error ${a.min}..${a.max} (relative) in ${a.points} points; detuning varies fastest`,
@@ -54,14 +55,14 @@ export function writeMapJson(map: RobustnessMap, context: MapContext, summary: R
     format: MAP_FORMAT,
     version: MAP_VERSION,
     pulse: context.pulseName,
-    target: context.target,
+    target: targetJson(context.target),
     targetNote: context.targetNote,
     figure: FIGURE,
     layout: 'row-major: infidelity[amplitudeErrorIndex * detuning.points + detuningIndex]',
     detuning: { ...map.detuning, unit: 'Hz' },
     amplitudeError: { ...map.amplitudeError, unit: 'relative' },
     infidelity: Array.from(map.infidelity),
-    summary,
+    summary: { ...summary, targetGiven: targetJson(summary.targetGiven), targetUsed: targetJson(summary.targetUsed) },
   };
   return JSON.stringify(doc, null, 2) + '\n';
 }

@@ -4,6 +4,7 @@
 // pulse) and strict about those three; writing keeps every double exactly.
 import { checkPulse } from '../core/encode.ts';
 import { PulseFormatError, describeValue } from '../core/errors.ts';
+import { parseJsonText } from '../core/json-text.ts';
 import type { Pulse, PulseMetadata } from '../core/types.ts';
 
 /** The `format` name written into every pulse file. */
@@ -76,10 +77,9 @@ export function writePulse(pulse: Pulse): string {
 
 function parseJson(text: string): unknown {
   try {
-    return JSON.parse(text);
+    return parseJsonText(text);
   } catch (error) {
-    const reason = error instanceof Error ? error.message : String(error);
-    throw new PulseFormatError(`pulse: not valid JSON (${reason})`);
+    throw new PulseFormatError(`pulse: ${(error as Error).message}`);
   }
 }
 

@@ -4,7 +4,8 @@
 import { proxy, releaseProxy, wrap, type Endpoint, type Remote } from 'comlink';
 import { mergeDesigns } from '../core/best-start.ts';
 import { axisValue } from '../core/grid.ts';
-import type { DesignResult, Evaluation, GridAxis, Member, Pulse, Target, Vec3 } from '../core/types.ts';
+import type { QubitDrive } from '../core/line.ts';
+import type { DesignResult, Evaluation, GridAxis, Line, Member, Pulse, Target, Vec3 } from '../core/types.ts';
 import type { EncodedWaveform } from '../io/export/index.ts';
 import type {
   CompareRequest,
@@ -138,8 +139,8 @@ export class CoreClient {
   }
 
   /** A map, coarse first, then full resolution in bands spread over the idle workers. */
-  async map(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, onUpdate?: (update: MapUpdate) => void): Promise<MapUpdate> {
-    const coarse = await this.analysis.map(target, pulse, coarseAxis(detuning), coarseAxis(amplitudeError));
+  async map(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, onUpdate?: (update: MapUpdate) => void, line?: Line): Promise<MapUpdate> {
+    const coarse = await this.analysis.map(target, pulse, coarseAxis(detuning), coarseAxis(amplitudeError), line);
     const update: MapUpdate = { coarse, complete: false };
     onUpdate?.({ ...update });
     const workers = this.designing ? [this.analysis] : [this.analysis, ...this.designers.filter((d) => d !== this.analysis)];
@@ -150,7 +151,7 @@ export class CoreClient {
       bands.map(async ([first, last], b) => {
         const rows: GridAxis = { min: axisValue(amplitudeError, first), max: axisValue(amplitudeError, last), points: last - first + 1 };
         if (amplitudeError.points === 1) Object.assign(rows, amplitudeError);
-        const part = await workers[b].map(target, pulse, detuning, rows);
+        const part = await workers[b].map(target, pulse, detuning, rows, line);
         infidelity.set(part.infidelity, first * detuning.points);
         update.fine = fine;
         onUpdate?.({ ...update });
@@ -162,8 +163,8 @@ export class CoreClient {
   }
 
   /** Cuts through zero error over the grid's ranges. */
-  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): Promise<Cuts> {
-    return this.analysis.cuts(target, pulse, detuning, amplitudeError);
+  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): Promise<Cuts> {
+    return this.analysis.cuts(target, pulse, detuning, amplitudeError, line);
   }
 
   /** The comparison table and cuts. */
@@ -172,13 +173,18 @@ export class CoreClient {
   }
 
   /** Bloch vectors after each sample for one member. */
-  trajectory(pulse: Pulse, member: Member, from: Vec3): Promise<Float64Array> {
-    return this.analysis.trajectory(pulse, member, from);
+  trajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line): Promise<Float64Array> {
+    return this.analysis.trajectory(pulse, member, from, line);
+  }
+
+  /** The drive the qubit sees through the line. */
+  drive(pulse: Pulse, line?: Line): Promise<QubitDrive> {
+    return this.analysis.drive(pulse, line);
   }
 
   /** Bloch paths of several members, each thinned to at most `maxPoints` points. */
-  ensembleTrajectories(pulse: Pulse, members: Member[], from: Vec3, maxPoints = 600): Promise<EnsemblePaths> {
-    return this.analysis.ensembleTrajectories(pulse, members, from, maxPoints);
+  ensembleTrajectories(pulse: Pulse, members: Member[], from: Vec3, maxPoints = 600, line?: Line): Promise<EnsemblePaths> {
+    return this.analysis.ensembleTrajectories(pulse, members, from, maxPoints, line);
   }
 
   /** The held pulse's spectrum over a span of detunings, computed in the analysis worker. */

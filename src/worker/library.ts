@@ -2,6 +2,7 @@
 import { blochTrajectory, design, evaluateMembers, robustnessMap } from '../core/api.ts';
 import { compare, evaluateJudged } from '../core/compare.ts';
 import { compositeNames } from '../core/composites.ts';
+import { qubitDrive } from '../core/line.ts';
 import { cuts } from '../core/robustness.ts';
 import { heldSpectrum } from '../core/spectrum.ts';
 import { parseSpec } from '../core/spec.ts';
@@ -18,6 +19,7 @@ export const library: CoreLibrary = {
   robustnessMap,
   blochTrajectory,
   heldSpectrum,
+  qubitDrive: (pulse, line) => qubitDrive(pulse, line),
   compare,
   cuts,
   composites: compositeNames,

@@ -1,7 +1,8 @@
 // What crosses the worker boundary: plain data (typed arrays moved, not copied) and one
 // coarse call per job. The worker implements CoreService (service.ts); the page reaches it
 // only through the client (client.ts).
-import type { DesignResult, Evaluation, GridAxis, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
+import type { QubitDrive } from '../core/line.ts';
+import type { DesignResult, Evaluation, GridAxis, Line, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
 import type { CompareRow, NamedPulse } from '../core/compare.ts';
 import type { Cuts } from '../core/robustness.ts';
 import type { EncodedWaveform, ExportReport, SampleUnits, WaveformFormat } from '../io/export/index.ts';
@@ -78,12 +79,16 @@ export interface CompareRequest {
   detuning: GridAxis;
   amplitudeError: GridAxis;
   threshold: number;
+  /** Also give every row's mean and worst without the spec's line (what ignoring it would show). */
+  withoutLine?: boolean;
 }
 
 /** What an exported waveform is judged against: a target and the ensemble's members (the spec's, normally). */
 export interface ExportJudge {
   target: Target;
   members: Member[];
+  /** The line the qubit sees the waveform through (the spec's). */
+  line?: Line;
 }
 
 /** The instrument export of a pulse as the export panel shows it. */
@@ -107,7 +112,7 @@ export interface EnsemblePaths {
   paths: Float64Array;
   /** Points in each member's path (the start, then samples at even steps, the end always kept). */
   pointsPerPath: number;
-  /** Sample index after which each point lies (0 for the start). */
+  /** Index of the step (sample, or fine step through a line) after which each point lies (0 for the start). */
   sampleIndex: Int32Array;
 }
 
@@ -124,17 +129,19 @@ export interface CoreService {
   /** Figures of a pulse on the spec's ensemble and target. */
   evaluate(spec: unknown, pulse: Pulse): Promise<Evaluation>;
   /** Infidelity of a pulse on a grid. */
-  map(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): Promise<MapResult>;
+  map(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): Promise<MapResult>;
   /** Cuts through zero error with the grid's ranges and point counts. */
-  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): Promise<Cuts>;
+  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): Promise<Cuts>;
   /** Summary figures and cuts of the given pulses and composite sequences under the spec's limits. */
   compare(request: CompareRequest): Promise<CompareRow[]>;
   /** Bloch vector after each sample for one member, 3 (N + 1) values. */
-  trajectory(pulse: Pulse, member: Member, from: Vec3): Promise<Float64Array>;
-  /** Bloch paths of several members from one initial state, thinned to at most `maxPoints` points each. */
-  ensembleTrajectories(pulse: Pulse, members: Member[], from: Vec3, maxPoints: number): Promise<EnsemblePaths>;
+  trajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line): Promise<Float64Array>;
+  /** Bloch paths of several members from one initial state (through the line when given), thinned to at most `maxPoints` points each. */
+  ensembleTrajectories(pulse: Pulse, members: Member[], from: Vec3, maxPoints: number, line?: Line): Promise<EnsemblePaths>;
   /** |X(D)| of the held pulse over a span of detunings (src/core/spectrum.ts). */
   spectrum(pulse: Pulse, request: SpectrumRequest): Promise<Spectrum>;
+  /** The drive the qubit sees when the pulse is played through the line (the one library function, qubitDrive). */
+  drive(pulse: Pulse, line?: Line): Promise<QubitDrive>;
   /** Reads a pulse file's text (PulseFormatError when malformed). */
   readPulse(text: string): Pulse;
   /** Writes a pulse file's text. */

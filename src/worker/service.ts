@@ -5,7 +5,8 @@ import type { DesignOptions, RobustnessMap } from '../core/api.ts';
 import type { Spectrum, SpectrumRequest } from '../core/spectrum.ts';
 import type { CompareOptions, Comparison, NamedPulse } from '../core/compare.ts';
 import type { Cuts } from '../core/robustness.ts';
-import type { DesignResult, Evaluation, GridAxis, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
+import type { QubitDrive } from '../core/line.ts';
+import type { DesignResult, Evaluation, GridAxis, Line, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
 import type { EncodedWaveform, EncodeOptions, ExportedWaveform, ExportReport, PulseEvaluator, WaveformFormat } from '../io/export/index.ts';
 import type {
   CoreInfo,
@@ -29,22 +30,24 @@ export interface CoreLibrary {
   design(spec: unknown, options?: DesignOptions): Promise<DesignResult>;
   /** Figures on the spec's ensemble against the target the pulse is judged against (core/target-choice.ts). */
   evaluate(spec: unknown, pulse: Pulse): Evaluation;
-  evaluateMembers(target: Target, pulse: Pulse, members: Member[]): Evaluation;
-  robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): RobustnessMap;
-  blochTrajectory(pulse: Pulse, member: Member, from: Vec3): Float64Array;
+  evaluateMembers(target: Target, pulse: Pulse, members: Member[], line?: Line): Evaluation;
+  robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): RobustnessMap;
+  blochTrajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line): Float64Array;
+  /** The drive the qubit sees through a line (the pulse itself without one). */
+  qubitDrive(pulse: Pulse, line: Line | undefined): QubitDrive;
   /** |X(D)| of the held pulse over a span of detunings. */
   heldSpectrum(pulse: Pulse, request: SpectrumRequest): Spectrum;
   /** Pulses and composite sequences judged on one spec, best first (what `gatesmith compare` prints). */
   compare(spec: unknown, pulses: readonly NamedPulse[], options?: CompareOptions): Comparison;
   /** The cuts through zero error along each axis. */
-  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis): Cuts;
+  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): Cuts;
   composites: readonly CompositeChoice[];
   readPulse(text: string): Pulse;
   writePulse(pulse: Pulse): string;
   /** The instrument waveform of a pulse (ExportError when it is refused). */
   exportWaveform(pulse: Pulse, settings: unknown): ExportedWaveform;
   /** The export report; gate figures by `against` (null: the sample figures only). */
-  exportReport(against: PulseEvaluator | null, design: Pulse, waveform: ExportedWaveform): Promise<ExportReport>;
+  exportReport(against: PulseEvaluator | null, design: Pulse, waveform: ExportedWaveform, withoutLine?: PulseEvaluator): Promise<ExportReport>;
   /** A waveform's file bytes, identical to what the command line writes. */
   encodeWaveform(waveform: ExportedWaveform, format: WaveformFormat, options?: EncodeOptions): Promise<EncodedWaveform>;
   /** The waveform as played: I/Q in Hz at the instrument sample period, SSB demodulated, padding kept. */
@@ -160,38 +163,49 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
       return withCore(() => library.evaluate(spec, pulse));
     },
 
-    map(target, pulse, detuning, amplitudeError) {
+    map(target, pulse, detuning, amplitudeError, line) {
       return withCore((): MapResult => {
-        const map = library.robustnessMap(target, pulse, detuning, amplitudeError);
+        const map = library.robustnessMap(target, pulse, detuning, amplitudeError, line);
         return moved({ detuning: map.detuning, amplitudeError: map.amplitudeError, infidelity: map.infidelity });
       });
     },
 
-    cuts(target, pulse, detuning, amplitudeError) {
-      return withCore(() => moved(library.cuts(target, pulse, detuning, amplitudeError)));
+    cuts(target, pulse, detuning, amplitudeError, line) {
+      return withCore(() => moved(library.cuts(target, pulse, detuning, amplitudeError, line)));
     },
 
     compare(request) {
       return withCore(() => {
-        const { spec, pulses, composites, detuning, amplitudeError, threshold } = request;
-        const { rows } = library.compare(spec, pulses, { composites, region: { detuning, amplitudeError }, threshold, cuts: true });
+        const { spec, pulses, composites, detuning, amplitudeError, threshold, withoutLine } = request;
+        const { rows } = library.compare(spec, pulses, { composites, region: { detuning, amplitudeError }, threshold, cuts: true, withoutLine });
         return moved(rows);
       });
     },
 
-    trajectory(pulse, member, from) {
-      return withCore(() => moved(library.blochTrajectory(pulse, member, from)));
+    trajectory(pulse, member, from, line) {
+      return withCore(() => moved(library.blochTrajectory(pulse, member, from, line)));
     },
 
-    ensembleTrajectories(pulse, members, from, maxPoints) {
+    drive(pulse, line) {
+      return withCore(() => moved(library.qubitDrive(pulse, line)));
+    },
+
+    ensembleTrajectories(pulse, members, from, maxPoints, line) {
       return withCore((): EnsemblePaths => {
-        const keep = thinnedIndices(pulse.i.length, maxPoints);
-        const paths = new Float64Array(3 * keep.length * members.length);
+        // Through a line the path has a point per fine step, not per sample: thin by its own length.
+        let keep: Int32Array | null = null;
+        let paths = new Float64Array(0);
         members.forEach((member, m) => {
-          const path = library.blochTrajectory(pulse, member, from);
-          keep.forEach((k, p) => paths.set(path.subarray(3 * k, 3 * k + 3), 3 * (m * keep.length + p)));
+          const path = library.blochTrajectory(pulse, member, from, line);
+          if (!keep) {
+            keep = thinnedIndices(path.length / 3 - 1, maxPoints);
+            paths = new Float64Array(3 * keep.length * members.length);
+          }
+          const kept = keep;
+          kept.forEach((k, p) => paths.set(path.subarray(3 * k, 3 * k + 3), 3 * (m * kept.length + p)));
         });
-        return moved({ paths, pointsPerPath: keep.length, sampleIndex: keep });
+        const sampleIndex = keep ?? new Int32Array(0);
+        return moved({ paths, pointsPerPath: sampleIndex.length, sampleIndex });
       });
     },
 
@@ -212,8 +226,9 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
       // The evaluation runs on the core, so the whole job waits its turn like any other.
       return withCore(async (): Promise<ExportPreview> => {
         const waveform = library.exportWaveform(pulse, settings);
-        const evaluate = judge ? (p: Pulse) => library.evaluateMembers(judge.target, p, judge.members) : null;
-        const report = await library.exportReport(evaluate, pulse, waveform);
+        const evaluate = judge ? (p: Pulse) => library.evaluateMembers(judge.target, p, judge.members, judge.line) : null;
+        const naive = judge?.line ? (p: Pulse) => library.evaluateMembers(judge.target, p, judge.members) : undefined;
+        const report = await library.exportReport(evaluate, pulse, waveform, naive);
         return moved({ report, played: library.playedPulse(waveform) });
       });
     },

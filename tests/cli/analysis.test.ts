@@ -11,6 +11,7 @@ import { evaluate, robustnessMap } from '../../src/core/api.ts';
 import { buildComposite, compositeNames } from '../../src/core/composites.ts';
 import { SORT_FIGURES, type CompareRow } from '../../src/core/compare.ts';
 import type { Target } from '../../src/core/types.ts';
+import { targetJson } from '../../src/io/target-json.ts';
 import { run } from './run.ts';
 import { expectClose } from '../reference/tolerance.ts';
 import { readPulse } from '../../src/io/pulse.ts';
@@ -41,7 +42,7 @@ describe('gatesmith composite', () => {
     const written = readPulse(readFileSync(out, 'utf8'));
     expect(Array.from(written.i)).toEqual(Array.from(expected.i));
     expect(Array.from(written.q)).toEqual(Array.from(expected.q));
-    expect(written.metadata.ideal).toEqual(X90);
+    expect(written.metadata.ideal).toEqual(targetJson(X90)); // in degrees, as people read the file
     // Wimperis 1994 at theta = pi/2: p1 = 97.18, 3 p1 = 291.54 degrees (docs/physics.md, recomputed from the formula).
     expect(r.stdout).toMatch(/\b97\.18\d*\b/);
     expect(r.stdout).toMatch(/\b291\.54\d*\b/);
@@ -53,7 +54,7 @@ describe('gatesmith composite', () => {
     const j = await run(['composite', 'corpse', ...BB1_ARGS, '--json']);
     expect(j.code).toBe(0);
     const json = JSON.parse(j.stdout);
-    expect(Object.keys(json).sort()).toEqual(['dt', 'durationS', 'metadata', 'out', 'samples']);
+    expect(Object.keys(json).sort()).toEqual(['dt', 'durationS', 'metadata', 'out', 'samples', 'warnings']);
     expect(json.metadata.composite).toBe('corpse');
     expect(json.metadata.elements).toHaveLength(3);
     expect(json.metadata.elementRabiSpread).toBeGreaterThan(0);
@@ -129,7 +130,8 @@ describe('gatesmith map', () => {
     for (const key of ['meanInfidelity', 'worstInfidelity', 'regionMeanInfidelity', 'regionWorstInfidelity', 'areaFraction', 'detuningHalfWidth', 'amplitudeHalfWidth', 'durationS', 'peakRabiHz', 'pulseAreaTurns', 'energyHz2S']) {
       expect(typeof printed[key], key).toBe('number');
     }
-    expect(printed.targetUsed).toEqual(X90);
+    // Targets in the spec's form, angles in degrees (what a person reads).
+    expect(printed.targetUsed).toEqual({ gate: { axis: [1, 0, 0], angleDeg: 90 } });
     expect(printed.targetNote).toBeNull();
     const file = JSON.parse(readFileSync(out, 'utf8'));
     expect(file.format).toBe('gatesmith.robustness-map');
@@ -171,7 +173,7 @@ describe('gatesmith compare', () => {
     const r = await run(['compare', TRANSMON, rectPath, '--composites', 'bb1,sk1,corpse', '--json', '--detuning', '-1e6:1e6:21', '--amplitude', '-0.1:0.1:21']);
     expect(r.code).toBe(0);
     const json = JSON.parse(r.stdout);
-    expect(Object.keys(json).sort()).toEqual(['amplitudeError', 'detuning', 'rows', 'sortBy', 'target', 'threshold']);
+    expect(Object.keys(json).sort()).toEqual(['amplitudeError', 'detuning', 'rows', 'sortBy', 'target', 'threshold', 'warnings']);
     expect(json.detuning).toEqual({ min: -1e6, max: 1e6, points: 21 });
     expect(json.rows.map((row: { name: string }) => row.name).sort()).toEqual(['BB1', 'CORPSE', 'Rectangular, 90 deg about the axis at 0 deg', 'SK1'].sort());
     const means = json.rows.map((row: { figures: { meanInfidelity: number } }) => row.figures.meanInfidelity);
@@ -205,7 +207,7 @@ describe('gatesmith compare', () => {
     const json = JSON.parse((await run(['compare', TRANSMON, other, rectPath, '--composites', 'bb1', '--json'])).stdout);
     const last = json.rows[json.rows.length - 1];
     expect(last.file).toBe(other);
-    expect(last.target).toEqual(X90);
+    expect(last.target).toEqual(targetJson(X90));
     expect(last.note).toContain("does not meet the spec's target");
     const zero = JSON.parse((await run(['compare', TRANSMON, other, '--json', '--detuning', '0:0:1', '--amplitude', '0:0:1'])).stdout);
     expectClose(zero.rows[0].figures.regionMeanInfidelity, 0.75, { rel: 1e-12 }, 'infidelity against X(90) at zero error');
@@ -224,8 +226,8 @@ describe('gatesmith compare', () => {
     const json = JSON.parse((await run(['compare', x180Spec, '--composites', 'knill,bb1', '--json', '--detuning', '0:0:1', '--amplitude', '0:0:1'])).stdout);
     const rows = byName(json);
     const ideal = buildComposite('knill', { angleDeg: 180, rabiMax: 1e7, dt: 2e-9 }).metadata.ideal;
-    expect(rows.Knill.target).toEqual(ideal);
-    expect(json.target).toEqual({ kind: 'gate', axis: [1, 0, 0], angleRad: Math.PI });
+    expect(rows.Knill.target).toEqual(targetJson(ideal));
+    expect(json.target).toEqual({ gate: { axis: [1, 0, 0], angleDeg: 180 } });
     // Without error it meets its ideal (Ryan, Hodges, Cory 2010); BB1 meets the given X(180).
     expect(rows.Knill.figures!.regionMeanInfidelity).toBeLessThan(1e-12);
     expect(rows.BB1.note).toBeNull();
@@ -248,7 +250,7 @@ describe('gatesmith compare', () => {
     expect(r.code).toBe(0);
     const rows = byName(JSON.parse(r.stdout));
     for (const row of Object.values(rows)) {
-      expect(row.target).toEqual({ kind: 'state', from: [0, 0, 1], to: [0, 0, -1] });
+      expect(row.target).toEqual({ state: { from: [0, 0, 1], to: [0, 0, -1] } });
       expect(row.note).toContain("meets the spec's state transfer");
     }
     // Levitt & Freeman 1979: 90-180-90 compensates amplitude error for the inversion.
@@ -259,7 +261,7 @@ describe('gatesmith compare', () => {
     const s = await run(['compare', sideways, '--composites', 'bb1,knill,90-180-90', '--json']);
     expect(s.code).toBe(0);
     const built = byName(JSON.parse(s.stdout));
-    expect(built.BB1.target).toEqual({ kind: 'state', from: [0, 0, 1], to: [0, 1, 0] });
+    expect(built.BB1.target).toEqual({ state: { from: [0, 0, 1], to: [0, 1, 0] } });
     expect(built.BB1.note).toContain('a 90 degree rotation about [-1, 0, 0], meets the spec\'s state transfer');
     expect(built.BB1.figures!.meanInfidelity).toBeLessThan(1e-2);
     expect(built.Knill.error!.message).toContain('knill takes 180 degrees only');

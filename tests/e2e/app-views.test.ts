@@ -3,6 +3,7 @@
 // the run's history after a reload, and help for every field. Screenshots of each view in
 // light and dark at 1440 and 800 px land in test-results/.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { readFileSync } from 'node:fs';
 import type { BrowserContext, Page } from 'playwright-core';
 import { demoSpec } from '../../src/app/demo.ts';
 import { parseSpec } from '../../src/core/spec.ts';
@@ -85,6 +86,22 @@ describe.skipIf(reason !== null)('views in Chromium', () => {
     await page.locator('#s-span').selectOption('rate');
     await page.waitForTimeout(300);
     await everyLook(page, 'spectrum');
+  }, 120_000);
+
+  it('overlays the spectrum of the drive the qubit sees through the spec\'s line', async () => {
+    const page = await open();
+    const spec = JSON.parse(readFileSync('examples/transmon-x90-line.json', 'utf8'));
+    await page.goto(`${harness.url}#spec=${encodeURIComponent(JSON.stringify(spec))}`);
+    await page.reload();
+    await page.getByTestId('run').waitFor();
+    await openPulse(page, 'rect.json', pulseFile(2e-9, new Array(100).fill(5e6)));
+    await page.keyboard.press('Alt+7');
+    await page.getByTestId('spectrum-line').waitFor({ timeout: 30_000 });
+    // A line of unit gain at zero frequency keeps the pulse's area, |X(0)| (an invariant of a normalised kernel).
+    expect(await page.getByTestId('spectrum-line').textContent()).toContain('through the line: 0.00 dB at its peak');
+    await page.locator('#s-span').selectOption('rate');
+    await page.waitForTimeout(500);
+    await everyLook(page, 'spectrum-line');
   }, 120_000);
 
   it('lists the samples in a table to copy, sample k starting at k dt, paged for 100 000 samples', async () => {

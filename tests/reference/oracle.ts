@@ -333,3 +333,17 @@ function checkPulse(pulse: Pulse): void {
     throw new ArgumentError(`pulse.q: ${pulse.q.length} samples is not allowed; as many as pulse.i (${pulse.i.length})`);
   }
 }
+
+/**
+ * The drive a line gives, written plainly: each sample held for `oversample` fine steps,
+ * then the full direct convolution sum with the kernel h (docs/physics.md section 5).
+ */
+export function heldLineDrive(i: ArrayLike<number>, q: ArrayLike<number>, h: ArrayLike<number>, oversample: number): { i: number[]; q: number[] } {
+  const held = (x: ArrayLike<number>): number[] => Array.from({ length: x.length * oversample }, (_, k) => x[Math.floor(k / oversample)]);
+  const convolve = (u: number[]): number[] => {
+    const out = new Array<number>(u.length + h.length - 1).fill(0);
+    for (let k = 0; k < u.length; k++) for (let j = 0; j < h.length; j++) out[k + j] += h[j] * u[k];
+    return out;
+  };
+  return { i: convolve(held(i)), q: convolve(held(q)) };
+}

@@ -14,6 +14,7 @@ import { readPulse, writePulse } from '../../src/io/pulse.ts';
 import type { CoreService } from '../../src/worker/protocol.ts';
 import { run } from '../cli/run.ts';
 import { closePorts, serviceEndpoint } from './in-realm.ts';
+import { targetJson } from '../../src/io/target-json.ts';
 
 const SPEC = JSON.parse(readFileSync(new URL('../../examples/transmon-x90.json', import.meta.url), 'utf8'));
 const REGION = { detuning: { min: -1.5e6, max: 1.5e6, points: 15 }, amplitudeError: { min: -0.12, max: 0.12, points: 13 } };
@@ -59,7 +60,8 @@ describe('compare from the command line and from the worker', () => {
     rows.forEach((row, k) => {
       const line = printed.rows[k];
       expect(line.origin, row.name).toBe(row.origin);
-      expect(line.target ?? null, row.name).toEqual(row.target ?? null);
+      // The command prints the target in the spec's form, its angle in degrees.
+      expect(line.target ?? null, row.name).toEqual(row.target ? targetJson(row.target) : null);
       expect(line.note ?? null, row.name).toBe(row.note ?? null);
       expect(line.error ?? null, row.name).toEqual(row.error ?? null);
       // Every figure to the last bit (JSON writes doubles exactly).

@@ -1,5 +1,6 @@
 // One door to every waveform container, so that the command line and the app write the
 // same bytes for the same waveform and read every format back the same way.
+import { parseJsonText } from '../../core/json-text.ts';
 import { ExportError, PulseFormatError } from '../../core/errors.ts';
 import type { PulseMetadata } from '../../core/types.ts';
 import { readCsv, writeCsv } from './csv.ts';
@@ -115,9 +116,9 @@ export async function decodeWaveform(bytes: Uint8Array, name: string, options: D
   const sidecarObject = (): unknown => {
     const text = typeof options.sidecar === 'string' ? options.sidecar : new TextDecoder().decode(options.sidecar);
     try {
-      return JSON.parse(text);
-    } catch {
-      throw new PulseFormatError(`${name}.json: the description beside ${name} is not valid JSON`);
+      return parseJsonText(text);
+    } catch (error) {
+      throw new PulseFormatError(`${name}.json (the description beside ${name}): ${(error as Error).message}`);
     }
   };
   switch (format) {

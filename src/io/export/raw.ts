@@ -2,6 +2,7 @@
 // or more, with a JSON description beside it (sample rate, bits, full scale, channels in
 // order, length, padding and the SHA-256 of the data bytes).
 import { ExportError, PulseFormatError } from '../../core/errors.ts';
+import { parseJsonText } from '../../core/json-text.ts';
 import { parseWaveformDescription, type WaveformDescription } from './description.ts';
 import { checkSamples, type WaveformSamples } from './playback.ts';
 import { sha256Hex, type Sha256 } from './sha256.ts';
@@ -42,9 +43,9 @@ export function readRawDescription(input: Uint8Array | string | object, source =
   if (typeof input === 'string' || input instanceof Uint8Array) {
     const text = typeof input === 'string' ? input : new TextDecoder().decode(input);
     try {
-      obj = JSON.parse(text);
+      obj = parseJsonText(text);
     } catch (error) {
-      throw new PulseFormatError(`${source}: not valid JSON (${error instanceof Error ? error.message : String(error)})`);
+      throw new PulseFormatError(`${source}: ${(error as Error).message}`);
     }
   }
   const base = parseWaveformDescription(obj, source);

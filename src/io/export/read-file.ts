@@ -4,6 +4,7 @@ import { existsSync } from 'node:fs';
 import { readFile } from 'node:fs/promises';
 import { basename } from 'node:path';
 import { ArgumentError } from '../../core/errors.ts';
+import { parseJsonText } from '../../core/json-text.ts';
 import type { Pulse } from '../../core/types.ts';
 import { DESCRIPTION_KIND } from './description.ts';
 import { readWaveform, type ReadWaveformOptions } from './read.ts';
@@ -40,14 +41,15 @@ async function readBytes(path: string): Promise<Uint8Array> {
     return new Uint8Array(await readFile(path));
   } catch (error) {
     const code = (error as { code?: string }).code;
-    throw new ArgumentError(`waveform file ${path}: cannot read (${code === 'ENOENT' ? 'no such file' : String(error)})`);
+    const reason = code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a folder' : String(error);
+    throw new ArgumentError(`waveform file ${path}: cannot read (${reason})`);
   }
 }
 
 // A waveform description (written beside npy and raw data) rather than a pulse JSON.
 function isDataDescription(bytes: Uint8Array): boolean {
   try {
-    const obj = JSON.parse(new TextDecoder().decode(bytes)) as Record<string, unknown>;
+    const obj = parseJsonText(new TextDecoder().decode(bytes)) as Record<string, unknown>;
     return obj.kind === DESCRIPTION_KIND && obj.dt === undefined;
   } catch {
     return false;

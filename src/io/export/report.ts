@@ -49,24 +49,38 @@ export interface ExportReport {
    * played (padding included: under detuning the idle padding also turns the qubit); its pulse
    * part alone.
    */
-  gate: { design: GateFigures; exported: GateFigures; exportedPulseOnly: GateFigures } | null;
+  gate: {
+    design: GateFigures;
+    exported: GateFigures;
+    exportedPulseOnly: GateFigures;
+    /**
+     * With a line: the design and the exported waveform as played, without the line (what a
+     * user who ignored it would see), beside the figures above, which are through it.
+     */
+    withoutLine?: { design: GateFigures; exported: GateFigures };
+  } | null;
   warnings: string[];
 }
 
-/** An evaluator over a problem's target and members, by the library's core (loaded on first use). */
-export function evaluatorFor(problem: Problem): PulseEvaluator {
+/** An evaluator over a problem's target and members through its line (`withLine` false: without it), by the library's core (loaded on first use). */
+export function evaluatorFor(problem: Problem, withLine = true): PulseEvaluator {
   return async (pulse) => {
     // Imported here so that callers with their own evaluator (the app's worker) never load the core.
     const { evaluateMembers } = await import('../../core/api.ts');
-    return evaluateMembers(problem.target, pulse, problem.members);
+    return evaluateMembers(problem.target, pulse, problem.members, withLine ? problem.line : undefined);
   };
 }
 
-/** The report of an export: `against` is the design's problem, an evaluator, or null for the sample figures only. */
+/**
+ * The report of an export: `against` is the design's problem (through its line), an
+ * evaluator, or null for the sample figures only; `withoutLine` evaluates without the
+ * line (given, or taken from a problem that has a line) for the figures beside.
+ */
 export async function exportReport(
   against: Problem | PulseEvaluator | null,
   design: Pulse,
   waveform: ExportedWaveform,
+  withoutLine?: PulseEvaluator,
 ): Promise<ExportReport> {
   const d = waveform.description;
   const step = codeStepHz(d.bits, d.fullScaleHz);
@@ -92,6 +106,11 @@ export async function exportReport(
       evaluate(samplesToPulse(samples, { unpad: true })),
     ]);
     gate = { design: figures(designEval), exported: figures(exportedEval), exportedPulseOnly: figures(pulseOnlyEval) };
+    const naive = withoutLine ?? (typeof against === 'object' && against.line ? evaluatorFor(against, false) : undefined);
+    if (naive) {
+      const [d0, e0] = await Promise.all([naive(design), naive(samplesToPulse(samples))]);
+      gate.withoutLine = { design: figures(d0), exported: figures(e0) };
+    }
   }
   return {
     description: d,
