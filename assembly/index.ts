@@ -12,3 +12,5 @@ export { blochPath } from './qubit';
 export {
   optInit, optStep, optObjective, optGradientNorm, optVariables, optGradient, optEvaluations, optIterations, optStoredPairs, optMoveTo,
 } from './lbfgs';
+export { ladderPropagator } from './ladder';
+export { ladderFigure, ladderGradient, ladderPopulations, ladderWorkspaceSize } from './ladder-sweep';

@@ -21,14 +21,18 @@ import { Problem } from './problem';
 import {
   QUBIT_PARAMS, QUBIT_TARGET_VALUES, QUBIT_MEMBER_MULTIPLE, qubitWorkValues, qubitFigure, qubitGradient,
 } from './qubit';
+import { LADDER_PARAMS, LADDER_MEMBER_VALUES, ladderWorkspaceSize, ladderSystemFigure, ladderSystemGradient } from './ladder-sweep';
 
 /** A two-level system driven by I/Q: docs/physics.md section 1. */
 export const SYSTEM_QUBIT: i32 = 0;
+/** A d-level ladder (transmon) driven by I/Q, figures on levels 0, 1: docs/transmon.md. */
+export const SYSTEM_LADDER: i32 = 1;
 
 /** Member parameters per member of a system kind (0 for an unknown kind). */
 export function systemParams(kind: i32): i32 {
   switch (kind) {
     case SYSTEM_QUBIT: return QUBIT_PARAMS;
+    case SYSTEM_LADDER: return LADDER_PARAMS;
     default: return 0;
   }
 }
@@ -37,6 +41,7 @@ export function systemParams(kind: i32): i32 {
 export function systemTargetValues(kind: i32, dim: i32): i32 {
   switch (kind) {
     case SYSTEM_QUBIT: return QUBIT_TARGET_VALUES;
+    case SYSTEM_LADDER: return QUBIT_TARGET_VALUES;
     default: return 0;
   }
 }
@@ -45,6 +50,7 @@ export function systemTargetValues(kind: i32, dim: i32): i32 {
 export function systemMemberValues(kind: i32): i32 {
   switch (kind) {
     case SYSTEM_QUBIT: return 1;
+    case SYSTEM_LADDER: return LADDER_MEMBER_VALUES;
     default: return 0;
   }
 }
@@ -53,6 +59,7 @@ export function systemMemberValues(kind: i32): i32 {
 export function systemMemberMultiple(kind: i32): i32 {
   switch (kind) {
     case SYSTEM_QUBIT: return QUBIT_MEMBER_MULTIPLE;
+    case SYSTEM_LADDER: return 1;
     default: return 0;
   }
 }
@@ -61,6 +68,7 @@ export function systemMemberMultiple(kind: i32): i32 {
 export function systemWorkValues(kind: i32, dim: i32, nDrive: i32): i32 {
   switch (kind) {
     case SYSTEM_QUBIT: return qubitWorkValues(nDrive);
+    case SYSTEM_LADDER: return ladderWorkspaceSize(nDrive, dim);
     default: return 0;
   }
 }
@@ -69,6 +77,7 @@ export function systemWorkValues(kind: i32, dim: i32, nDrive: i32): i32 {
 export function systemFigure(p: Problem): f64 {
   switch (p.system) {
     case SYSTEM_QUBIT: return qubitFigure(p);
+    case SYSTEM_LADDER: return ladderSystemFigure(p);
     default: return NaN;
   }
 }
@@ -77,6 +86,7 @@ export function systemFigure(p: Problem): f64 {
 export function systemGradient(p: Problem): f64 {
   switch (p.system) {
     case SYSTEM_QUBIT: return qubitGradient(p);
+    case SYSTEM_LADDER: return ladderSystemGradient(p);
     default: return NaN;
   }
 }

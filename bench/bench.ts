@@ -1,8 +1,9 @@
 // The benchmark: speed figures measured in one run, printed as a table (or one JSON
 // object with --json). Never a test: figures vary 10-30 % with the machine's load.
 //   npm run bench            table for people
-//   npm run bench -- --json  {"objectiveGradient": [...], "design": [...], "maps": [...], "line": {...}, "app": {...}}
+//   npm run bench -- --json  {"objectiveGradient": [...], "ladder": [...], "dragCalibration": [...], "design": [...], "maps": [...], "line": {...}, "batch": {...}, "app": {...}}
 //   npm run bench -- --no-app  without the browser figures (bench/app-bench.ts)
+//   npm run bench -- --no-batch  without the batch figures (bench/batch-bench.ts)
 //   npm run bench -- --no-command  without the command's start-up and Ctrl-C figures (bench/command-bench.ts)
 import { readFileSync, readdirSync } from 'node:fs';
 import { design, evaluateMembers, robustnessMap } from '../src/core/api.ts';
@@ -10,11 +11,15 @@ import { createBlock, freeBlock, setSamples } from '../src/core/block.ts';
 import { encodeMembers } from '../src/core/encode.ts';
 import { prepareGradientJob } from '../src/core/gradient.ts';
 import { heldSpectrum } from '../src/core/spectrum.ts';
+import { calibrateDrag } from '../src/core/drag.ts';
+import { asLadderMembers } from '../src/core/ladder.ts';
+import { parseLadderSpec } from '../src/core/spec-system.ts';
 import { FFT_CROSSOVER, lineLayout } from '../src/core/line.ts';
 import type { Line, Member, Pulse, Target } from '../src/core/types.ts';
 import { getCore } from '../src/core/wasm.ts';
 import { ensembleGradient as oracleGradient, memberInfidelity } from '../tests/reference/oracle.ts';
 import { appBenchmark, type AppFigures } from './app-bench.ts';
+import { batchBenchmark, type BatchFigures } from './batch-bench.ts';
 import { commandBenchmark, type CommandFigures } from './command-bench.ts';
 
 const json = process.argv.includes('--json');
@@ -87,6 +92,48 @@ for (const segments of [100, 1000]) {
   }
 }
 
+// 1b. The transmon ladder through the system seam (a problem block of the ladder kind, as
+// design and the maps use it; scalar f64, one member at a time) beside the two-level kernels.
+log('\ntransmon ladder through the system seam: figure and objective + exact gradient, medians (ns per segment-member; two-level kernels alongside)');
+log('levels  segments  members   figure ms   gradient ms   figure ns   gradient ns   two-level gradient ns');
+const ladder: { levels: number; segments: number; members: number; figureMs: number; gradientMs: number; figureNs: number; gradientNs: number; twoLevelGradientNs: number }[] = [];
+for (const levels of [3, 5]) {
+  for (const segments of [20, 100]) {
+    for (const count of [1, 25]) {
+      const members = asLadderMembers(gridMembers(count));
+      const pulse = smoothPulse(segments, 2e-8 * (segments / 100), 1e8);
+      const system = { levels, anharmonicity: -2.12e8 };
+      const job = prepareGradientJob(gate, pulse, members, undefined, undefined, system);
+      const gradientMs = median(() => job.run(), repsFor(() => job.run(), 300));
+      job.dispose();
+      const figureRun = (): void => void evaluateMembers(gate, pulse, members, undefined, system);
+      const figureMs = median(figureRun, repsFor(figureRun, 300));
+      const qubit = prepareGradientJob(gate, pulse, members);
+      const qubitMs = median(() => qubit.run(), repsFor(() => qubit.run(), 100));
+      qubit.dispose();
+      const per = 1e6 / (segments * count);
+      const row = { levels, segments, members: count, figureMs, gradientMs, figureNs: figureMs * per, gradientNs: gradientMs * per, twoLevelGradientNs: qubitMs * per };
+      ladder.push(row);
+      log(`${String(levels).padStart(6)}  ${String(segments).padStart(8)}  ${String(count).padStart(7)}   ${figureMs.toFixed(4).padStart(9)}   ${gradientMs.toFixed(4).padStart(11)}   ${row.figureNs.toFixed(0).padStart(9)}   ${row.gradientNs.toFixed(0).padStart(11)}   ${row.twoLevelGradientNs.toFixed(1).padStart(21)}`);
+    }
+  }
+}
+
+// 1c. Calibration of the DRAG family on an invented lab's 15 ns transmon X(180) (5 levels, 3 members).
+const dragSpec = parseLadderSpec({
+  target: { gate: { axis: [1, 0, 0], angleDeg: 180 } }, duration: 1.5e-8, segments: 36, rabiMax: 2.5e8,
+  system: { levels: 5, anharmonicity: -2e8 }, ensemble: { amplitudeError: { min: -0.01, max: 0.01, points: 3 } },
+});
+const dragCalibration: { envelope: string; ms: number; evaluations: number; meanInfidelity: number; meanLeakage: number }[] = [];
+log('\nDRAG calibration (amplitude, beta, drive detuning by Nelder-Mead), 15 ns X(180), 5 levels x 3 members, medians');
+for (const envelope of ['gaussian', 'cosine'] as const) {
+  let last = calibrateDrag(dragSpec, { envelope });
+  const ms = median(() => void (last = calibrateDrag(dragSpec, { envelope })), 9, 1);
+  const row = { envelope, ms, evaluations: last.evaluations, meanInfidelity: last.evaluation.meanInfidelity, meanLeakage: last.evaluation.meanLeakage };
+  dragCalibration.push(row);
+  log(`${envelope.padEnd(9)} ${ms.toFixed(1).padStart(7)} ms   ${row.evaluations} evaluations   mean infidelity ${row.meanInfidelity.toExponential(2)}   leakage ${row.meanLeakage.toExponential(2)}`);
+}
+
 // 2. Robustness maps (figure only).
 log('\nrobustness maps (figure only), medians');
 log('grid        segments   ms        ns per member-segment');
@@ -127,8 +174,8 @@ log(`\nseries sine/cosine against Math.sin/cos (oracle), 121 members x 200 segme
 
 // 4. Designs of the demo specs.
 log('\ndemo designs (whole design(), every start, one thread)');
-log('name                       wall s   mean infidelity   worst infidelity   iterations (best start)');
-const designs: { name: string; wallS: number; meanInfidelity: number; worstInfidelity: number; iterations: number; starts: number }[] = [];
+log('name                       wall s   mean infidelity   worst infidelity   iterations (best start)   leakage, on levels + 2');
+const designs: { name: string; wallS: number; meanInfidelity: number; worstInfidelity: number; iterations: number; starts: number; meanLeakage?: number; truncationCheck?: unknown }[] = [];
 const exampleDir = new URL('../examples/', import.meta.url);
 for (const file of readdirSync(exampleDir).filter((f) => f.endsWith('.json')).sort()) {
   const spec = JSON.parse(readFileSync(new URL(file, exampleDir), 'utf8'));
@@ -136,9 +183,14 @@ for (const file of readdirSync(exampleDir).filter((f) => f.endsWith('.json')).so
   const t = performance.now();
   const r = await design(spec);
   const wallS = (performance.now() - t) / 1000;
-  const row = { name: file.replace(/\.json$/, ''), wallS, meanInfidelity: r.evaluation.meanInfidelity, worstInfidelity: r.evaluation.worstInfidelity, iterations: r.best.iterations, starts: r.starts.length };
+  const row = {
+    name: file.replace(/\.json$/, ''), wallS, meanInfidelity: r.evaluation.meanInfidelity, worstInfidelity: r.evaluation.worstInfidelity, iterations: r.best.iterations, starts: r.starts.length,
+    ...(r.evaluation.meanLeakage !== undefined ? { meanLeakage: r.evaluation.meanLeakage, truncationCheck: r.truncationCheck } : {}),
+  };
   designs.push(row);
-  log(`${row.name.padEnd(26)} ${wallS.toFixed(3).padStart(6)}   ${row.meanInfidelity.toExponential(2).padStart(15)}   ${row.worstInfidelity.toExponential(2).padStart(16)}   ${row.iterations}`);
+  const ladderText = row.meanLeakage !== undefined
+    ? `   leakage ${row.meanLeakage.toExponential(2)}; on ${r.truncationCheck!.levels} levels ${r.truncationCheck!.meanInfidelity.toExponential(2)}, leakage ${r.truncationCheck!.meanLeakage.toExponential(2)}` : '';
+  log(`${row.name.padEnd(26)} ${wallS.toFixed(3).padStart(6)}   ${row.meanInfidelity.toExponential(2).padStart(15)}   ${row.worstInfidelity.toExponential(2).padStart(16)}   ${String(row.iterations).padStart(4)}${ladderText}`);
 }
 
 // 5. The line: the drive map's two methods (the FFT crossover), and designs with and without a line.
@@ -198,7 +250,11 @@ if (!process.argv.includes('--no-command')) {
   command = await commandBenchmark(log);
 }
 
-// 7. The app in headless Chromium (skipped without /usr/bin/chromium).
+// 7. A batch of designs: one core, all cores, shards by GNU parallel.
+let batch: BatchFigures | null = null;
+if (!process.argv.includes('--no-batch')) batch = batchBenchmark(log);
+
+// 8. The app in headless Chromium (skipped without /usr/bin/chromium).
 let app: AppFigures | null = null;
 if (!process.argv.includes('--no-app')) {
   log('');
@@ -206,5 +262,5 @@ if (!process.argv.includes('--no-app')) {
 }
 
 if (json) {
-  process.stdout.write(JSON.stringify({ objectiveGradient, design: designs, maps, spectrum, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs }, line: { maps: lineMaps, crossover, designs: lineDesigns }, command, app }) + '\n');
+  process.stdout.write(JSON.stringify({ objectiveGradient, ladder, dragCalibration, design: designs, maps, spectrum, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs }, line: { maps: lineMaps, crossover, designs: lineDesigns }, command, batch, app }) + '\n');
 }

@@ -15,5 +15,9 @@ export { compare, judgePulse, evaluateJudged, sortRows, SORT_FIGURES } from './c
 export type { Comparison, CompareRow, CompareOptions, CompareFigures, JudgeOptions, JudgedEvaluation, NamedPulse, PulseJudgement, SortFigure } from './core/compare.ts';
 export { chooseTarget } from './core/target-choice.ts';
 export type { TargetChoice } from './core/target-choice.ts';
+export { shortestDuration, rectangularTime, targetAngle, stretchPulse } from './core/shortest.ts';
+export type { ShortestOptions, ShortestResult, DurationTrial } from './core/shortest.ts';
+export { parseManifest, parseVariationsCsv, variationSpec, shardIndices, shardFromEnvironment, SHARDS_VARIABLE, MAX_VARIATIONS } from './core/batch.ts';
+export type { BatchManifest, BatchVariation, Shard } from './core/batch.ts';
 export { readPulse, writePulse, PULSE_FORMAT, PULSE_VERSION } from './io/pulse.ts';
 

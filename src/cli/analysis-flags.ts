@@ -83,6 +83,7 @@ export function summaryText(j: PulseJudgement, members: number): string {
     ...(choice.targetNote ? [['note', choice.targetNote] as [string, string]] : []),
     ['mean infidelity', `${formatInfidelity(f.meanInfidelity)} (weighted mean over the spec's ensemble, ${members} member${members === 1 ? '' : 's'})`],
     ['worst infidelity', `${formatInfidelity(f.worstInfidelity)} (worst member of the ensemble: ${at(f.worstMember.detuning, f.worstMember.amplitudeError)})`],
+    ...leakageRows(j),
     ['region', `detuning ${formatGrid(region.detuning, 'detuning')}; amplitude error ${formatGrid(region.amplitudeError, 'amplitudeError')}`],
     ['region mean', `${formatInfidelity(f.regionMeanInfidelity)} (unweighted mean over the grid)`],
     ['region worst', `${formatInfidelity(f.regionWorstInfidelity)} at ${at(f.regionWorstAt.detuning, f.regionWorstAt.amplitudeError)}`],
@@ -96,6 +97,18 @@ export function summaryText(j: PulseJudgement, members: number): string {
   ];
   const width = Math.max(...rows.map(([k]) => k.length));
   return rows.map(([k, v]) => `${k.padEnd(width)}  ${v}`).join('\n') + '\n';
+}
+
+/** Leakage rows of a judgement on a ladder (none on the qubit). */
+function leakageRows(j: PulseJudgement): [string, string][] {
+  const f = j.figures;
+  if (f.meanLeakage === undefined) return [];
+  let regionWorst = 0;
+  for (const value of j.map.leakage ?? []) regionWorst = Math.max(regionWorst, value);
+  return [
+    ['mean leakage', `${formatInfidelity(f.meanLeakage)} (population that left levels 0 and 1, weighted mean over the ensemble)`],
+    ['worst leakage', `${formatInfidelity(f.worstLeakage ?? 0)} (worst member of the ensemble); region worst ${formatInfidelity(regionWorst)}`],
+  ];
 }
 
 /** A percentage with up to four significant digits. */

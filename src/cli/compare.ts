@@ -129,7 +129,8 @@ function splitList(text: string): string[] {
 }
 
 function compareTable(comparison: Comparison, rows: Omit<CompareRow, 'pulse' | 'cuts'>[], problem: Problem): string {
-  const header = ['#', 'pulse', 'mean', 'worst', 'region mean', 'region worst', 'below thr.', 'detuning hw', 'amplitude hw', 'duration', 'peak', 'area (turns)', 'energy (Hz^2 s)'];
+  const ladder = rows.some((r) => r.figures?.meanLeakage !== undefined);
+  const header = ['#', 'pulse', 'mean', 'worst', ...(ladder ? ['mean leakage'] : []), 'region mean', 'region worst', 'below thr.', 'detuning hw', 'amplitude hw', 'duration', 'peak', 'area (turns)', 'energy (Hz^2 s)'];
   const notes: string[] = [];
   const refused: string[] = [];
   const cells: string[][] = [];
@@ -149,6 +150,7 @@ function compareTable(comparison: Comparison, rows: Omit<CompareRow, 'pulse' | '
       name,
       formatInfidelity(f.meanInfidelity),
       formatInfidelity(f.worstInfidelity),
+      ...(ladder ? [formatInfidelity(f.meanLeakage ?? 0)] : []),
       formatInfidelity(f.regionMeanInfidelity),
       formatInfidelity(f.regionWorstInfidelity),
       percent(f.areaFraction),
@@ -166,7 +168,8 @@ function compareTable(comparison: Comparison, rows: Omit<CompareRow, 'pulse' | '
   return [
     `target: ${formatTarget(comparison.target)}`,
     ...(problem.line ? [`every figure through the line: ${describeLine(problem.line)} (duration: the drive the qubit sees, tails included)`] : []),
-    `mean, worst: over the spec's ensemble (${members} member${members === 1 ? '' : 's'}, weighted mean)`,
+    `mean, worst: over the spec's ensemble (${members} member${members === 1 ? '' : 's'}, weighted mean)` +
+      (problem.system ? `; on ${problem.system.levels} levels, anharmonicity ${formatFrequency(problem.system.anharmonicity)}` : ''),
     `region: detuning ${formatGrid(comparison.detuning, 'detuning')}; amplitude error ${formatGrid(comparison.amplitudeError, 'amplitudeError')}`,
     `threshold ${formatInfidelity(comparison.threshold)}; sorted by ${comparison.sortBy}, best first; composites at rabiMax ${formatFrequency(problem.rabiMax)}, dt ${formatTime(problem.dt)}`,
     '',

@@ -4,6 +4,7 @@
 // `gatesmith composite --list`: each sequence, what it corrects and its source.
 import { ArgumentError } from '../core/errors.ts';
 import { buildComposite, compositeNames, type Bb1Placement, type CompositeMetadata, type CompositeName } from '../core/composites.ts';
+import { dragFamily, isDragName } from '../core/drag-family.ts';
 import type { Pulse } from '../core/types.ts';
 import { writePulse } from '../io/pulse.ts';
 import { targetJson } from '../io/target-json.ts';
@@ -64,13 +65,16 @@ export const compositeCommand: Command = defineCommand({
   async body(positionals, flags, io: CliIO): Promise<number> {
     if (flags.list) {
       if (positionals.length > 0) throw new ArgumentError(`composite: --list takes no NAME (got "${positionals[0]}")`);
-      io.stdout(flags.json ? JSON.stringify(compositeNames, null, 2) + '\n' : listText());
+      io.stdout(flags.json ? JSON.stringify([...compositeNames, ...dragFamily], null, 2) + '\n' : listText());
       return 0;
     }
     if (positionals.length !== 1) {
       throw new ArgumentError(`composite: give one NAME (${compositeNames.map((c) => c.name).join(', ')}) or --list; usage: ${usageLine(ARGS)}`);
     }
     const name = positionals[0].toLowerCase();
+    if (isDragName(name)) {
+      throw new ArgumentError(`composite: "${positionals[0]}" is calibrated on a spec's ensemble and system, not built alone; use gatesmith compare SPEC --composites ${name}`);
+    }
     if (!compositeNames.some((c) => c.name === name)) {
       throw new ArgumentError(`composite: "${positionals[0]}" is not a known sequence; one of ${compositeNames.map((c) => c.name).join(', ')}`);
     }
@@ -120,7 +124,7 @@ function flagNames(message: string): string {
 }
 
 function listText(): string {
-  const blocks = compositeNames.map((c) => `${c.name}  (${c.title})\n  corrects: ${c.corrects}\n  angles:   ${c.angles}\n  source:   ${c.source}`);
+  const blocks = [...compositeNames, ...dragFamily].map((c) => `${c.name}  (${c.title})\n  corrects: ${c.corrects}\n  angles:   ${c.angles}\n  source:   ${c.source}`);
   return blocks.join('\n') + '\n';
 }
 

@@ -136,6 +136,8 @@ export const designCommand: Command = defineCommand({
     if (out !== undefined) writeFilesTogether([{ path: out, data: writePulse(pulse) }], '--out');
     else if (!flags.json) io.stderr('note: the pulse is not saved; give --out PULSE to write it\n');
 
+    const warning = truncationWarning(result, problem);
+    if (warning) io.stderr(`warning: ${warning}\n`);
     if (flags.json) io.stdout(JSON.stringify(designJson(result, peak, out, interrupted, spec.warnings), null, 2) + '\n');
     else io.stdout(designTable(result, problem, peak, out, interrupted));
     return 0;
@@ -193,8 +195,8 @@ function interimPulse(p: Progress, problem: Problem, specJson: unknown): Pulse {
   };
 }
 
-// The pulse file records how it was made: the spec as given and the figures reached.
-function withDesignMetadata(result: DesignResult, specJson: unknown): Pulse {
+/** The design's pulse with its making recorded in the metadata: the spec as given and the figures reached. */
+export function withDesignMetadata(result: DesignResult, specJson: unknown): Pulse {
   const meta = result.pulse.metadata ?? {};
   // The spec's own name says more to a reader of the file than which start won.
   const specName = (specJson as { name?: unknown }).name;
@@ -218,8 +220,8 @@ function withDesignMetadata(result: DesignResult, specJson: unknown): Pulse {
   };
 }
 
-// A waveform above the configured limit is never written (safety: it drives an amplifier).
-function checkPeak(pulse: Pulse, problem: Problem): number {
+/** The pulse's peak amplitude (Hz); throws above rabiMax: such a waveform is never written (it drives an amplifier). */
+export function checkPeak(pulse: Pulse, problem: Problem): number {
   let peak = 0;
   for (let k = 0; k < pulse.i.length; k++) {
     const a = problem.constraints.bound === 'box' ? Math.max(Math.abs(pulse.i[k]), Math.abs(pulse.q[k])) : Math.hypot(pulse.i[k], pulse.q[k]);
@@ -241,7 +243,20 @@ function withinLimit(pulse: Pulse, problem: Problem): boolean {
 }
 
 function memberJson(m: MemberFigure) {
-  return { detuning: m.detuning, amplitudeError: m.amplitudeError, weight: m.weight, infidelity: m.infidelity };
+  return {
+    detuning: m.detuning, amplitudeError: m.amplitudeError, weight: m.weight, infidelity: m.infidelity,
+    ...(m.leakage !== undefined ? { anharmonicityError: m.anharmonicityError ?? 0, leakage: m.leakage } : {}),
+    ...(m.phaseAfter !== undefined ? { phaseAfter: m.phaseAfter } : {}),
+  };
+}
+
+/** The truncation-check warning of a ladder design, or null. */
+export function truncationWarning(result: DesignResult, problem: Problem): string | null {
+  const check = result.truncationCheck;
+  if (!check || !check.differs) return null;
+  return `on ${check.levels} levels the mean infidelity is ${formatInfidelity(check.meanInfidelity)} and the mean leakage ` +
+    `${formatInfidelity(check.meanLeakage)}, more than a factor two from ${formatInfidelity(result.evaluation.meanInfidelity)} and ` +
+    `${formatInfidelity(result.evaluation.meanLeakage ?? 0)} on ${problem.system?.levels} levels: the truncation matters; design with more levels`;
 }
 
 function designJson(result: DesignResult, peak: number, out: string | undefined, interrupted: boolean, warnings: string[]) {
@@ -260,6 +275,12 @@ function designJson(result: DesignResult, peak: number, out: string | undefined,
     meanInfidelity: ev.meanInfidelity,
     worstInfidelity: ev.worstInfidelity,
     worstMember: memberJson(ev.members[ev.worstIndex]),
+    ...(ev.meanLeakage !== undefined ? { levels: ev.levels, meanLeakage: ev.meanLeakage, worstLeakage: ev.worstLeakage } : {}),
+    ...(result.truncationCheck ? {
+      truncationCheck: {
+        levels: result.truncationCheck.levels, meanInfidelity: result.truncationCheck.meanInfidelity, meanLeakage: result.truncationCheck.meanLeakage,
+      },
+    } : {}),
     best: startJson(result.best),
     starts: result.starts.map(startJson),
     elapsedS: result.elapsedS,
@@ -279,6 +300,7 @@ function designTable(result: DesignResult, problem: Problem, peak: number, out: 
     ...(problem.line ? [['line', `${describeLine(problem.line)}: the figures are of the drive the qubit sees`] as [string, string]] : []),
     ['mean infidelity', formatInfidelity(ev.meanInfidelity)],
     ['worst infidelity', `${formatInfidelity(ev.worstInfidelity)} at detuning ${formatFrequency(worst.detuning)}, amplitude error ${formatRelative(worst.amplitudeError)}`],
+    ...ladderRows(result, problem),
     ['best start', `${result.best.start + 1} of ${result.starts.length}: ${result.best.iterations} iterations, ended on ${formatStopReason(result.best.stopReason)}`],
     ['all starts', result.starts.map((s) => `${s.start + 1}: ${formatInfidelity(s.meanInfidelity)}`).join('  ')],
     ['wall time', `${result.elapsedS.toFixed(3)} s${interrupted ? ' (interrupted)' : ''}`],
@@ -287,4 +309,21 @@ function designTable(result: DesignResult, problem: Problem, peak: number, out: 
   ];
   const width = Math.max(...rows.map(([k]) => k.length));
   return rows.map(([k, v]) => `${k.padEnd(width)}  ${v}`).join('\n') + '\n';
+}
+
+function ladderRows(result: DesignResult, problem: Problem): [string, string][] {
+  const ev = result.evaluation;
+  if (ev.meanLeakage === undefined) return [];
+  const rows: [string, string][] = [
+    ['system', `${ev.levels} levels, anharmonicity ${formatFrequency(problem.system?.anharmonicity ?? 0)}`],
+    ['mean leakage', formatInfidelity(ev.meanLeakage)],
+    ['worst leakage', formatInfidelity(ev.worstLeakage ?? 0)],
+  ];
+  const phases = ev.members.filter((m) => m.phaseAfter !== undefined).map((m) => m.phaseAfter!);
+  if (phases.length > 0) rows.push(['phase after', `${((phases[0] * 180) / Math.PI).toFixed(3)} deg (z rotation after the pulse, member 1; every member's in --json)`]);
+  const check = result.truncationCheck;
+  if (check) {
+    rows.push([`on ${check.levels} levels`, `mean infidelity ${formatInfidelity(check.meanInfidelity)}, mean leakage ${formatInfidelity(check.meanLeakage)}${check.differs ? ' (differs by more than x2)' : ''}`]);
+  }
+  return rows;
 }

@@ -61,9 +61,14 @@ export const evaluateCommand: Command = defineCommand({
           amplitudeError: m.amplitudeError,
           weight: m.weight,
           infidelity: m.infidelity,
+          ...(m.leakage !== undefined ? { anharmonicityError: m.anharmonicityError ?? 0, leakage: m.leakage } : {}),
+          ...(m.phaseAfter !== undefined ? { phaseAfter: m.phaseAfter } : {}),
         })),
         meanInfidelity: evaluation.meanInfidelity,
         worstInfidelity: evaluation.worstInfidelity,
+        ...(evaluation.meanLeakage !== undefined
+          ? { levels: evaluation.levels, meanLeakage: evaluation.meanLeakage, worstLeakage: evaluation.worstLeakage, meanAverageInfidelity: evaluation.meanAverageInfidelity }
+          : {}),
         target: targetJson(evaluation.target),
         note: evaluation.note,
         // With a line in the spec: the line the figures went through (null: --no-line).
@@ -97,12 +102,18 @@ function mismatches(pulse: Pulse, problem: Problem): string[] {
 }
 
 function evaluationTable(ev: JudgedEvaluation, problem: Problem, pulse: Pulse, through: Line | undefined): string {
-  const header = ['detuning', 'amplitude error', 'weight', 'infidelity'];
+  const ladder = ev.meanLeakage !== undefined;
+  const phase = ev.members.some((m) => m.phaseAfter !== undefined);
+  const header = ['detuning', 'amplitude error', ...(ladder ? ['anharmonicity error'] : []), 'weight', 'infidelity',
+    ...(ladder ? ['leakage'] : []), ...(phase ? ['phase after'] : [])];
   const rows = ev.members.map((m) => [
     formatFrequency(m.detuning),
     formatRelative(m.amplitudeError),
+    ...(ladder ? [formatFrequency(m.anharmonicityError ?? 0)] : []),
     String(Number(m.weight.toPrecision(4))),
     formatInfidelity(m.infidelity),
+    ...(ladder ? [formatInfidelity(m.leakage ?? 0)] : []),
+    ...(phase ? [`${(((m.phaseAfter ?? 0) * 180) / Math.PI).toFixed(3)} deg`] : []),
   ]);
   const widths = header.map((h, c) => Math.max(h.length, ...rows.map((r) => r[c].length)));
   const line = (cells: string[]) => cells.map((cell, c) => cell.padStart(widths[c])).join('  ');
@@ -116,6 +127,10 @@ function evaluationTable(ev: JudgedEvaluation, problem: Problem, pulse: Pulse, t
     '',
     `mean infidelity   ${formatInfidelity(ev.meanInfidelity)} (weighted over ${ev.members.length} members)`,
     `worst infidelity  ${formatInfidelity(ev.worstInfidelity)} at detuning ${formatFrequency(worst.detuning)}, amplitude error ${formatRelative(worst.amplitudeError)}`,
+    ...(ladder ? [
+      `mean leakage      ${formatInfidelity(ev.meanLeakage!)} (population that left levels 0 and 1, on ${ev.levels} levels, anharmonicity ${formatFrequency(problem.system?.anharmonicity ?? 0)})`,
+      `worst leakage     ${formatInfidelity(ev.worstLeakage!)}`,
+    ] : []),
     '',
   ].join('\n');
 }

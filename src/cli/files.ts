@@ -162,7 +162,7 @@ function readBytes(path: string, what: string): Uint8Array {
 }
 
 /** A text file's content (UTF-8, a byte-order mark dropped later by the JSON reader); binary data is described, not shown. */
-function readText(path: string, what: string, expected: string): string {
+export function readText(path: string, what: string, expected: string): string {
   const bytes = readBytes(path, what);
   if (isBinary(bytes)) throw new ArgumentError(`${what} ${path}: ${describeBinary(bytes)}, not ${expected}`);
   return new TextDecoder().decode(bytes);

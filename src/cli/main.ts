@@ -22,6 +22,8 @@ export const COMMANDS: CommandEntry[] = [
   { name: 'map', summary: 'robustness map of a pulse over detuning x amplitude error, with summary figures', load: async () => (await import('./map.ts')).mapCommand },
   { name: 'compare', summary: 'table of summary figures of several pulses and composites, best first', load: async () => (await import('./compare.ts')).compareCommand },
   { name: 'export', summary: 'write the quantised, padded waveform for an AWG (csv, npy, raw, wav, json)', load: async () => (await import('./export.ts')).exportCommand },
+  { name: 'shortest', summary: 'the shortest duration at which a design meets a goal, with the figure against duration', load: async () => (await import('./shortest.ts')).shortestCommand },
+  { name: 'batch', summary: 'run a family of designs (a manifest of variations) in shards, or collect its results', load: async () => (await import('./batch.ts')).batchCommand },
 ];
 
 // Errors that mean the user's input is wrong (by name, so that errors from a worker count too).

@@ -1,6 +1,9 @@
 // `gatesmith map SPEC PULSE`: the infidelity of a pulse on a grid of detuning x amplitude
 // error, written as CSV or JSON, and its summary figures.
+import { existsSync } from 'node:fs';
 import { ArgumentError } from '../core/errors.ts';
+import { isDragName } from '../core/drag-family.ts';
+import type { Problem, Pulse } from '../core/types.ts';
 import { writeMapCsv, writeMapJson } from '../io/map-file.ts';
 import { flagValue, optionsHelp, usageLine, type ArgSpec } from './args.ts';
 import { DEFAULT_POINTS, REGION_FLAGS, pulseName, regionOf, summaryText, thresholdOf } from './analysis-flags.ts';
@@ -25,7 +28,9 @@ Usage: ${usageLine(ARGS)}
 
 SPEC gives the target (and, by default, the region: the range of its ensemble on each
 axis, ${DEFAULT_POINTS} x ${DEFAULT_POINTS} points; an axis the ensemble does not vary is one point).
-PULSE is a pulse file or any waveform \`gatesmith export\` wrote. It is judged against the
+PULSE is a pulse file or any waveform \`gatesmith export\` wrote, or drag-gaussian /
+drag-cosine (when no file has that name): the DRAG pulse built under the spec's limits and
+calibrated on its ensemble and system, as compare builds it. It is judged against the
 spec's target; a pulse whose metadata names its own ideal (composites do) gets a note on
 how that ideal meets the target (the Knill sequence meets a 180 degree gate up to a z
 rotation after it, and is judged against its own ideal; a sequence built for another
@@ -54,7 +59,9 @@ export const mapCommand: Command = defineCommand({
     const out = flagValue(flags, 'out');
     const format = out === undefined ? null : mapFormat(out);
     const spec = loadSpec(specPath);
-    const pulse = await loadWaveform(pulsePath);
+    const pulse = isDragName(pulsePath.toLowerCase()) && !existsSync(pulsePath)
+      ? await calibratedDrag(spec.problem, pulsePath.toLowerCase())
+      : await loadWaveform(pulsePath);
     const region = regionOf(flags, spec.problem);
     const threshold = thresholdOf(flags);
     if (out !== undefined) checkWritable(out, '--out', [specPath, pulsePath]);
@@ -79,6 +86,14 @@ export const mapCommand: Command = defineCommand({
     return 0;
   },
 });
+
+/** The DRAG pulse compare would build for the spec (the core is loaded here, not for --help). */
+async function calibratedDrag(problem: Problem, name: string): Promise<Pulse> {
+  const { dragFamilyFor } = await import('../core/drag-family.ts');
+  const [built] = dragFamilyFor(problem, [name]);
+  if (!built.pulse) throw new ArgumentError(`PULSE ${name}: ${built.error?.message ?? 'cannot be built for the spec'}`);
+  return built.pulse;
+}
 
 /** The file format from the --out name's extension. */
 function mapFormat(out: string): 'csv' | 'json' {

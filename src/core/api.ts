@@ -3,7 +3,8 @@
 // workers. Validation happens here; the kernels trust what they are given.
 import { ArgumentError, describeValue } from './errors.ts';
 import { BUFFER, createBlock, readBuffer, setSamples } from './block.ts';
-import { checkPulse, encodeMembers, encodeTarget, type EncodedMembers } from './encode.ts';
+import { checkPulse, encodeMembers, encodeTarget } from './encode.ts';
+import { blockSystem, encodeSystem, MAX_CHECK_LEVELS, type SystemEncoding } from './system.ts';
 import { qubitDrive } from './line.ts';
 import { lineJson } from './line-spec.ts';
 import { StartRun } from './run.ts';
@@ -13,7 +14,8 @@ import { bestStart } from './best-start.ts';
 import { axisValues, checkRegion } from './grid.ts';
 import { parseSpec } from './spec.ts';
 import type {
-  DesignResult, Evaluation, GridAxis, Line, Member, Problem, Progress, Pulse, StartResult, StopReason, Target,
+  DesignResult, Evaluation, GridAxis, LadderSystem, Line, Member, MemberFigure, Problem, Progress, Pulse, StartResult, StopReason, Target,
+  TruncationCheck,
 } from './types.ts';
 import { getCore, loadCore } from './wasm.ts';
 
@@ -27,6 +29,13 @@ export interface DesignOptions {
   startIndices?: number[];
   /** Attach the current samples to a progress report at most this often (ms); default never. */
   progressPulseEveryMs?: number;
+  /**
+   * Start 0 begins from these samples (Hz, the spec's number of segments) instead of its
+   * random pulse, e.g. a pulse designed before; a sample above 98 % of the amplitude bound is
+   * scaled down to it, where the optimiser can still move it. The other starts are unchanged,
+   * so the result stays deterministic.
+   */
+  initialPulse?: { i: ArrayLike<number>; q: ArrayLike<number> };
 }
 
 /** The figure on a grid of detuning x amplitude error. */
@@ -35,6 +44,8 @@ export interface RobustnessMap {
   amplitudeError: GridAxis;
   /** Row-major [amplitudeErrorIndex * detuning.points + detuningIndex]. */
   infidelity: Float64Array;
+  /** On a ladder: the leakage on the same grid. */
+  leakage?: Float64Array;
 }
 
 /**
@@ -59,47 +70,83 @@ export function toProblem(spec: unknown): Problem {
   return isProblem(spec) ? checkProblem(spec) : parseSpec(spec);
 }
 
-/** Evaluate a pulse on a spec's (or problem's) ensemble and target, through its line (if any). */
+/** Evaluate a pulse on a spec's (or problem's) ensemble, target and system, through its line (if any). */
 export function evaluate(spec: unknown, pulse: Pulse): Evaluation {
   const problem = toProblem(spec);
-  return evaluateMembers(problem.target, pulse, problem.members, problem.line);
+  return evaluateMembers(problem.target, pulse, problem.members, problem.line, problem.system);
 }
 
-/** Evaluate a pulse for a target on explicit members (weights normalised here), through `line` when given. */
-export function evaluateMembers(target: Target, pulse: Pulse, members: Member[], line?: Line): Evaluation {
+/**
+ * Evaluate a pulse for a target on explicit members (weights normalised here), through
+ * `line` when given, on the qubit or, with `system`, on a ladder (then with leakage per
+ * member and over the ensemble).
+ */
+export function evaluateMembers(target: Target, pulse: Pulse, members: Member[], line?: Line, system?: LadderSystem, maxLevels?: number): Evaluation {
   checkTarget(target);
   checkPulse(pulse);
-  const enc = encodeMembers(members, 2, true);
+  const enc = encodeSystem(target, members, system, maxLevels);
   const drive = qubitDrive(pulse, line);
   checkPulseAngles(drive, members);
-  const perMember = figures(target, drive, enc);
-  let mean = 0;
+  const values = figures(target, drive, enc);
+  const weight = enc.members.weight;
+  const m = enc.members.padded;
+  let mean = 0, meanLeakage = 0, meanAverage = 0, worstLeakage = 0;
   let worstIndex = 0;
-  const out = members.map((m, j) => {
-    mean += enc.weight[j] * perMember[j];
-    if (perMember[j] > perMember[worstIndex]) worstIndex = j;
-    return { detuning: m.detuning, amplitudeError: m.amplitudeError, weight: enc.weight[j], infidelity: perMember[j] };
+  const out = members.map((member, j) => {
+    mean += weight[j] * values[j];
+    if (values[j] > values[worstIndex]) worstIndex = j;
+    const figure: MemberFigure = { detuning: member.detuning, amplitudeError: member.amplitudeError, weight: weight[j], infidelity: values[j] };
+    if (enc.ladder) {
+      const leakage = values[m + j];
+      figure.anharmonicityError = member.anharmonicityError ?? 0;
+      figure.leakage = leakage;
+      if (enc.mode === 2) figure.phaseAfter = values[2 * m + j];
+      meanLeakage += weight[j] * leakage;
+      worstLeakage = Math.max(worstLeakage, leakage);
+      // 1 - F_avg = (L + 2 J)/3 on a gate: a sum of non-negative terms.
+      meanAverage += weight[j] * (target.kind === 'gate' ? (leakage + 2 * values[j]) / 3 : values[j]);
+    }
+    return figure;
   });
-  return { members: out, meanInfidelity: mean, worstInfidelity: perMember[worstIndex], worstIndex };
+  const evaluation: Evaluation = { members: out, meanInfidelity: mean, worstInfidelity: values[worstIndex], worstIndex };
+  if (enc.ladder) Object.assign(evaluation, { levels: enc.levels, meanLeakage, worstLeakage, meanAverageInfidelity: meanAverage });
+  return evaluation;
 }
 
-/** Per-member infidelities from the core (members padded to the system's multiple). */
-function figures(target: Target, pulse: Pulse, enc: EncodedMembers): Float64Array {
+/** Below this, a change between two truncations is rounding, not truncation. */
+const TRUNCATION_FLOOR = 1e-15;
+
+/**
+ * A ladder evaluation repeated on two more levels: `differs` when the mean infidelity or
+ * the mean leakage changes by more than a factor two (the truncation matters).
+ */
+export function truncationCheck(target: Target, pulse: Pulse, members: Member[], system: LadderSystem, evaluation: Evaluation, line?: Line): TruncationCheck {
+  const more = evaluateMembers(target, pulse, members, line, { ...system, levels: system.levels + 2 }, MAX_CHECK_LEVELS);
+  const apart = (a: number, b: number): boolean => a > 2 * b + TRUNCATION_FLOOR || b > 2 * a + TRUNCATION_FLOOR;
+  const leakage = more.meanLeakage ?? 0;
+  return {
+    levels: more.levels ?? system.levels + 2, meanInfidelity: more.meanInfidelity, meanLeakage: leakage,
+    differs: apart(more.meanInfidelity, evaluation.meanInfidelity) || apart(leakage, evaluation.meanLeakage ?? 0),
+  };
+}
+
+/** Per-member outputs from the core (the qubit: figures; a ladder: figures, leakages, phases, m each). */
+function figures(target: Target, pulse: Pulse, enc: SystemEncoding): Float64Array {
   const core = getCore();
   const n = pulse.i.length;
   return core.job(() => {
-    const p = createBlock(core, { target, segments: n, dt: pulse.dt, members: enc });
+    const p = createBlock(core, { ...blockSystem(enc), target, segments: n, dt: pulse.dt });
     setSamples(core, p, pulse.i, pulse.q);
     core.exports.problemFigure(p);
-    return readBuffer(core, p, BUFFER.perMember, enc.padded);
+    return readBuffer(core, p, BUFFER.perMember, (enc.ladder ? 3 : 1) * enc.members.padded);
   });
 }
 
 /** Members per core call of a map: bounds the arena and keeps each call short. */
 const MAP_CHUNK = 8192;
 
-/** Infidelity of a pulse on a detuning x amplitude-error grid, through `line` when given. */
-export function robustnessMap(target: Target, programmed: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): RobustnessMap {
+/** Infidelity of a pulse on a detuning x amplitude-error grid, through `line` when given (on a ladder with `system`, and its leakage). */
+export function robustnessMap(target: Target, programmed: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line, system?: LadderSystem): RobustnessMap {
   checkTarget(target);
   checkPulse(programmed);
   checkRegion({ detuning, amplitudeError });
@@ -109,22 +156,34 @@ export function robustnessMap(target: Target, programmed: Pulse, detuning: GridA
   const dv = axisValues(detuning), av = axisValues(amplitudeError);
   const total = dv.length * av.length;
   const infidelity = new Float64Array(total);
+  const ladder = encodeSystem(target, [{ detuning: 0, amplitudeError: 0, weight: 1 }], system).ladder;
+  const leakage = ladder ? new Float64Array(total) : undefined;
   for (let start = 0; start < total; start += MAP_CHUNK) {
     const count = Math.min(MAP_CHUNK, total - start);
-    const padded = Math.ceil(count / 2) * 2;
-    const scale = new Float64Array(padded), det = new Float64Array(padded), weight = new Float64Array(padded);
-    for (let j = 0; j < padded; j++) {
-      const idx = start + Math.min(j, count - 1);
-      scale[j] = 1 + av[Math.floor(idx / dv.length)];
-      det[j] = dv[idx % dv.length];
+    const chunk: Member[] = [];
+    for (let j = 0; j < count; j++) {
+      const idx = start + j;
+      chunk.push({ detuning: dv[idx % dv.length], amplitudeError: av[Math.floor(idx / dv.length)], weight: 1 });
     }
-    infidelity.set(figures(target, pulse, { count, padded, scale, detuning: det, weight }).subarray(0, count), start);
+    const enc = encodeSystem(target, chunk, system);
+    const values = figures(target, pulse, enc);
+    infidelity.set(values.subarray(0, count), start);
+    if (leakage) leakage.set(values.subarray(enc.members.padded, enc.members.padded + count), start);
   }
-  return { detuning: { ...detuning }, amplitudeError: { ...amplitudeError }, infidelity };
+  const map: RobustnessMap = { detuning: { ...detuning }, amplitudeError: { ...amplitudeError }, infidelity };
+  if (leakage) map.leakage = leakage;
+  return map;
 }
 
-/** Bloch vector after each sample of the drive the qubit sees (the pulse itself without a line), 3*(N+1) values starting with `from`. */
-export function blochTrajectory(programmed: Pulse, member: Member, from: [number, number, number], line?: Line): Float64Array {
+/**
+ * Bloch vector after each sample of the drive the qubit sees (the pulse itself without a
+ * line), 3*(N+1) values starting with `from`. Two levels only: on a ladder the state
+ * leaves the qubit's sphere (use ladderPopulations).
+ */
+export function blochTrajectory(programmed: Pulse, member: Member, from: [number, number, number], line?: Line, system?: LadderSystem): Float64Array {
+  if (system !== undefined && system.levels > 2) {
+    throw new ArgumentError(`system.levels: ${describeValue(system.levels)} is not allowed for a Bloch trajectory; the Bloch sphere holds two levels only (ask for the populations of every level against time instead)`);
+  }
   checkPulse(programmed);
   const pulse = qubitDrive(programmed, line);
   encodeMembers([member], 2, false);
@@ -178,6 +237,7 @@ async function designNow(problem: Problem, options: DesignOptions): Promise<Desi
   for (const s of indices) {
     if (!Number.isInteger(s) || s < 0) throw new ArgumentError(`startIndices: ${describeValue(s)} is not allowed; use whole numbers >= 0`);
   }
+  if (options.initialPulse) checkInitialPulse(options.initialPulse, problem.segments);
   const starts: StartResult[] = [];
   for (const s of indices) {
     const elapsed = (performance.now() - t0) / 1000;
@@ -188,19 +248,45 @@ async function designNow(problem: Problem, options: DesignOptions): Promise<Desi
   return bestOfStarts(problem, starts, t0);
 }
 
+function checkInitialPulse(pulse: { i: ArrayLike<number>; q: ArrayLike<number> }, segments: number): void {
+  for (const channel of ['i', 'q'] as const) {
+    const v = pulse[channel];
+    if (!v || v.length !== segments) {
+      throw new ArgumentError(`initialPulse.${channel}: ${v ? `${v.length} samples` : 'missing value'} is not allowed; it must have the spec's ${segments} segments`);
+    }
+    for (let k = 0; k < v.length; k++) {
+      if (!Number.isFinite(v[k])) throw new ArgumentError(`initialPulse.${channel}[${k}]: ${describeValue(v[k])} is not allowed; samples must be finite numbers (Hz)`);
+    }
+  }
+}
+
 /** The design result of finished starts: the best (best-start.ts) is evaluated, through the problem's line. */
 export function bestOfStarts(problem: Problem, starts: StartResult[], t0: number): DesignResult {
   const best = bestStart(starts);
-  const evaluation = evaluateMembers(problem.target, best.pulse, problem.members, problem.line);
+  const evaluation = evaluateMembers(problem.target, best.pulse, problem.members, problem.line, problem.system);
   if (problem.line) best.pulse.metadata.line = lineJson(problem.line);
-  best.pulse.metadata.figures = {
+  const figures: Record<string, number | string> = {
     meanInfidelity: evaluation.meanInfidelity,
     worstInfidelity: evaluation.worstInfidelity,
     iterations: best.iterations,
     stopReason: best.stopReason,
     start: best.start,
   };
-  return { pulse: best.pulse, evaluation, best, starts, elapsedS: (performance.now() - t0) / 1000 };
+  const result: DesignResult = { pulse: best.pulse, evaluation, best, starts, elapsedS: 0 };
+  if (evaluation.meanLeakage !== undefined) {
+    figures.meanLeakage = evaluation.meanLeakage;
+    figures.worstLeakage = evaluation.worstLeakage!;
+  }
+  if (problem.system) {
+    const check = truncationCheck(problem.target, best.pulse, problem.members, problem.system, evaluation, problem.line);
+    result.truncationCheck = check;
+    figures.truncationCheckLevels = check.levels;
+    figures.truncationCheckMeanInfidelity = check.meanInfidelity;
+    figures.truncationCheckMeanLeakage = check.meanLeakage;
+  }
+  best.pulse.metadata.figures = figures;
+  result.elapsedS = (performance.now() - t0) / 1000;
+  return result;
 }
 
 /** One optimiser start; ends on a stop criterion, the signal, or the time left. */
@@ -208,7 +294,7 @@ async function runStart(problem: Problem, start: number, options: DesignOptions,
   const { dt, rabiMax, constraints, optimizer } = problem;
   const tStart = performance.now();
   const deadline = tStart + Math.max(0, timeLeftS) * 1000;
-  const run = new StartRun(problem, start);
+  const run = new StartRun(problem, start, undefined, start === 0 ? options.initialPulse : undefined);
   try {
     let stopReason: StopReason = 'max-iterations';
     let lastYield = performance.now();

@@ -19,5 +19,7 @@ export function mergeDesigns(shares: readonly DesignResult[], elapsedS: number):
   const winner = bestStart(shares.map((share) => share.best));
   const share = shares.find((s) => s.best === winner)!;
   const starts = shares.flatMap((s) => s.starts).sort((a, b) => a.start - b.start);
-  return { pulse: share.pulse, evaluation: share.evaluation, best: share.best, starts, elapsedS };
+  const merged: DesignResult = { pulse: share.pulse, evaluation: share.evaluation, best: share.best, starts, elapsedS };
+  if (share.truncationCheck) merged.truncationCheck = share.truncationCheck;
+  return merged;
 }

@@ -5,8 +5,7 @@ import { encodeTarget, targetMode, type EncodedMembers } from './encode.ts';
 import type { AmplitudeBound, Target } from './types.ts';
 import type { Core } from './wasm.ts';
 
-/** System kinds of the core (assembly/system.ts). */
-export const SYSTEM_QUBIT = 0;
+import { SYSTEM_QUBIT } from './system.ts';
 /** Drive maps of the core (assembly/drive.ts). */
 export const DRIVE_IDENTITY = 0;
 /** The line: samples held on dt / oversample and convolved with a kernel (assembly/line.ts, src/core/line.ts). */

@@ -5,7 +5,9 @@
 // ensemble (weighted, as the design minimises them); the map region's are "region mean"
 // and "region worst".
 import { evaluateMembers, robustnessMap, toProblem, type RobustnessMap } from './api.ts';
-import { compositesFor } from './composite-targets.ts';
+import { compositesFor, isCompositeName } from './composite-targets.ts';
+import { compositeNames } from './composites.ts';
+import { dragFamily, dragFamilyFor, isDragName } from './drag-family.ts';
 import { ArgumentError, describeValue } from './errors.ts';
 import { checkRegion, ensembleRegion, type Region } from './grid.ts';
 import { DEFAULT_THRESHOLD, checkThreshold, cuts as cutsThroughZero, summariseMap, type Cuts, type RobustnessSummary } from './robustness.ts';
@@ -19,6 +21,9 @@ export interface CompareFigures extends Omit<RobustnessSummary, keyof TargetChoi
   /** Worst member of the spec's ensemble. */
   worstInfidelity: number;
   worstMember: Member;
+  /** On a ladder: weighted mean and worst leakage over the spec's ensemble. */
+  meanLeakage?: number;
+  worstLeakage?: number;
 }
 
 /** One pulse's judgement: the target used and the note beside it, its figures, its map over the region. */
@@ -52,7 +57,7 @@ export function evaluateJudged(spec: unknown, pulse: Pulse, withoutLine = false)
   const problem = toProblem(spec);
   const choice = chooseTarget(problem.target, pulse);
   const line = withoutLine ? undefined : problem.line;
-  return { ...evaluateMembers(choice.targetUsed, pulse, problem.members, line), target: choice.targetUsed, note: choice.targetNote };
+  return { ...evaluateMembers(choice.targetUsed, pulse, problem.members, line, problem.system), target: choice.targetUsed, note: choice.targetNote };
 }
 
 /** The figures of a pulse against a spec (or problem): on its ensemble and over a region. */
@@ -61,8 +66,8 @@ export function judgePulse(spec: unknown, pulse: Pulse, options: JudgeOptions = 
   const region = options.region ?? ensembleRegion(problem);
   checkRegion(region);
   const choice = chooseTarget(problem.target, pulse);
-  const map = robustnessMap(choice.targetUsed, pulse, region.detuning, region.amplitudeError, problem.line);
-  const summary = summariseMap(map, pulse, choice, { ...options, line: problem.line });
+  const map = robustnessMap(choice.targetUsed, pulse, region.detuning, region.amplitudeError, problem.line, problem.system);
+  const summary = summariseMap(map, pulse, choice, { ...options, line: problem.line, system: problem.system });
   const ensemble = evaluateJudged(problem, pulse);
   const worst = ensemble.members[ensemble.worstIndex];
   const figures: CompareFigures = {
@@ -82,6 +87,10 @@ export function judgePulse(spec: unknown, pulse: Pulse, options: JudgeOptions = 
     pulseAreaTurns: summary.pulseAreaTurns,
     energyHz2S: summary.energyHz2S,
   };
+  if (ensemble.meanLeakage !== undefined) {
+    figures.meanLeakage = ensemble.meanLeakage;
+    figures.worstLeakage = ensemble.worstLeakage;
+  }
   return { choice, figures, map, region, threshold: summary.threshold };
 }
 
@@ -152,7 +161,10 @@ export interface CompareRow {
 
 /** Options of compare. */
 export interface CompareOptions extends JudgeOptions {
-  /** Composite sequences to build for the spec's target under its rabiMax and dt (names as in compositeNames). */
+  /**
+   * Composite sequences to build for the spec's target under its rabiMax and dt (names as in
+   * compositeNames), and members of the DRAG family (dragFamily) calibrated on the spec.
+   */
   composites?: readonly string[];
   /** The figure that orders the rows, best first (default "mean"). */
   sortBy?: SortFigure;
@@ -178,7 +190,14 @@ export function compare(spec: unknown, pulses: readonly NamedPulse[], options: C
   const region = options.region ?? ensembleRegion(problem);
   checkRegion(region);
   const threshold = checkThreshold(options.threshold ?? DEFAULT_THRESHOLD);
-  const built = compositesFor(problem.target, options.composites ?? [], problem);
+  const names = options.composites ?? [];
+  for (const name of names) {
+    if (!isCompositeName(name) && !isDragName(name)) {
+      throw new ArgumentError(`composites: "${name}" is not a known sequence; one of ${[...compositeNames, ...dragFamily].map((c) => c.name).join(', ')}`);
+    }
+  }
+  const built = compositesFor(problem.target, names.filter((n) => !isDragName(n)), problem);
+  const drags = dragFamilyFor(problem, names.filter(isDragName));
   const judge = (name: string, pulse: Pulse): CompareRow => {
     const { choice, figures } = judgePulse(problem, pulse, { region, threshold });
     const naive = options.withoutLine && problem.line ? evaluateJudged(problem, pulse, true) : null;
@@ -189,13 +208,14 @@ export function compare(spec: unknown, pulses: readonly NamedPulse[], options: C
       target: choice.targetUsed,
       note: choice.targetNote,
       figures,
-      ...(options.cuts ? { cuts: cutsThroughZero(choice.targetUsed, pulse, region.detuning, region.amplitudeError, problem.line) } : {}),
+      ...(options.cuts ? { cuts: cutsThroughZero(choice.targetUsed, pulse, region.detuning, region.amplitudeError, problem.line, problem.system) } : {}),
       ...(naive ? { noLine: { meanInfidelity: naive.meanInfidelity, worstInfidelity: naive.worstInfidelity } } : {}),
     };
   };
   const rows: CompareRow[] = [
     ...pulses.map((p) => judge(p.name, p.pulse)),
     ...built.map((b) => (b.pulse ? judge(b.title, b.pulse) : { name: b.title, origin: 'composite', error: b.error })),
+    ...drags.map((d) => (d.pulse ? judge(d.title, d.pulse) : { name: d.title, origin: 'drag', error: d.error })),
   ];
   return { target: problem.target, ...region, threshold, sortBy, rows: sortRows(rows, sortBy) };
 }

@@ -24,6 +24,7 @@ try {
       startIndices: [start],
       signal: controller.signal,
       progressPulseEveryMs: workerData.progressPulseEveryMs,
+      initialPulse: workerData.initialPulse,
       onProgress: (progress) => post({ kind: 'progress', progress }),
     });
     post({ kind: 'start', result: result.starts[0] });

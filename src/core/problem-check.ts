@@ -50,6 +50,15 @@ export function checkProblem(problem: Problem): Problem {
     total += checkNumber(m.weight, `members[${j}].weight`, { min: 0 });
   });
   if (!(total > 0)) throw new SpecError('members', members.map((m) => m.weight), 'member weights >= 0 with at least one > 0');
+  if (problem.system !== undefined) {
+    const sys = problem.system;
+    if (typeof sys !== 'object' || sys === null) throw new SpecError('system', sys, 'an object {levels, anharmonicity}');
+    checkNumber(sys.levels, 'system.levels', { integer: true, min: 2, max: 8 });
+    checkNumber(sys.anharmonicity, 'system.anharmonicity', { unit: 'Hz' });
+    members.forEach((m, j) => {
+      if (m.anharmonicityError !== undefined) checkNumber(m.anharmonicityError, `members[${j}].anharmonicityError`, { unit: 'Hz' });
+    });
+  }
   const c = problem.constraints;
   if (typeof c !== 'object' || c === null) throw new SpecError('constraints', c, 'an object {zeroEdges, smoothness, bound}');
   if (typeof c.zeroEdges !== 'boolean') throw new SpecError('constraints.zeroEdges', c.zeroEdges, 'true or false');

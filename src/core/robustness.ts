@@ -8,7 +8,7 @@ import { axisValues } from './grid.ts';
 import { ArgumentError, describeValue } from './errors.ts';
 import { thresholdInterval, type ErrorAxis, type ThresholdInterval } from './threshold-width.ts';
 import { chooseTarget, type TargetChoice } from './target-choice.ts';
-import type { GridAxis, Line, Pulse, Target } from './types.ts';
+import type { GridAxis, LadderSystem, Line, Pulse, Target } from './types.ts';
 
 export type { ErrorAxis, ThresholdInterval } from './threshold-width.ts';
 export type { TargetChoice } from './target-choice.ts';
@@ -54,6 +54,8 @@ export interface SummaryOptions {
   threshold?: number;
   /** The line the pulse is played through: every figure is of the drive the qubit sees. */
   line?: Line;
+  /** A ladder of more than two levels (the spec's system); absent: the qubit. */
+  system?: LadderSystem;
 }
 
 /** The infidelity along one error axis with the other error at zero. */
@@ -96,8 +98,8 @@ export function summariseMap(map: RobustnessMap, pulse: Pulse, choice: TargetCho
   const dv = axisValues(map.detuning)[worst % map.detuning.points];
   const av = axisValues(map.amplitudeError)[Math.floor(worst / map.detuning.points)];
   const drive = qubitDrive(pulse, options.line);
-  const detuningInterval = thresholdInterval(choice.targetUsed, drive, 'detuning', threshold);
-  const amplitudeInterval = thresholdInterval(choice.targetUsed, drive, 'amplitudeError', threshold);
+  const detuningInterval = thresholdInterval(choice.targetUsed, drive, 'detuning', threshold, options.system);
+  const amplitudeInterval = thresholdInterval(choice.targetUsed, drive, 'amplitudeError', threshold, options.system);
   return {
     ...choice,
     detuning: { ...map.detuning },
@@ -124,20 +126,20 @@ export function summarise(
   options: SummaryOptions = {},
 ): { summary: RobustnessSummary; map: RobustnessMap } {
   const choice = chooseTarget(target, pulse);
-  const map = robustnessMap(choice.targetUsed, pulse, detuning, amplitudeError, options.line);
+  const map = robustnessMap(choice.targetUsed, pulse, detuning, amplitudeError, options.line, options.system);
   return { summary: summariseMap(map, pulse, choice, options), map };
 }
 
 /** Infidelity along one error axis on a uniform grid, the other error held at zero. */
-export function cut(target: Target, pulse: Pulse, axis: ErrorAxis, grid: GridAxis, line?: Line): Cut {
+export function cut(target: Target, pulse: Pulse, axis: ErrorAxis, grid: GridAxis, line?: Line, system?: LadderSystem): Cut {
   if (axis !== 'detuning' && axis !== 'amplitudeError') {
     throw new ArgumentError(`axis: ${describeValue(axis)} is not allowed; "detuning" or "amplitudeError"`);
   }
   const choice = chooseTarget(target, pulse);
   const zero: GridAxis = { min: 0, max: 0, points: 1 };
   const map = axis === 'detuning'
-    ? robustnessMap(choice.targetUsed, pulse, grid, zero, line)
-    : robustnessMap(choice.targetUsed, pulse, zero, grid, line);
+    ? robustnessMap(choice.targetUsed, pulse, grid, zero, line, system)
+    : robustnessMap(choice.targetUsed, pulse, zero, grid, line, system);
   return { ...choice, axis, values: axisValues(grid), infidelity: map.infidelity };
 }
 
@@ -150,9 +152,9 @@ export interface Cuts {
 }
 
 /** The cut along detuning (no amplitude error) and along amplitude error (no detuning). */
-export function cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line): Cuts {
-  const alongDetuning = cut(target, pulse, 'detuning', detuning, line);
-  const alongAmplitude = cut(target, pulse, 'amplitudeError', amplitudeError, line);
+export function cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line, system?: LadderSystem): Cuts {
+  const alongDetuning = cut(target, pulse, 'detuning', detuning, line, system);
+  const alongAmplitude = cut(target, pulse, 'amplitudeError', amplitudeError, line, system);
   return {
     detuning: alongDetuning.values,
     detuningInfidelity: alongDetuning.infidelity,

@@ -2,14 +2,15 @@
 // read, freed. Runs share nothing but the core's arena, so any number of them (and maps
 // between their steps) interleave in one core and each gives the pulse it gives alone.
 import { createBlock, freeBlock, readBuffer, BUFFER } from './block.ts';
-import { encodeMembers } from './encode.ts';
+import { blockSystem, encodeSystem } from './system.ts';
 import { lineLayout } from './line.ts';
-import { initialVariables } from './start.ts';
+import { initialVariables, variablesFromSamples } from './start.ts';
 import type { Problem, StopReason } from './types.ts';
 import { getCore, STEP_GRADIENT_TOLERANCE, STEP_LINE_SEARCH_FAILED, type Core } from './wasm.ts';
 
-/** The optimiser's starting variables for one start: the seeded smooth pulse in the bound's variables. */
-export function startVariables(problem: Problem, start: number, nVar: number): Float64Array {
+/** The optimiser's starting variables for one start: the given samples, else the seeded smooth pulse, in the bound's variables. */
+export function startVariables(problem: Problem, start: number, nVar: number, samples?: { i: ArrayLike<number>; q: ArrayLike<number> }): Float64Array {
+  if (samples) return variablesFromSamples(problem, samples, nVar);
   const x = initialVariables(problem, start, nVar);
   // The box's variables are the samples over rabiMax: start from the same pulse as the
   // tanh parametrisation would (I = rabiMax tanh(x)).
@@ -36,21 +37,22 @@ export class StartRun {
   private recentres = 0;
   private lastRecentreObjective = Infinity;
 
-  constructor(problem: Problem, start: number, core: Core = getCore()) {
+  /** `samples` (Hz, the problem's segments), when given, are where the start begins instead of its seeded pulse. */
+  constructor(problem: Problem, start: number, core: Core = getCore(), samples?: { i: ArrayLike<number>; q: ArrayLike<number> }) {
     this.core = core;
     this.problem = problem;
     this.start = start;
-    const enc = encodeMembers(problem.members, 2, true);
+    const enc = encodeSystem(problem.target, problem.members, problem.system);
     const { segments: n, dt, rabiMax, constraints, optimizer } = problem;
     this.ptr = createBlock(core, {
-      target: problem.target, segments: n, dt, members: enc, bound: constraints.bound, zeroEdges: constraints.zeroEdges,
+      ...blockSystem(enc), target: problem.target, segments: n, dt, bound: constraints.bound, zeroEdges: constraints.zeroEdges,
       rabiMax, smoothness: constraints.smoothness, optimizer, held: true,
       ...(problem.line ? { drive: lineLayout(problem.line, n, dt) } : {}),
     });
     try {
       const nVar = core.exports.problemVariables(this.ptr);
       core.job(() => {
-        const x0 = core.put(startVariables(problem, start, nVar));
+        const x0 = core.put(startVariables(problem, start, nVar, samples));
         core.exports.optInit(this.ptr, x0);
       });
     } catch (error) {

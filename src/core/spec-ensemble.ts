@@ -15,13 +15,14 @@ export interface AxisSamples {
   weights: number[];
 }
 
-type AxisName = 'detuning' | 'amplitudeError';
+/** The error axes a spec may sample. */
+export type AxisName = 'detuning' | 'amplitudeError' | 'anharmonicityError';
 
 const AXIS_FORMS =
   'one of {"min", "max", "points"} (uniform grid; add "nodes": "legendre" for Gauss-Legendre nodes), ' +
   '{"values": [...]} (a list, optional "weights"), or {"sigma", "points", "mean"?} (Gaussian, Gauss-Hermite nodes)';
 
-const UNIT: Record<AxisName, string> = { detuning: 'Hz', amplitudeError: 'relative' };
+const UNIT: Record<AxisName, string> = { detuning: 'Hz', amplitudeError: 'relative', anharmonicityError: 'Hz' };
 
 // The delivered drive is (1 + amplitudeError) times the commanded one: it must stay positive.
 const AMPLITUDE_ERROR_FLOOR = -1;
@@ -76,7 +77,8 @@ export function normaliseWeights(weights: readonly number[]): number[] | null {
   return scaled.map((w) => w / sum);
 }
 
-function parseAxis(value: unknown, path: string, axis: AxisName): AxisSamples {
+/** One error axis of an ensemble (absent: the single value 0). */
+export function parseAxis(value: unknown, path: string, axis: AxisName): AxisSamples {
   if (value === undefined) return { values: [0], weights: [1] };
   if (!isObject(value)) throw new SpecError(path, value, AXIS_FORMS);
   if ('values' in value) return parseList(value, path, axis);

@@ -3,6 +3,7 @@
 // unknown keys are rejected so that a typo cannot silently fall back to a default.
 // The format is described for users in docs/spec.md.
 import { SpecError } from './errors.ts';
+import { parseLadderSpec } from './spec-system.ts';
 import { parseJsonText } from './json-text.ts';
 import { parseEnsemble } from './spec-ensemble.ts';
 import { parseLine } from './line-spec.ts';
@@ -29,10 +30,24 @@ export const DEFAULT_OPTIMIZER: Readonly<OptimizerSettings> = {
   memory: 12,
 };
 
-const TOP_KEYS = ['name', 'description', 'target', 'duration', 'segments', 'rabiMax', 'ensemble', 'constraints', 'optimizer', 'line'];
+const TOP_KEYS = ['name', 'description', 'target', 'duration', 'segments', 'rabiMax', 'ensemble', 'constraints', 'optimizer', 'line', 'system'];
 
-/** Validates a design spec (parsed JSON) and returns the normalised problem. */
+/**
+ * Validates a design spec (parsed JSON) and returns the normalised problem: the qubit,
+ * or with a `system` section of more than two levels a ladder (spec-system.ts).
+ */
 export function parseSpec(json: unknown): Problem {
+  const { problem, system, members, freePhaseAfter } = parseLadderSpec(json);
+  const errors = members.some((m) => m.anharmonicityError !== 0);
+  if (system.levels === 2 && !freePhaseAfter && !errors) return problem;
+  const out: Problem = { ...problem, members };
+  if (system.levels > 2) out.system = system;
+  if (freePhaseAfter && problem.target.kind === 'gate') out.target = { ...problem.target, freePhaseAfter: true };
+  return out;
+}
+
+/** Validates a spec without its system keys (spec-system.ts strips them first). */
+export function parseQubitSpec(json: unknown): Problem {
   const spec = readObject(json, '', TOP_KEYS, 'a design spec');
   readText(spec, 'name', '');
   readText(spec, 'description', '');

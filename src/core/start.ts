@@ -50,3 +50,31 @@ export function initialVariables(problem: Problem, start: number, nVar: number):
   }
   return x;
 }
+
+/** The largest |sample| / rabiMax of the disc a given start may have: the inverse of tanh is finite and its slope not vanishing there. */
+const SEED_CAP = 0.98;
+
+/**
+ * Optimiser variables that stand for the given samples (the inverse of the bound's map,
+ * assembly/control.ts): for the disc, (I, Q) = rabiMax tanh(r)/r (x, y) inverted with each
+ * sample pulled inside SEED_CAP of the bound; for the box, the samples over rabiMax, clamped to it.
+ */
+export function variablesFromSamples(problem: Problem, samples: { i: ArrayLike<number>; q: ArrayLike<number> }, nVar: number): Float64Array {
+  const { rabiMax, constraints } = problem;
+  const first = constraints.zeroEdges && problem.segments >= 3 ? 1 : 0;
+  const x = new Float64Array(nVar);
+  for (let f = 0; f < nVar / 2; f++) {
+    const iv = samples.i[first + f] / rabiMax, qv = samples.q[first + f] / rabiMax;
+    if (constraints.bound === 'box') {
+      x[2 * f] = Math.max(-1, Math.min(1, iv));
+      x[2 * f + 1] = Math.max(-1, Math.min(1, qv));
+      continue;
+    }
+    const a = Math.hypot(iv, qv);
+    // r = atanh(|(I, Q)| / rabiMax) along the same direction.
+    const ratio = a < 1e-8 ? 1 : Math.atanh(Math.min(a, SEED_CAP)) / a;
+    x[2 * f] = iv * ratio;
+    x[2 * f + 1] = qv * ratio;
+  }
+  return x;
+}

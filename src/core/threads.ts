@@ -113,7 +113,8 @@ function runThread(
   return new Promise((resolve, reject) => {
     const entry = threadEntry();
     const keepEvery = Math.min(options.progressPulseEveryMs ?? KEEP_PULSE_EVERY_MS, KEEP_PULSE_EVERY_MS);
-    const worker = new Worker(entry.url, { eval: entry.eval, workerData: { problem, startIndices, progressPulseEveryMs: keepEvery } });
+    const initialPulse = options.initialPulse ? { i: Array.from(options.initialPulse.i), q: Array.from(options.initialPulse.q) } : undefined;
+    const worker = new Worker(entry.url, { eval: entry.eval, workerData: { problem, startIndices, progressPulseEveryMs: keepEvery, initialPulse } });
     workers.push(worker);
     worker.on('message', (message: ThreadMessage) => {
       if (message.kind === 'progress') onProgress(message.progress);

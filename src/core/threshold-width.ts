@@ -8,7 +8,7 @@
 // any crossing when (g(a) + g(b) + L (b - a)) / 2 < sqrt(threshold); intervals that are
 // not proven are halved, leftmost first, until the first crossing is bracketed tightly.
 import { evaluateMembers } from './api.ts';
-import type { Member, Pulse, Target } from './types.ts';
+import type { Member, Pulse, Target, LadderSystem } from './types.ts';
 
 /** Which error axis a cut or a width runs along (the other error is held at zero). */
 export type ErrorAxis = 'detuning' | 'amplitudeError';
@@ -58,7 +58,7 @@ function searchLimits(pulse: Pulse, axis: ErrorAxis): { below: number; above: nu
 }
 
 /** The interval around zero error on `axis` where infidelity against `target` stays below `threshold`. */
-export function thresholdInterval(target: Target, pulse: Pulse, axis: ErrorAxis, threshold: number): ThresholdInterval {
+export function thresholdInterval(target: Target, pulse: Pulse, axis: ErrorAxis, threshold: number, system?: LadderSystem): ThresholdInterval {
   const bound = slopeBounds(pulse)[axis];
   const limits = searchLimits(pulse, axis);
   const rootThreshold = Math.sqrt(threshold);
@@ -70,7 +70,7 @@ export function thresholdInterval(target: Target, pulse: Pulse, axis: ErrorAxis,
           ? { detuning: sign * x, amplitudeError: 0, weight: 1 }
           : { detuning: 0, amplitudeError: sign * x, weight: 1 },
       );
-      const figures = evaluateMembers(target, pulse, members).members;
+      const figures = evaluateMembers(target, pulse, members, undefined, system).members;
       return Float64Array.from(figures, (m) => Math.sqrt(m.infidelity));
     };
     return firstCrossing(g, bound, rootThreshold, limit);

@@ -9,11 +9,19 @@ export interface Member {
   detuning: number;
   amplitudeError: number;
   weight: number;
+  /** Error of the anharmonicity (Hz) on a ladder; absent or 0 on the qubit. */
+  anharmonicityError?: number;
+}
+
+/** The system driven: a ladder of `levels` with anharmonicity (Hz; negative for a transmon); levels 2 is the qubit. */
+export interface LadderSystem {
+  levels: number;
+  anharmonicity: number;
 }
 
 /** What a pulse must do: a gate (phase-insensitive) or a point-to-point state transfer. */
 export type Target =
-  | { kind: 'gate'; axis: Vec3; angleRad: number }
+  | { kind: 'gate'; axis: Vec3; angleRad: number; freePhaseAfter?: boolean }
   | { kind: 'state'; from: Vec3; to: Vec3 };
 
 /** How the drive-amplitude limit is held: the disc sqrt(I^2+Q^2) <= rabiMax, or a per-axis box. */
@@ -84,6 +92,8 @@ export interface Problem {
   members: Member[];
   constraints: Constraints;
   optimizer: OptimizerSettings;
+  /** A ladder of more than two levels (the spec's system section); absent: the two-level qubit. */
+  system?: LadderSystem;
   /** The line between the instrument and the qubit; absent: the qubit sees the held samples. */
   line?: Line;
 }
@@ -112,6 +122,10 @@ export interface Pulse {
 export interface MemberFigure extends Member {
   /** 1 - F (gate: phase-insensitive, F = |Tr(V^dag U)|^2/4; state: 1 - |<to|U|from>|^2). */
   infidelity: number;
+  /** Ladder: population that left levels 0, 1 (gate: averaged over the two basis states). */
+  leakage?: number;
+  /** Gate with freePhaseAfter: the angle phi (rad) of Rz(phi) = exp(-i phi sz/2) that follows the pulse. */
+  phaseAfter?: number;
 }
 
 /** The result of evaluating a pulse on an ensemble. */
@@ -122,6 +136,21 @@ export interface Evaluation {
   worstInfidelity: number;
   /** Index into members of the worst one. */
   worstIndex: number;
+  /** Ladder: the levels evaluated on, the weighted mean and the worst leakage. */
+  levels?: number;
+  meanLeakage?: number;
+  worstLeakage?: number;
+  /** Ladder gate: weighted mean of 1 - (Tr(M^dag M) + |Tr(V^dag M)|^2)/6 (Pedersen et al. 2007). */
+  meanAverageInfidelity?: number;
+}
+
+/** A design on a ladder re-evaluated on two more levels. */
+export interface TruncationCheck {
+  levels: number;
+  meanInfidelity: number;
+  meanLeakage: number;
+  /** True when the mean infidelity or the mean leakage changes by more than a factor two. */
+  differs: boolean;
 }
 
 /** Why an optimiser run stopped. */
@@ -166,6 +195,8 @@ export interface DesignResult {
   best: StartResult;
   starts: StartResult[];
   elapsedS: number;
+  /** A ladder design: the best pulse on levels + 2 (a warning when `differs`). */
+  truncationCheck?: TruncationCheck;
 }
 
 /** A uniform grid axis. */

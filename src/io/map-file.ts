@@ -35,7 +35,7 @@ export function writeMapCsv(map: RobustnessMap, context: MapContext): string {
     ...(context.targetNote ? [`# note: ${oneLine(context.targetNote)}`] : []),
     `# figure: ${FIGURE}`,
     `# grid: detuning ${d.min}..${d.max} Hz in ${d.points} points x amplitude error ${a.min}..${a.max} (relative) in ${a.points} points; detuning varies fastest`,
-    MAP_COLUMNS.join(','),
+    [...MAP_COLUMNS, ...(map.leakage ? ['leakage'] : [])].join(','),
   ];
   const dv = axisValues(d);
   const av = axisValues(a);
@@ -43,7 +43,7 @@ export function writeMapCsv(map: RobustnessMap, context: MapContext): string {
   for (let ai = 0; ai < a.points; ai++) {
     for (let di = 0; di < d.points; di++) {
       const j = ai * d.points + di;
-      rows[j] = `${dv[di]},${av[ai]},${map.infidelity[j]}`;
+      rows[j] = `${dv[di]},${av[ai]},${map.infidelity[j]}` + (map.leakage ? `,${map.leakage[j]}` : '');
     }
   }
   return lines.join('\n') + '\n' + rows.join('\n') + '\n';
@@ -62,6 +62,7 @@ export function writeMapJson(map: RobustnessMap, context: MapContext, summary: R
     detuning: { ...map.detuning, unit: 'Hz' },
     amplitudeError: { ...map.amplitudeError, unit: 'relative' },
     infidelity: Array.from(map.infidelity),
+    ...(map.leakage ? { leakage: Array.from(map.leakage) } : {}),
     summary: { ...summary, targetGiven: targetJson(summary.targetGiven), targetUsed: targetJson(summary.targetUsed) },
   };
   return JSON.stringify(doc, null, 2) + '\n';

@@ -2,6 +2,7 @@
 import { blochTrajectory, design, evaluateMembers, robustnessMap } from '../core/api.ts';
 import { compare, evaluateJudged } from '../core/compare.ts';
 import { compositeNames } from '../core/composites.ts';
+import { dragFamily } from '../core/drag-family.ts';
 import { qubitDrive } from '../core/line.ts';
 import { cuts } from '../core/robustness.ts';
 import { heldSpectrum } from '../core/spectrum.ts';
@@ -22,7 +23,7 @@ export const library: CoreLibrary = {
   qubitDrive: (pulse, line) => qubitDrive(pulse, line),
   compare,
   cuts,
-  composites: compositeNames,
+  composites: [...compositeNames, ...dragFamily],
   readPulse,
   writePulse,
   exportWaveform,

@@ -9,6 +9,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { evaluate, robustnessMap } from '../../src/core/api.ts';
 import { buildComposite, compositeNames } from '../../src/core/composites.ts';
+import { dragFamily } from '../../src/core/drag-family.ts';
 import { SORT_FIGURES, type CompareRow } from '../../src/core/compare.ts';
 import type { Target } from '../../src/core/types.ts';
 import { targetJson } from '../../src/io/target-json.ts';
@@ -71,7 +72,8 @@ describe('gatesmith composite', () => {
     }
     expect(r.stdout).toContain('Wimperis, J. Magn. Reson. A 109, 221 (1994)');
     const j = await run(['composite', '--list', '--json']);
-    expect(JSON.parse(j.stdout)).toHaveLength(compositeNames.length);
+    // The composite sequences, then the DRAG family (compare builds it calibrated on a spec).
+    expect(JSON.parse(j.stdout)).toHaveLength(compositeNames.length + dragFamily.length);
   });
 
   it.each([

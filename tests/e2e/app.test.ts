@@ -244,6 +244,28 @@ describe.skipIf(reason !== null)('the app in Chromium', () => {
     await recordViolations(page);
   }, 120_000);
 
+  it('takes a transmon system in the form: levels and anharmonicity in MHz, the library naming a missing one', async () => {
+    const { page } = await fresh();
+    await typeInto(page, '#f-levels', '5');
+    const message = page.locator('#f-alpha-error');
+    await message.waitFor();
+    // The library's SpecError (src/core/spec-system.ts): above two levels the anharmonicity is required.
+    expect(await message.textContent()).toContain('system.anharmonicity');
+    expect(await page.getByTestId('run').isDisabled()).toBe(true);
+    await typeInto(page, '#f-alpha', '-212 MHz');
+    await page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement).disabled);
+    expect(await page.locator('#f-alpha-error').count()).toBe(0);
+    await screenshot(page, 'e2e-06b-system');
+    await page.getByRole('tab', { name: 'Bloch sphere' }).click();
+    // Two levels only on the sphere (the library refuses a Bloch path on more: src/core/api.ts).
+    expect(await page.getByTestId('bloch-levels-note').textContent()).toContain('applies to two levels only: the spec drives 5 levels');
+    await screenshot(page, 'e2e-06c-bloch-levels');
+    await page.getByRole('tab', { name: 'Design' }).click();
+    await typeInto(page, '#f-levels', '');
+    await typeInto(page, '#f-alpha', '');
+    await recordViolations(page);
+  }, 120_000);
+
   it('restores the session after a reload', async () => {
     const { page } = await fresh();
     await typeInto(page, '#f-rabi', '12.5 MHz');

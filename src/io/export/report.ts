@@ -17,6 +17,9 @@ export interface GateFigures {
   worstInfidelity: number;
   /** The member where the worst infidelity occurs. */
   worstMember: Member;
+  /** On a ladder: weighted mean and worst leakage. */
+  meanLeakage?: number;
+  worstLeakage?: number;
 }
 
 /** The report printed by `gatesmith export` and shown by the app's export panel. */
@@ -67,7 +70,7 @@ export function evaluatorFor(problem: Problem, withLine = true): PulseEvaluator 
   return async (pulse) => {
     // Imported here so that callers with their own evaluator (the app's worker) never load the core.
     const { evaluateMembers } = await import('../../core/api.ts');
-    return evaluateMembers(problem.target, pulse, problem.members, withLine ? problem.line : undefined);
+    return evaluateMembers(problem.target, pulse, problem.members, withLine ? problem.line : undefined, problem.system);
   };
 }
 
@@ -127,9 +130,11 @@ export async function exportReport(
 
 function figures(e: Evaluation): GateFigures {
   const worst = e.members[e.worstIndex];
-  return {
+  const out: GateFigures = {
     meanInfidelity: e.meanInfidelity,
     worstInfidelity: e.worstInfidelity,
     worstMember: { detuning: worst.detuning, amplitudeError: worst.amplitudeError, weight: worst.weight },
   };
+  if (e.meanLeakage !== undefined) Object.assign(out, { meanLeakage: e.meanLeakage, worstLeakage: e.worstLeakage });
+  return out;
 }
