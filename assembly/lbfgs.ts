@@ -81,11 +81,35 @@ export function lbfgsPlace(o: Lbfgs, nVar: i32, mem: i32, gradientTolerance: f64
 /** The optimiser of a problem block. */
 @inline export function optimiserOf(ptr: usize): Lbfgs { return changetype<Lbfgs>(changetype<Problem>(ptr).opt); }
 
+// The optimiser's vector arithmetic runs two values per v128: its arrays are 16-byte
+// aligned and padded (f64s), zeroed when placed, so loops that step by two may read the
+// zero after an odd last value (the pair ring's pads stay zero differences). Sums keep the even and the odd k apart and add the two at the end: an
+// order fixed by the code, so every engine gives the same bits.
+
 /** a . b over n values. */
 export function dot(a: usize, b: usize, n: i32): f64 {
-  let s: f64 = 0.0;
-  for (let k = 0; k < n; k++) s += load<f64>(at(a, k)) * load<f64>(at(b, k));
+  let acc = f64x2.splat(0.0);
+  let k = 0;
+  for (; k + 2 <= n; k += 2) acc = f64x2.add(acc, f64x2.mul(v128.load(at(a, k)), v128.load(at(b, k))));
+  let s = f64x2.extract_lane(acc, 0) + f64x2.extract_lane(acc, 1);
+  for (; k < n; k++) s += load<f64>(at(a, k)) * load<f64>(at(b, k));
   return s;
+}
+
+/** out = y + a x over n values (out may be y). */
+export function axpy(out: usize, y: usize, a: f64, x: usize, n: i32): void {
+  const va = f64x2.splat(a);
+  let k = 0;
+  for (; k + 2 <= n; k += 2) v128.store(at(out, k), f64x2.add(v128.load(at(y, k)), f64x2.mul(va, v128.load(at(x, k)))));
+  for (; k < n; k++) store<f64>(at(out, k), load<f64>(at(y, k)) + a * load<f64>(at(x, k)));
+}
+
+/** x = a x over n values. */
+export function scale(x: usize, a: f64, n: i32): void {
+  const va = f64x2.splat(a);
+  let k = 0;
+  for (; k + 2 <= n; k += 2) v128.store(at(x, k), f64x2.mul(va, v128.load(at(x, k))));
+  for (; k < n; k++) store<f64>(at(x, k), a * load<f64>(at(x, k)));
 }
 
 /** Largest |a_k| over n values. */
@@ -101,7 +125,7 @@ export function normInf(a: usize, n: i32): f64 {
 /** Evaluate the trial point x + alpha d into xt, gt; returns phi'(alpha) = gt.d. */
 function trial(p: usize, o: Lbfgs, alpha: f64): f64 {
   const n = o.nVar, x = o.x, d = o.d, xt = o.xt;
-  for (let k = 0; k < n; k++) store<f64>(at(xt, k), load<f64>(at(x, k)) + alpha * load<f64>(at(d, k)));
+  axpy(xt, x, alpha, d, n);
   o.ft = objective(p, xt, o.gt);
   o.evaluations++;
   return dot(o.gt, d, n);
@@ -143,25 +167,25 @@ export function forgetPairs(o: Lbfgs): void {
 /** d = -H g by the two-loop recursion. */
 function direction(o: Lbfgs): void {
   const n = o.nVar, mem = o.mem, d = o.d, g = o.g;
-  for (let k = 0; k < n; k++) store<f64>(at(d, k), -load<f64>(at(g, k)));
+  for (let k = 0; k < n; k += 2) v128.store(at(d, k), f64x2.neg(v128.load(at(g, k))));
   if (o.stored == 0) return;
   let idx = o.newest;
   for (let c = 0; c < o.stored; c++) {
     const s = pairAt(o.s, o, idx), y = pairAt(o.y, o, idx);
     const a = load<f64>(at(o.rho, idx)) * dot(s, d, n);
     store<f64>(at(o.alpha, idx), a);
-    for (let k = 0; k < n; k++) store<f64>(at(d, k), load<f64>(at(d, k)) - a * load<f64>(at(y, k)));
+    axpy(d, d, -a, y, n);
     idx = idx == 0 ? mem - 1 : idx - 1;
   }
   const sN = pairAt(o.s, o, o.newest), yN = pairAt(o.y, o, o.newest);
   const gamma = dot(sN, yN, n) / dot(yN, yN, n);
-  for (let k = 0; k < n; k++) store<f64>(at(d, k), gamma * load<f64>(at(d, k)));
+  scale(d, gamma, n);
   idx = (o.newest - o.stored + 1 + mem) % mem;
   for (let c = 0; c < o.stored; c++) {
     const s = pairAt(o.s, o, idx), y = pairAt(o.y, o, idx);
     const b = load<f64>(at(o.rho, idx)) * dot(y, d, n);
     const a = load<f64>(at(o.alpha, idx));
-    for (let k = 0; k < n; k++) store<f64>(at(d, k), load<f64>(at(d, k)) + (a - b) * load<f64>(at(s, k)));
+    axpy(d, d, a - b, s, n);
     idx = (idx + 1) % mem;
   }
 }
@@ -212,18 +236,21 @@ function zoom(p: usize, o: Lbfgs, f0: f64, dphi0: f64, lo: f64, flo: f64, dlo: f
  */
 export function acceptStep(o: Lbfgs): void {
   const n = o.nVar, x = o.x, xt = o.xt, g = o.g, gt = o.gt;
-  let sy: f64 = 0.0, ss: f64 = 0.0, yy: f64 = 0.0;
-  for (let k = 0; k < n; k++) {
-    const s = load<f64>(at(xt, k)) - load<f64>(at(x, k));
-    const y = load<f64>(at(gt, k)) - load<f64>(at(g, k));
-    sy += s * y; ss += s * s; yy += y * y;
+  let vsy = f64x2.splat(0.0), vss = f64x2.splat(0.0), vyy = f64x2.splat(0.0);
+  for (let k = 0; k < n; k += 2) {
+    const s = f64x2.sub(v128.load(at(xt, k)), v128.load(at(x, k)));
+    const y = f64x2.sub(v128.load(at(gt, k)), v128.load(at(g, k)));
+    vsy = f64x2.add(vsy, f64x2.mul(s, y)); vss = f64x2.add(vss, f64x2.mul(s, s)); vyy = f64x2.add(vyy, f64x2.mul(y, y));
   }
+  const sy = f64x2.extract_lane(vsy, 0) + f64x2.extract_lane(vsy, 1);
+  const ss = f64x2.extract_lane(vss, 0) + f64x2.extract_lane(vss, 1);
+  const yy = f64x2.extract_lane(vyy, 0) + f64x2.extract_lane(vyy, 1);
   if (sy > 1e-300 && sy > 2.2e-16 * Math.sqrt(ss * yy)) {
     const slot = (o.newest + 1) % o.mem;
     const sP = pairAt(o.s, o, slot), yP = pairAt(o.y, o, slot);
-    for (let k = 0; k < n; k++) {
-      store<f64>(at(sP, k), load<f64>(at(xt, k)) - load<f64>(at(x, k)));
-      store<f64>(at(yP, k), load<f64>(at(gt, k)) - load<f64>(at(g, k)));
+    for (let k = 0; k < n; k += 2) {
+      v128.store(at(sP, k), f64x2.sub(v128.load(at(xt, k)), v128.load(at(x, k))));
+      v128.store(at(yP, k), f64x2.sub(v128.load(at(gt, k)), v128.load(at(g, k))));
     }
     store<f64>(at(o.rho, slot), 1.0 / sy);
     o.newest = slot;

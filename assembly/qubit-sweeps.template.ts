@@ -160,59 +160,90 @@ export function __NAME__(
   const w$ = ld(wPtr, j + 2 * $index);
   mean += vsum(vmul(fig$, w$));
   // d(1-F)/dI = w (1+eps) c * (-uW_r Tr(dU P) - uW_i Tr(dU P')) = 2 w c (1+eps) (uW_r g.m + uW_i g.m').
+  // m and m' are carried pre-scaled by these factors (the backward rotation is linear), so
+  // g.m is the gradient's share with no multiply.
   const wcs2$ = vmul(vadd(w$, w$), cs$);
   const fa$ = vmul(wcs2$, wur$);
   const fb$ = vmul(wcs2$, wui$);
   // m from M_{n-1} = A G; m' from A K G (K = -i sz: A K = (ui, -ur, vi, -vr)).
   // Vector part of (ur, ui, vr, vi) = m0 - i m.sigma is m = (-vi, vr, -ui).
-  let mx$ = vneg(qmulVi(aur$, aui$, avr$, avi$, gur, gui, gvr, gvi));
-  let my$ = qmulVr(aur$, aui$, avr$, avi$, gur, gui, gvr, gvi);
-  let mz$ = vneg(qmulUi(aur$, aui$, avr$, avi$, gur, gui, gvr, gvi));
-  const kur$ = aui$, kui$ = vneg(aur$), kvr$ = avi$, kvi$ = vneg(avr$);
-  let px$ = vneg(qmulVi(kur$, kui$, kvr$, kvi$, gur, gui, gvr, gvi));
-  let py$ = qmulVr(kur$, kui$, kvr$, kvi$, gur, gui, gvr, gvi);
-  let pz$ = vneg(qmulUi(kur$, kui$, kvr$, kvi$, gur, gui, gvr, gvi));
+  let mx$ = vmul(fa$, vneg(qmulVi(aur$, aui$, avr$, avi$, gur, gui, gvr, gvi)));
+  let my$ = vmul(fa$, qmulVr(aur$, aui$, avr$, avi$, gur, gui, gvr, gvi));
+  let mz$ = vmul(fa$, vneg(qmulUi(aur$, aui$, avr$, avi$, gur, gui, gvr, gvi)));
 
+  // The backward sweep, per segment (b = (bx, by, bz), a = |b|, S = sin(a)/a, kappa = cos(a) T + S^2):
+  //   g_x.m = bx kappa (b.m) + cos(a) S mx + S^2 e_x,  g_y.m likewise, with e = m x b;
+  //   m <- cos(2a) m + 2 cos(a) S e + 2 S^2 (b.m) b   (the rotation by U_k^-1),
+  // e and b.m computed once for both. A gate target needs only m: its loop holds no m'
+  // (fewer live vectors than the machine's 16 registers, so no spills).
+  if (mode == MODE_GATE) {
+    for (let k = n - 1; k >= 0; k--) {
+      const slot$ = work$ + <usize>k * 48;
+      const co$ = v128.load(slot$), si$ = v128.load(slot$, 16), tt$ = v128.load(slot$, 32);
+      const iS = load<f64>(iPtr + (<usize>k << 3));
+      const qS = load<f64>(qPtr + (<usize>k << 3));
+      const vi = vsplat(iS), vq = vsplat(qS);
+      const bx$ = vmul(cs$, vi);
+      const by$ = vmul(cs$, vq);
+      const ss$ = vmul(si$, si$);
+      const csn$ = vmul(co$, si$);
+      const ex$ = vsub(vmul(my$, bz$), vmul(mz$, by$));
+      const ey$ = vsub(vmul(mz$, bx$), vmul(mx$, bz$));
+      const ez$ = vsub(vmul(mx$, by$), vmul(my$, bx$));
+      const bm$ = vmad(bx$, mx$, vmad(by$, my$, vmul(bz$, mz$)));
+      const kbm$ = vmul(vmad(co$, tt$, ss$), bm$);
+      const gI$ = vmad(bx$, kbm$, vmad(csn$, mx$, vmul(ss$, ex$)));
+      const gQ$ = vmad(by$, kbm$, vmad(csn$, my$, vmul(ss$, ey$)));
+      const c2a$ = vsub(vmul(vadd(co$, co$), co$), one);
+      const csn2$ = vadd(csn$, csn$);
+      const sbm2$ = vmul(ss$, vadd(bm$, bm$));
+      mx$ = vmad(c2a$, mx$, vmad(csn2$, ex$, vmul(sbm2$, bx$)));
+      my$ = vmad(c2a$, my$, vmad(csn2$, ey$, vmul(sbm2$, by$)));
+      mz$ = vmad(c2a$, mz$, vmad(csn2$, ez$, vmul(sbm2$, bz$)));
+      const gIp = gradIPtr + (<usize>k << 3);
+      const gQp = gradQPtr + (<usize>k << 3);
+      store<f64>(gIp, load<f64>(gIp) + vsum(JOIN(vadd, gI$)));
+      store<f64>(gQp, load<f64>(gQp) + vsum(JOIN(vadd, gQ$)));
+    }
+    return mean;
+  }
+  const kur$ = aui$, kui$ = vneg(aur$), kvr$ = avi$, kvi$ = vneg(avr$);
+  let px$ = vmul(fb$, vneg(qmulVi(kur$, kui$, kvr$, kvi$, gur, gui, gvr, gvi)));
+  let py$ = vmul(fb$, qmulVr(kur$, kui$, kvr$, kvi$, gur, gui, gvr, gvi));
+  let pz$ = vmul(fb$, vneg(qmulUi(kur$, kui$, kvr$, kvi$, gur, gui, gvr, gvi)));
   for (let k = n - 1; k >= 0; k--) {
     const slot$ = work$ + <usize>k * 48;
     const co$ = v128.load(slot$), si$ = v128.load(slot$, 16), tt$ = v128.load(slot$, 32);
     const iS = load<f64>(iPtr + (<usize>k << 3));
     const qS = load<f64>(qPtr + (<usize>k << 3));
-    const bx$ = vmul(cs$, vsplat(iS));
-    const by$ = vmul(cs$, vsplat(qS));
+    const vi = vsplat(iS), vq = vsplat(qS);
+    const bx$ = vmul(cs$, vi);
+    const by$ = vmul(cs$, vq);
     const ss$ = vmul(si$, si$);
-    const kap$ = vmad(co$, tt$, ss$);
     const csn$ = vmul(co$, si$);
-    // g_x . m and g_y . m
+    const kap$ = vmad(co$, tt$, ss$);
+    const c2a$ = vsub(vmul(vadd(co$, co$), co$), one);
+    const csn2$ = vadd(csn$, csn$);
+    const ex$ = vsub(vmul(my$, bz$), vmul(mz$, by$));
+    const ey$ = vsub(vmul(mz$, bx$), vmul(mx$, bz$));
+    const ez$ = vsub(vmul(mx$, by$), vmul(my$, bx$));
     const bm$ = vmad(bx$, mx$, vmad(by$, my$, vmul(bz$, mz$)));
     const kbm$ = vmul(kap$, bm$);
-    const gxm$ = vmad(bx$, kbm$, vmad(csn$, mx$, vmul(ss$, vsub(vmul(bz$, my$), vmul(by$, mz$)))));
-    const gym$ = vmad(by$, kbm$, vmad(csn$, my$, vmul(ss$, vsub(vmul(bx$, mz$), vmul(bz$, mx$)))));
-    let gI$ = vmul(fa$, gxm$);
-    let gQ$ = vmul(fa$, gym$);
-    // w = S b; rotation coefficients
-    const wx$ = vmul(si$, bx$), wy$ = vmul(si$, by$), wz$ = vmul(si$, bz$);
-    const c2c$ = vadd(co$, co$);
-    const c2a$ = vsub(vmul(c2c$, co$), one);
-    {
-      const mw$ = vmad(mx$, wx$, vmad(my$, wy$, vmul(mz$, wz$)));
-      const mw2$ = vadd(mw$, mw$);
-      const nx$ = vmad(c2a$, mx$, vmad(c2c$, vsub(vmul(my$, wz$), vmul(mz$, wy$)), vmul(mw2$, wx$)));
-      const ny$ = vmad(c2a$, my$, vmad(c2c$, vsub(vmul(mz$, wx$), vmul(mx$, wz$)), vmul(mw2$, wy$)));
-      const nz$ = vmad(c2a$, mz$, vmad(c2c$, vsub(vmul(mx$, wy$), vmul(my$, wx$)), vmul(mw2$, wz$)));
-      mx$ = nx$; my$ = ny$; mz$ = nz$;
-    }
-    if (mode == MODE_STATE) {
-      const pbm$ = vmul(kap$, vmad(bx$, px$, vmad(by$, py$, vmul(bz$, pz$))));
-      gI$ = vmad(fb$, vmad(bx$, pbm$, vmad(csn$, px$, vmul(ss$, vsub(vmul(bz$, py$), vmul(by$, pz$))))), gI$);
-      gQ$ = vmad(fb$, vmad(by$, pbm$, vmad(csn$, py$, vmul(ss$, vsub(vmul(bx$, pz$), vmul(bz$, px$))))), gQ$);
-      const pw$ = vmad(px$, wx$, vmad(py$, wy$, vmul(pz$, wz$)));
-      const pw2$ = vadd(pw$, pw$);
-      const nx$ = vmad(c2a$, px$, vmad(c2c$, vsub(vmul(py$, wz$), vmul(pz$, wy$)), vmul(pw2$, wx$)));
-      const ny$ = vmad(c2a$, py$, vmad(c2c$, vsub(vmul(pz$, wx$), vmul(px$, wz$)), vmul(pw2$, wy$)));
-      const nz$ = vmad(c2a$, pz$, vmad(c2c$, vsub(vmul(px$, wy$), vmul(py$, wx$)), vmul(pw2$, wz$)));
-      px$ = nx$; py$ = ny$; pz$ = nz$;
-    }
+    const fx$ = vsub(vmul(py$, bz$), vmul(pz$, by$));
+    const fy$ = vsub(vmul(pz$, bx$), vmul(px$, bz$));
+    const fz$ = vsub(vmul(px$, by$), vmul(py$, bx$));
+    const bp$ = vmad(bx$, px$, vmad(by$, py$, vmul(bz$, pz$)));
+    const kbp$ = vmul(kap$, bp$);
+    const gI$ = vadd(vmad(bx$, kbm$, vmad(csn$, mx$, vmul(ss$, ex$))), vmad(bx$, kbp$, vmad(csn$, px$, vmul(ss$, fx$))));
+    const gQ$ = vadd(vmad(by$, kbm$, vmad(csn$, my$, vmul(ss$, ey$))), vmad(by$, kbp$, vmad(csn$, py$, vmul(ss$, fy$))));
+    const sbm2$ = vmul(ss$, vadd(bm$, bm$));
+    mx$ = vmad(c2a$, mx$, vmad(csn2$, ex$, vmul(sbm2$, bx$)));
+    my$ = vmad(c2a$, my$, vmad(csn2$, ey$, vmul(sbm2$, by$)));
+    mz$ = vmad(c2a$, mz$, vmad(csn2$, ez$, vmul(sbm2$, bz$)));
+    const sbp2$ = vmul(ss$, vadd(bp$, bp$));
+    px$ = vmad(c2a$, px$, vmad(csn2$, fx$, vmul(sbp2$, bx$)));
+    py$ = vmad(c2a$, py$, vmad(csn2$, fy$, vmul(sbp2$, by$)));
+    pz$ = vmad(c2a$, pz$, vmad(csn2$, fz$, vmul(sbp2$, bz$)));
     const gIp = gradIPtr + (<usize>k << 3);
     const gQp = gradQPtr + (<usize>k << 3);
     store<f64>(gIp, load<f64>(gIp) + vsum(JOIN(vadd, gI$)));

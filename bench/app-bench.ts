@@ -3,19 +3,55 @@
 //   page load to the first interactive form (Run enabled: core loaded, spec validated),
 //   Run to the first convergence point, the design's wall time, main-thread long tasks
 //   during a design (PerformanceObserver 'longtask': tasks over 50 ms), Stop latency,
-//   and a 201 x 201 map's time to the first coarse image and to full resolution.
-// Usage: npm run bench:app (needs /usr/bin/chromium); `npm run bench` runs it too and
+//   a 201 x 201 map's time to the first coarse image and to full resolution, and, at
+//   100 000 samples, Stop latency and the long tasks of a run, of every view, and of
+//   opening a 62 MB pulse file.
+// Every browser step has a time limit: a step that fails or runs out of time is reported
+// as a figure (NaN, with its reason), and the benchmark goes on.
+// Usage: npm run bench:app [-- --large-only] (needs /usr/bin/chromium); `npm run bench` runs it too and
 // puts its figures under the key "app".
 import type { Page } from 'playwright-core';
 import { existsSync } from 'node:fs';
-import { CHROMIUM, skipReason, startHarness, visit } from '../tests/e2e/harness.ts';
+import { mkdtemp, rm, writeFile } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import { basename, join } from 'node:path';
+import { CHROMIUM, skipReason, startHarness, visit, type Harness } from '../tests/e2e/harness.ts';
 
-const REPEATS = 5;
+// `--large-only`: only the 100 000-sample figures, in one page (a quick look while working on them).
+const LARGE_ONLY = process.argv.includes('--large-only');
+const REPEATS = LARGE_ONLY ? 0 : 5;
+/** Fresh pages for the 100 000-sample figures. */
+const LARGE_REPEATS = LARGE_ONLY ? 1 : 3;
+const LARGE_SAMPLES = 100_000;
+/** Bytes of the large pulse file (as a user reported: 62 MB). */
+const LARGE_FILE_BYTES = 62e6;
 
-const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
+const median = (xs: number[]) => {
+  const finite = xs.filter(Number.isFinite).sort((a, b) => a - b);
+  return finite.length ? finite[Math.floor(finite.length / 2)] : NaN;
+};
 
-async function runEnabled(page: Page): Promise<number> {
-  await page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement | null)?.disabled, undefined, { timeout: 60_000 });
+/** Steps that failed or ran out of time, with their reasons. */
+const failures: string[] = [];
+
+/** Runs one browser step within `timeoutMs`; on failure or timeout records why and gives `fallback`. */
+async function step<T>(name: string, timeoutMs: number, fallback: T, body: () => Promise<T>): Promise<T> {
+  let timer: ReturnType<typeof setTimeout> | undefined;
+  const limit = new Promise<never>((_, reject) => {
+    timer = setTimeout(() => reject(new Error(`no result within ${timeoutMs} ms`)), timeoutMs);
+  });
+  try {
+    return await Promise.race([body(), limit]);
+  } catch (error) {
+    failures.push(`${name}: ${(error as Error).message.split('\n')[0]}`);
+    return fallback;
+  } finally {
+    clearTimeout(timer);
+  }
+}
+
+async function runEnabled(page: Page, timeout = 60_000): Promise<number> {
+  await page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement | null)?.disabled, undefined, { timeout });
   return page.evaluate(() => performance.now());
 }
 
@@ -48,8 +84,125 @@ async function timedRun(page: Page): Promise<{ firstPointMs: number; designMs: n
   );
 }
 
+/** Clicks Stop and times, inside the page, until the status says the run stopped. */
+async function timedStop(page: Page): Promise<number> {
+  return page.evaluate(
+    () =>
+      new Promise<number>((resolve) => {
+        const status = document.querySelector('[data-testid=run-status]')!;
+        const t0 = performance.now();
+        const watch = new MutationObserver(() => {
+          if (/^stopped/.test(status.textContent ?? '')) {
+            watch.disconnect();
+            resolve(performance.now() - t0);
+          }
+        });
+        watch.observe(status, { subtree: true, characterData: true, childList: true });
+        (document.querySelector('[data-testid=stop]') as HTMLButtonElement).click();
+      }),
+  );
+}
+
+/** Starts recording the page's long tasks (kept in the page until `longTasks` reads them). */
+async function recordLongTasks(page: Page): Promise<void> {
+  await page.evaluate(() => {
+    const w = window as unknown as { __longTasks: number[] };
+    w.__longTasks = [];
+    new PerformanceObserver((list) => list.getEntries().forEach((e) => w.__longTasks.push(e.duration))).observe({ type: 'longtask', buffered: false });
+  });
+}
+
+/** The long tasks recorded since `recordLongTasks` (ms), after a pause for the last ones to be reported. */
+async function longTasks(page: Page): Promise<number[]> {
+  await page.waitForTimeout(200);
+  return page.evaluate(() => [...(window as unknown as { __longTasks: number[] }).__longTasks]);
+}
+
 async function setField(page: Page, selector: string, text: string): Promise<void> {
   await page.locator(selector).fill(text);
+}
+
+/** A pulse file of about `bytes` bytes (I and Q written with full double precision), written under `dir`. */
+async function largePulseFile(bytes: number, dir: string): Promise<string> {
+  // About 19 characters a value (sign, "0.", 17 digits, separator) and two values a sample.
+  const samples = Math.floor(bytes / 40);
+  const values = (phase: number) => {
+    const out: string[] = new Array(samples);
+    for (let k = 0; k < samples; k++) out[k] = (5e6 * Math.sin((k + phase) / 997) + 1e-3 * ((k * 7919) % 1000)).toPrecision(17);
+    return out.join(',');
+  };
+  const path = join(dir, 'large-pulse.json');
+  await writeFile(path, `{"dt":2e-9,"i":[${values(0)}],"q":[${values(311)}],"metadata":{"name":"large"}}`);
+  return path;
+}
+
+/** Figures at 100 000 samples in one fresh page: Stop latency and every long task of a run, the views and a large file. */
+async function largeFigures(harness: Harness, file: string): Promise<{ stopMs: number; tasks: Array<[string, number[]]>; fileMs: number; progressShown: boolean }> {
+  const { page, context } = await visit(harness);
+  const out = { stopMs: NaN, tasks: [] as Array<[string, number[]]>, fileMs: NaN, progressShown: false };
+  /** Runs a step and files the long tasks seen during it under its name. */
+  const measured = async (name: string, timeoutMs: number, body: () => Promise<void>) => {
+    await recordLongTasks(page);
+    await step(name, timeoutMs, undefined, body);
+    out.tasks.push([name, await longTasks(page)]);
+  };
+  try {
+    await step('100k: form', 60_000, undefined, async () => {
+      await runEnabled(page);
+      await setField(page, '#f-duration', '200 us');
+      await setField(page, '#f-segments', String(LARGE_SAMPLES));
+      await setField(page, '#f-iterations', '100000');
+      await runEnabled(page);
+    });
+    await recordLongTasks(page);
+    const started = await step('100k: run', 90_000, false, async () => {
+      await page.getByTestId('run').click();
+      await page.waitForFunction(() => document.querySelector('[data-testid=run-status]')?.textContent === 'running', undefined, { timeout: 30_000 });
+      await page.waitForFunction(() => Number(document.querySelector('[data-testid=run-iteration]')?.textContent) >= 3, undefined, { timeout: 80_000 });
+      await page.waitForTimeout(1500);
+      return true;
+    });
+    if (started) out.stopMs = await step('100k: stop', 30_000, NaN, () => timedStop(page));
+    await page.waitForTimeout(1000);
+    out.tasks.push(['run and stop', await longTasks(page)]);
+
+    await measured('waveform view', 30_000, async () => {
+      await page.keyboard.press('Alt+2');
+      await page.getByTestId('waveform-chart').waitFor({ timeout: 20_000 });
+      await page.waitForTimeout(1000);
+    });
+    await measured('robustness view', 120_000, async () => {
+      await page.keyboard.press('Alt+3');
+      await page.waitForFunction(() => /points in/.test(document.querySelector('[data-testid=map-status]')?.textContent ?? ''), undefined, { timeout: 110_000 });
+    });
+    await measured('Bloch view', 30_000, async () => {
+      await page.keyboard.press('Alt+5');
+      await page.getByTestId('bloch').waitFor({ timeout: 20_000 });
+      await page.waitForTimeout(1500);
+    });
+    await measured('export view', 90_000, async () => {
+      await page.keyboard.press('Alt+6');
+      await page.waitForFunction(() => ['ready', 'refused', 'invalid'].includes(document.querySelector('[data-testid=export-panel]')?.getAttribute('data-state') ?? ''), undefined, { timeout: 80_000 });
+      await page.waitForTimeout(500);
+    });
+    await measured('compare view', 90_000, async () => {
+      await page.keyboard.press('Alt+4');
+      await page.waitForFunction(() => document.querySelectorAll('[data-testid=compare-table] tbody tr').length > 1, undefined, { timeout: 80_000 });
+    });
+    await measured(`${LARGE_FILE_BYTES / 1e6} MB pulse file`, 120_000, async () => {
+      const t0 = await page.evaluate(() => performance.now());
+      await page.getByTestId('open-pulse').setInputFiles(file);
+      // Progress is shown while the file is read (watched until the file is open).
+      const progress = page.getByTestId('file-progress').waitFor({ timeout: 100_000 }).then(() => (out.progressShown = true), () => undefined);
+      await page.getByTestId('notice').filter({ hasText: `Opened ${basename(file)}` }).waitFor({ timeout: 110_000 });
+      out.fileMs = (await page.evaluate(() => performance.now())) - t0;
+      await Promise.race([progress, page.waitForTimeout(100)]);
+      await page.waitForTimeout(1000);
+    });
+  } finally {
+    await context.close();
+  }
+  return out;
 }
 
 /** Medians of the app's figures (ms), and every long task seen during the designs. */
@@ -62,6 +215,14 @@ export interface AppFigures {
   map201FullMs: number;
   longTasksMs: number[];
   longTasksOver50: number;
+  /** Stop to "stopped" at 100 000 samples. */
+  stopLargeMs: number;
+  /** Main-thread tasks over 50 ms at 100 000 samples: a run and its Stop, every view, a 62 MB file. */
+  largeLongTasksMs: number[];
+  largeFileOpenMs: number;
+  largeFileProgressShown: boolean;
+  /** Steps that failed or ran out of time. */
+  failures: string[];
 }
 
 /** Runs the browser benchmark; `log` receives the table. Null (with the reason logged) without Chromium. */
@@ -71,6 +232,7 @@ export async function appBenchmark(log: (line: string) => void = console.log): P
     log(`app benchmark not run: ${reason}`);
     return null;
   }
+  failures.length = 0;
   const harness = await startHarness();
   try {
     const loads: number[] = [];
@@ -79,66 +241,91 @@ export async function appBenchmark(log: (line: string) => void = console.log): P
     const stops: number[] = [];
     const coarse: number[] = [];
     const full: number[] = [];
-    let longTasks: number[] = [];
+    let longTasksMs: number[] = [];
     for (let r = 0; r < REPEATS; r++) {
       const { page, context } = await visit(harness);
-      loads.push(await runEnabled(page));
-      const run = await timedRun(page);
-      firstPoints.push(run.firstPointMs);
-      designs.push(run.designMs);
-      longTasks = longTasks.concat(run.longTasks);
+      try {
+        loads.push(await step('load', 60_000, NaN, () => runEnabled(page)));
+        const run = await step('demo design', 120_000, { firstPointMs: NaN, designMs: NaN, longTasks: [] as number[] }, () => timedRun(page));
+        firstPoints.push(run.firstPointMs);
+        designs.push(run.designMs);
+        longTasksMs = longTasksMs.concat(run.longTasks);
 
-      // A 201 x 201 map of the designed pulse.
-      await page.keyboard.press('Alt+3');
-      await page.waitForFunction(() => document.querySelector('[data-testid=map-status]')?.getAttribute('data-full-ms'), undefined, { timeout: 60_000 });
-      await setField(page, '#m-d-n', '201');
-      await setField(page, '#m-a-n', '201');
-      await page.waitForFunction(() => /201 × 201 points/.test(document.querySelector('[data-testid=map-status]')?.textContent ?? ''), undefined, { timeout: 60_000 });
-      const status = page.getByTestId('map-status');
-      coarse.push(Number(await status.getAttribute('data-coarse-ms')));
-      full.push(Number(await status.getAttribute('data-full-ms')));
+        // A 201 x 201 map of the designed pulse.
+        const map = await step('201 x 201 map', 120_000, { coarse: NaN, full: NaN }, async () => {
+          await page.keyboard.press('Alt+3');
+          await page.waitForFunction(() => document.querySelector('[data-testid=map-status]')?.getAttribute('data-full-ms'), undefined, { timeout: 60_000 });
+          await setField(page, '#m-d-n', '201');
+          await setField(page, '#m-a-n', '201');
+          await page.waitForFunction(() => /201 × 201 points/.test(document.querySelector('[data-testid=map-status]')?.textContent ?? ''), undefined, { timeout: 60_000 });
+          const status = page.getByTestId('map-status');
+          return { coarse: Number(await status.getAttribute('data-coarse-ms')), full: Number(await status.getAttribute('data-full-ms')) };
+        });
+        coarse.push(map.coarse);
+        full.push(map.full);
 
-      // Stop latency on a long run.
-      await page.keyboard.press('Alt+1');
-      await setField(page, '#f-segments', '1000');
-      await setField(page, '#f-iterations', '100000');
-      await runEnabled(page);
-      await page.getByTestId('run').click();
-      await page.waitForFunction(() => Number(document.querySelector('[data-testid=run-iteration]')?.textContent) > 20, undefined, { timeout: 60_000 });
-      stops.push(
-        await page.evaluate(
-          () =>
-            new Promise<number>((resolve) => {
-              const status = document.querySelector('[data-testid=run-status]')!;
-              const t0 = performance.now();
-              const watch = new MutationObserver(() => {
-                if (/^stopped/.test(status.textContent ?? '')) {
-                  watch.disconnect();
-                  resolve(performance.now() - t0);
-                }
-              });
-              watch.observe(status, { subtree: true, characterData: true, childList: true });
-              (document.querySelector('[data-testid=stop]') as HTMLButtonElement).click();
-            }),
-        ),
-      );
-      await context.close();
+        // Stop latency on a long run.
+        stops.push(
+          await step('stop at 1000 samples', 90_000, NaN, async () => {
+            await page.keyboard.press('Alt+1');
+            await setField(page, '#f-segments', '1000');
+            await setField(page, '#f-iterations', '100000');
+            await runEnabled(page);
+            await page.getByTestId('run').click();
+            // The counter still shows the demo design's iterations until the new run reports.
+            await page.waitForFunction(() => document.querySelector('[data-testid=run-status]')?.textContent === 'running', undefined, { timeout: 30_000 });
+            await page.waitForFunction(() => Number(document.querySelector('[data-testid=run-iteration]')?.textContent) > 20, undefined, { timeout: 60_000 });
+            return timedStop(page);
+          }),
+        );
+      } finally {
+        await context.close();
+      }
     }
-    const row = (name: string, values: number[], unit = 'ms') => log(`${name.padEnd(44)} ${median(values).toFixed(1).padStart(9)} ${unit}   (runs: ${values.map((v) => v.toFixed(1)).join(', ')})`);
-    log(`gatesmith app benchmark, Chromium headless, ${REPEATS} fresh page loads, medians`);
+
+    const dir = await mkdtemp(join(tmpdir(), 'gatesmith-bench-'));
+    const file = await largePulseFile(LARGE_FILE_BYTES, dir);
+    const largeStops: number[] = [];
+    let largeTasks: number[] = [];
+    const fileTimes: number[] = [];
+    let progressShown = true;
+    const taskRows: Array<[string, number[]]> = [];
+    for (let r = 0; r < LARGE_REPEATS; r++) {
+      const large = await largeFigures(harness, file);
+      largeStops.push(large.stopMs);
+      fileTimes.push(large.fileMs);
+      progressShown &&= large.progressShown;
+      for (const [name, values] of large.tasks) {
+        largeTasks = largeTasks.concat(values);
+        taskRows.push([`${name} (page ${r + 1})`, values]);
+      }
+    }
+    await rm(dir, { recursive: true, force: true });
+
+    const row = (name: string, values: number[], unit = 'ms') =>
+      log(`${name.padEnd(48)} ${median(values).toFixed(1).padStart(9)} ${unit}   (runs: ${values.map((v) => v.toFixed(1)).join(', ')})`);
+    const tasks = (name: string, values: number[]) =>
+      log(`${name.padEnd(48)} ${String(values.filter((t) => t > 50).length).padStart(9)}      (long tasks: ${values.length}; longest ${values.length ? Math.max(...values).toFixed(0) : 0} ms)`);
+    log(`gatesmith app benchmark, Chromium headless, ${REPEATS} fresh page loads (${LARGE_REPEATS} at ${LARGE_SAMPLES} samples), medians`);
     row('page load to first interactive form', loads);
     row('Run to first convergence point', firstPoints);
     row('demo design, Run to figures shown', designs);
     row('Stop to "stopped" (1000 samples x 25 members)', stops);
     row('201 x 201 map: first coarse image', coarse);
     row('201 x 201 map: full resolution', full);
-    const over = longTasks.filter((t) => t > 50);
-    log(
-      `${'main-thread long tasks during designs'.padEnd(44)} ${String(longTasks.length).padStart(9)}      (over 50 ms: ${over.length}; longest ${longTasks.length ? Math.max(...longTasks).toFixed(0) : 0} ms)`,
-    );
+    tasks('main-thread tasks over 50 ms, demo designs', longTasksMs);
+    row(`Stop to "stopped" (${LARGE_SAMPLES} samples x 25 members)`, largeStops);
+    row(`open a ${LARGE_FILE_BYTES / 1e6} MB pulse file, to "Opened"`, fileTimes);
+    log(`${'progress shown while the file is read'.padEnd(48)} ${progressShown ? 'yes' : 'no'}`);
+    tasks(`main-thread tasks over 50 ms at ${LARGE_SAMPLES} samples`, largeTasks);
+    for (const [name, values] of taskRows) tasks(`  ${name}`, values);
+    log(`steps that failed or ran out of time: ${failures.length ? failures.join('; ') : 'none'}`);
+    const over = longTasksMs.filter((t) => t > 50);
     return {
       loadToInteractiveMs: median(loads), firstConvergencePointMs: median(firstPoints), demoDesignMs: median(designs),
-      stopMs: median(stops), map201CoarseMs: median(coarse), map201FullMs: median(full), longTasksMs: longTasks, longTasksOver50: over.length,
+      stopMs: median(stops), map201CoarseMs: median(coarse), map201FullMs: median(full), longTasksMs, longTasksOver50: over.length,
+      stopLargeMs: median(largeStops), largeLongTasksMs: largeTasks.filter((t) => t > 50), largeFileOpenMs: median(fileTimes),
+      largeFileProgressShown: progressShown, failures: [...failures],
     };
   } finally {
     await harness.close();

@@ -1,5 +1,6 @@
 // The convergence record of a run: mean infidelity against iteration, one series per
-// start, kept short enough to redraw quickly (older points are thinned, the newest kept).
+// start, kept short enough to redraw quickly: evenly thinned over the iterations (every
+// stride-th iteration, the stride doubling as the run goes on) with the newest point kept.
 import type { ProgressPoint } from '../worker/protocol.ts';
 
 /** One start's curve: iterations and mean infidelities, in order. */
@@ -9,6 +10,10 @@ export interface Series {
   meanInfidelity: number[];
   /** The newest report of this start. */
   latest: ProgressPoint;
+  /** Iterations kept are multiples of this (the newest point excepted). */
+  stride: number;
+  /** True when the last point kept is the newest one, off the stride (replaced by the next). */
+  tail: boolean;
 }
 
 /** Most points a series keeps before thinning. */
@@ -27,7 +32,7 @@ export class Convergence {
       if (c.iteration.length === 0) continue;
       const last = c.iteration.length - 1;
       const latest: ProgressPoint = { start: c.start, iteration: c.iteration[last], meanInfidelity: c.meanInfidelity[last], objective: c.meanInfidelity[last], gradientNorm: NaN, elapsedS: NaN };
-      record.byStart.set(c.start, { start: c.start, iteration: [...c.iteration], meanInfidelity: [...c.meanInfidelity], latest });
+      record.byStart.set(c.start, { start: c.start, iteration: [...c.iteration], meanInfidelity: [...c.meanInfidelity], latest, stride: 1, tail: false });
       record.received += c.iteration.length;
     }
     return record;
@@ -39,11 +44,16 @@ export class Convergence {
       this.received++;
       let series = this.byStart.get(point.start);
       if (!series) {
-        series = { start: point.start, iteration: [], meanInfidelity: [], latest: point };
+        series = { start: point.start, iteration: [], meanInfidelity: [], latest: point, stride: 1, tail: false };
         this.byStart.set(point.start, series);
+      }
+      if (series.tail) {
+        series.iteration.pop();
+        series.meanInfidelity.pop();
       }
       series.iteration.push(point.iteration);
       series.meanInfidelity.push(point.meanInfidelity);
+      series.tail = point.iteration % series.stride !== 0;
       series.latest = point;
       if (series.iteration.length > MAX_SERIES_POINTS) thin(series);
     }
@@ -76,11 +86,14 @@ export class Convergence {
   }
 }
 
-// Drops every other point of the older half: the curve keeps its shape on a log axis, the
-// newest points stay dense where the eye is.
+// Doubles the stride and keeps the iterations on it, and the newest: the points stay evenly
+// spread over the iterations, so no stretch of the curve is drawn as a straight line
+// (thinning only the older half again and again left iteration 0 joined to iteration 500).
 function thin(series: Series): void {
-  const half = Math.floor(series.iteration.length / 2);
-  const keep = (_: number, k: number) => k >= half || k % 2 === 0;
-  series.iteration = series.iteration.filter(keep);
+  series.stride *= 2;
+  const last = series.iteration.length - 1;
+  const keep = (_: number, k: number) => k === last || series.iteration[k] % series.stride === 0;
   series.meanInfidelity = series.meanInfidelity.filter(keep);
+  series.iteration = series.iteration.filter(keep);
+  series.tail = series.iteration[series.iteration.length - 1] % series.stride !== 0;
 }

@@ -16,7 +16,8 @@ import {
 import { samplesPerSegment } from '../io/export/resample.ts';
 import type { ExportPreview } from '../worker/protocol.ts';
 import type { PulseEntry } from './state/session.svelte.ts';
-import { roundUpTwoDigits } from './units.ts';
+import { inFormWords, type FieldWords } from './spec-limits.ts';
+import { formatQuantity, roundUpTwoDigits } from './units.ts';
 
 /**
  * What the export form holds: the library's settings (Hz, samples) with `maxLength` null for
@@ -96,15 +97,57 @@ export function exportSettingsInput(form: ExportForm): ExportSettingsInput {
 /** The library's verdict on a form: the settings, or its first complaint with the field it names. */
 export type ExportFormCheck = { ok: true; settings: ExportSettings } | { ok: false; field: string; message: string };
 
-/** Validates a form with the library's own rules and messages. */
+/** The export form's fields as the page labels them. */
+export const EXPORT_WORDS: Record<string, FieldWords> = {
+  sampleRate: { label: 'Sample rate', quantity: 'frequency' },
+  resample: { label: 'Resample', quantity: null },
+  bits: { label: 'DAC', quantity: null },
+  fullScale: { label: 'Full scale', quantity: 'frequency' },
+  peakLimit: { label: 'Limit on', quantity: null },
+  granularity: { label: 'Granularity', quantity: 'count' },
+  minLength: { label: 'Min length', quantity: 'count' },
+  maxLength: { label: 'Max length', quantity: 'count' },
+  pad: { label: 'Zero padding', quantity: null },
+  channels: { label: 'Channels', quantity: null },
+  intermediateFrequency: { label: 'IF', quantity: 'frequency' },
+  sideband: { label: 'Sideband', quantity: null },
+  mixerSign: { label: 'Mixer sign', quantity: null },
+  marker: { label: 'Marker channel', quantity: null },
+  upconversion: { label: 'Upconversion', quantity: null },
+};
+
+/** A message of the export library told with the form's labels and engineering units. */
+export function exportWords(message: string, field?: string): string {
+  const named = field ?? /^(\w+):/.exec(message)?.[1];
+  return inFormWords({ name: 'ExportError', message, ...(named ? { field: named } : {}) }, EXPORT_WORDS);
+}
+
+/** Validates a form with the library's own rules, its messages told with the form's labels. */
 export function checkExportForm(form: ExportForm): ExportFormCheck {
   try {
     return { ok: true, settings: parseExportSettings(exportSettingsInput(form)) };
   } catch (error) {
     const e = error as { name?: string; field?: unknown; message?: string };
     if (e?.name !== 'SpecError') throw error;
-    return { ok: false, field: typeof e.field === 'string' ? e.field : '', message: e.message ?? String(error) };
+    const field = typeof e.field === 'string' ? e.field : '';
+    return { ok: false, field, message: exportWords(e.message ?? String(error), field || undefined) };
   }
+}
+
+/** Most samples a channel the page exports: beyond it a file would not fit in the browser's memory. */
+export const MAX_EXPORT_SAMPLES = 2 ** 24;
+
+/** A sample rate that would make the export of `pulse` longer than MAX_EXPORT_SAMPLES, refused in the form's words; else null. */
+export function exportLengthRefusal(form: Pick<ExportForm, 'sampleRate'>, pulse: Pick<Pulse, 'dt' | 'i'> | null): { field: 'sampleRate'; message: string } | null {
+  if (!pulse || !(form.sampleRate > 0)) return null;
+  const samples = pulse.i.length * pulse.dt * form.sampleRate;
+  if (samples <= MAX_EXPORT_SAMPLES) return null;
+  const rate = formatQuantity(Number(form.sampleRate.toPrecision(4)), 'frequency').replace(/Hz$/, 'S/s');
+  const duration = formatQuantity(Number((pulse.i.length * pulse.dt).toPrecision(4)), 'time');
+  return {
+    field: 'sampleRate',
+    message: `Sample rate: ${rate} would give ${samples.toExponential(2)} samples for this ${duration} pulse; the page exports at most ${MAX_EXPORT_SAMPLES} samples a channel (${formatQuantity(Number((MAX_EXPORT_SAMPLES / (pulse.i.length * pulse.dt)).toPrecision(3)), 'frequency').replace(/Hz$/, 'S/s')} at most for this pulse)`,
+  };
 }
 
 /** The units the file will hold: the form's choice where the format offers it, else the format's only one. */

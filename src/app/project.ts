@@ -22,8 +22,9 @@ export interface StoredPulse {
   id: string;
   label: string;
   dt: number;
-  i: number[];
-  q: number[];
+  /** Plain arrays in a file; typed arrays in the browser's store, which copies them in one piece. */
+  i: number[] | Float64Array;
+  q: number[] | Float64Array;
   metadata: Record<string, unknown>;
   evaluation?: Pick<Evaluation, 'meanInfidelity' | 'worstInfidelity'>;
   /** The design run that made it (starts table and convergence curves). */
@@ -34,7 +35,8 @@ export interface StoredPulse {
 export interface ViewSettings {
   view: string;
   selectedPulse: string | null;
-  map: { detuning: { min: number; max: number; points: number }; amplitudeError: { min: number; max: number; points: number }; threshold: number };
+  /** The robustness and comparison region; it follows the spec's ensemble unless `byHand` (set from the map's fields). */
+  map: { detuning: { min: number; max: number; points: number }; amplitudeError: { min: number; max: number; points: number }; threshold: number; byHand?: boolean };
   compare: { composites: string[] };
   /** Which members the Bloch view draws: one (`member`, -1 for no error), all, or a chosen few (`chosen`). */
   bloch: { from: string; member: number; show?: 'one' | 'all' | 'chosen'; chosen?: number[] };
@@ -83,7 +85,11 @@ function finite(value: unknown, where: string, check: (x: number) => boolean = (
   return value;
 }
 
-function samples(value: unknown, where: string): number[] {
+function samples(value: unknown, where: string): number[] | Float64Array {
+  if (value instanceof Float64Array && value.length > 0) {
+    for (let k = 0; k < value.length; k++) if (!Number.isFinite(value[k])) fail(`${where}[${k}]`, value[k], 'expected a finite number');
+    return value;
+  }
   if (!Array.isArray(value) || value.length === 0) fail(where, value, 'expected a non-empty array of numbers (Hz)');
   value.forEach((x, k) => finite(x, `${where}[${k}]`));
   return value as number[];
@@ -210,6 +216,7 @@ function readSettings(value: unknown): ViewSettings {
       detuning: axis(map.detuning, 'settings.map.detuning'),
       amplitudeError: axis(map.amplitudeError, 'settings.map.amplitudeError'),
       threshold: finite(map.threshold, 'settings.map.threshold', (x) => x > 0 && x < 1, 'a threshold between 0 and 1'),
+      ...(map.byHand === true ? { byHand: true } : {}),
     },
     compare: { composites: composites as string[] },
     bloch: {

@@ -2,7 +2,7 @@
 import { VIEWS, type ViewId } from './state/session.svelte.ts';
 
 /** What a shortcut does. */
-export type Action = { kind: 'run' } | { kind: 'stop' } | { kind: 'view'; view: ViewId } | { kind: 'save' } | { kind: 'open' } | { kind: 'docs' };
+export type Action = { kind: 'run' } | { kind: 'stop' } | { kind: 'view'; view: ViewId } | { kind: 'save' } | { kind: 'open' } | { kind: 'undo' } | { kind: 'redo' } | { kind: 'docs' };
 
 /** A shortcut as listed on the page. */
 export interface Shortcut {
@@ -17,6 +17,7 @@ export const SHORTCUTS: Shortcut[] = [
   { keys: `Alt+1 … Alt+${VIEWS.length}`, what: VIEWS.map((v) => v.title.toLowerCase()).join(', ') },
   { keys: 'Ctrl+S', what: 'save project' },
   { keys: 'Ctrl+O', what: 'open project' },
+  { keys: 'Ctrl+Z / Ctrl+Shift+Z', what: 'undo / redo a spec edit' },
   { keys: 'F1', what: 'documentation (at the field in focus)' },
 ];
 
@@ -28,6 +29,8 @@ export function actionFor(event: Pick<KeyboardEvent, 'key' | 'code' | 'ctrlKey' 
   if (event.key === 'F1') return { kind: 'docs' };
   if (ctrl && !event.altKey && event.key.toLowerCase() === 's') return { kind: 'save' };
   if (ctrl && !event.altKey && event.key.toLowerCase() === 'o') return { kind: 'open' };
+  if (ctrl && !event.altKey && event.key.toLowerCase() === 'z') return { kind: event.shiftKey ? 'redo' : 'undo' };
+  if (ctrl && !event.altKey && event.key.toLowerCase() === 'y') return { kind: 'redo' };
   if (event.altKey && !ctrl) {
     // event.code keeps the digit whatever the keyboard layout makes of Alt+digit.
     const digit = /^Digit([1-9])$/.exec(event.code)?.[1] ?? (/^[1-9]$/.test(event.key) ? event.key : null);

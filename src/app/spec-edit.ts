@@ -109,3 +109,35 @@ export function samplePeriod(spec: SpecJson): number {
   if (typeof duration !== 'number' || typeof segments !== 'number' || !(segments > 0)) return NaN;
   return Number((duration / segments).toPrecision(15));
 }
+
+/** The top-level keys a whole spec has: a JSON object with all of them replaces the spec, one without is merged into it. */
+export const WHOLE_SPEC_KEYS = ['target', 'duration', 'segments', 'rabiMax'] as const;
+
+/** Sections whose keys are merged one by one (each key given replaces that key only). */
+const MERGED_SECTIONS = ['optimizer', 'constraints', 'ensemble'];
+
+/** True when a JSON object gives every key of a whole spec. */
+export function isWholeSpec(value: SpecJson): boolean {
+  return WHOLE_SPEC_KEYS.every((key) => key in value);
+}
+
+/**
+ * A partial spec merged into `spec`: each top-level key given replaces the spec's, except in
+ * the optimizer, constraints and ensemble sections, where each key given replaces that key
+ * only (so {"optimizer": {"starts": 3}} keeps the other optimizer settings). Returns the
+ * merged spec and the dotted keys that were set.
+ */
+export function mergeSpec(spec: SpecJson, partial: SpecJson): { spec: SpecJson; keys: string[] } {
+  const out: SpecJson = { ...spec };
+  const keys: string[] = [];
+  for (const [key, value] of Object.entries(partial)) {
+    if (MERGED_SECTIONS.includes(key) && isRecord(value) && isRecord(spec[key])) {
+      out[key] = { ...(spec[key] as SpecJson), ...value };
+      keys.push(...Object.keys(value).map((k) => `${key}.${k}`));
+    } else {
+      out[key] = value;
+      keys.push(key);
+    }
+  }
+  return { spec: out, keys };
+}

@@ -15,11 +15,12 @@ export interface Unit {
 
 /** The units of each quantity, smallest first. */
 export const UNITS: Record<Quantity, Unit[]> = {
+  // Sample rates are typed as instruments print them too: "2 GS/s", "2 GSa/s".
   frequency: [
-    { symbol: 'Hz', aliases: ['hz'], exponent: 0 },
-    { symbol: 'kHz', aliases: ['khz'], exponent: 3 },
-    { symbol: 'MHz', aliases: ['mhz'], exponent: 6 },
-    { symbol: 'GHz', aliases: ['ghz'], exponent: 9 },
+    { symbol: 'Hz', aliases: ['hz', 's/s', 'sa/s'], exponent: 0 },
+    { symbol: 'kHz', aliases: ['khz', 'ks/s', 'ksa/s'], exponent: 3 },
+    { symbol: 'MHz', aliases: ['mhz', 'ms/s', 'msa/s'], exponent: 6 },
+    { symbol: 'GHz', aliases: ['ghz', 'gs/s', 'gsa/s'], exponent: 9 },
   ],
   time: [
     { symbol: 'ps', aliases: ['ps'], exponent: -12 },
@@ -70,7 +71,7 @@ export function parseQuantity(text: string, quantity: Quantity, defaultUnit = DE
     return { ok: false, message: `${shown} is not a number; use a point as the decimal separator` };
   }
   const match = NUMBER.exec(clean);
-  if (!match) return { ok: false, message: `${shown} is not a number${unitHint(quantity)}` };
+  if (!match) return { ok: false, message: `${shown} is not a number${unitHint(quantity, defaultUnit)}` };
   const [, mantissa, exponentText, unitText] = match;
   let exponent = exponentText === undefined ? 0 : Number(exponentText);
   if (unitText !== '') {
@@ -92,10 +93,10 @@ export function parseQuantity(text: string, quantity: Quantity, defaultUnit = DE
   return { ok: true, value: Object.is(value, -0) ? 0 : value };
 }
 
-function unitHint(quantity: Quantity): string {
+function unitHint(quantity: Quantity, defaultUnit: string): string {
   if (quantity === 'count') return '; write a whole number';
   if (!UNITS[quantity].length) return '; write a number such as 0.5 or 1e-4';
-  return `; write a number and one of ${unitList(quantity)} (a bare number is in ${DEFAULT_UNIT[quantity]})`;
+  return `; write a number and one of ${unitList(quantity)} (a bare number is in ${defaultUnit || DEFAULT_UNIT[quantity]})`;
 }
 
 /**

@@ -58,6 +58,8 @@ const STOP_WORDS: Record<StopReason, string> = {
   'time-limit': 'time limit',
   stopped: 'stopped by the user',
   'line-search-failed': 'line search found no better point',
+  stalled: 'progress stalled',
+  pruned: 'pruned after the first iterations',
 };
 
 /** Why a start ended, in words, with the machine name beside it: "iteration limit (max-iterations)". */

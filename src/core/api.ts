@@ -10,7 +10,7 @@ import { lineJson } from './line-spec.ts';
 import { StartRun } from './run.ts';
 import { checkProblemAngles, checkPulseAngles } from './limits.ts';
 import { checkProblem, checkTarget } from './problem-check.ts';
-import { bestStart } from './best-start.ts';
+import { bestStart, prunes, startsToContinue } from './best-start.ts';
 import { axisValues, checkRegion } from './grid.ts';
 import { parseSpec } from './spec.ts';
 import type {
@@ -29,6 +29,13 @@ export interface DesignOptions {
   startIndices?: number[];
   /** Attach the current samples to a progress report at most this often (ms); default never. */
   progressPulseEveryMs?: number;
+  /**
+   * One stage of a pruned design split over threads or workers (best-start.ts `prunes`):
+   * 'probe' runs each start to `pruneAfter` iterations and returns the open ones as 'pruned'
+   * (and `keepStarts`); 'finish' runs the given starts to the end without pruning. Default:
+   * the whole design, pruned here when it runs every start.
+   */
+  stage?: 'probe' | 'finish';
   /**
    * Start 0 begins from these samples (Hz, the spec's number of segments) instead of its
    * random pulse, e.g. a pulse designed before; a sample above 98 % of the amplitude bound is
@@ -238,14 +245,44 @@ async function designNow(problem: Problem, options: DesignOptions): Promise<Desi
     if (!Number.isInteger(s) || s < 0) throw new ArgumentError(`startIndices: ${describeValue(s)} is not allowed; use whole numbers >= 0`);
   }
   if (options.initialPulse) checkInitialPulse(options.initialPulse, problem.segments);
+  const { pruneAfter, keepStarts, maxIterations, timeLimit } = problem.optimizer;
+  const deadline = t0 + timeLimit * 1000;
+  // 'probe' runs each start to the pruning point (of the whole design's starts); a design
+  // run in one loop prunes its own starts here.
+  const o = problem.optimizer;
+  const pruning = options.stage === 'probe' ? prunes(o, o.starts) : options.stage === undefined && prunes(o, indices.length);
+  const until = pruning ? Math.min(pruneAfter, maxIterations) : maxIterations;
   const starts: StartResult[] = [];
-  for (const s of indices) {
-    const elapsed = (performance.now() - t0) / 1000;
-    const remaining = problem.optimizer.timeLimit - elapsed;
-    if (starts.length > 0 && (options.signal?.aborted || remaining <= 0)) break;
-    starts.push(await runStart(problem, s, options, t0, remaining));
+  const open: { run: StartRun; elapsedS: number }[] = [];
+  try {
+    for (const s of indices) {
+      if (starts.length + open.length > 0 && (options.signal?.aborted || performance.now() >= deadline)) break;
+      const tStart = performance.now();
+      const run = new StartRun(problem, s, undefined, s === 0 ? options.initialPulse : undefined);
+      const reason = await advance(problem, run, options, t0, deadline, until);
+      const elapsedS = (performance.now() - tStart) / 1000;
+      if (reason) {
+        starts.push(startResult(problem, run, reason, elapsedS));
+        run.dispose();
+      } else open.push({ run, elapsedS });
+    }
+    // The probe stage hands its open starts back as 'pruned'; a whole design continues the best.
+    const probes = [...starts, ...open.map(({ run, elapsedS }) => startResult(problem, run, 'pruned', elapsedS))];
+    const going = options.stage === 'probe' ? [] : startsToContinue(probes, keepStarts);
+    for (const { run, elapsedS } of open) {
+      if (going.includes(run.start)) {
+        const tStart = performance.now();
+        const reason = (await advance(problem, run, options, t0, deadline, maxIterations)) ?? 'max-iterations';
+        starts.push(startResult(problem, run, reason, elapsedS + (performance.now() - tStart) / 1000));
+      } else starts.push(probes.find((r) => r.start === run.start)!);
+    }
+  } finally {
+    for (const { run } of open) run.dispose();
   }
-  return bestOfStarts(problem, starts, t0);
+  starts.sort((a, b) => a.start - b.start);
+  const result = bestOfStarts(problem, starts, t0);
+  if (options.stage === 'probe' && pruning) result.keepStarts = keepStarts;
+  return result;
 }
 
 function checkInitialPulse(pulse: { i: ArrayLike<number>; q: ArrayLike<number> }, segments: number): void {
@@ -289,53 +326,51 @@ export function bestOfStarts(problem: Problem, starts: StartResult[], t0: number
   return result;
 }
 
-/** One optimiser start; ends on a stop criterion, the signal, or the time left. */
-async function runStart(problem: Problem, start: number, options: DesignOptions, t0: number, timeLeftS: number): Promise<StartResult> {
-  const { dt, rabiMax, constraints, optimizer } = problem;
-  const tStart = performance.now();
-  const deadline = tStart + Math.max(0, timeLeftS) * 1000;
-  const run = new StartRun(problem, start, undefined, start === 0 ? options.initialPulse : undefined);
-  try {
-    let stopReason: StopReason = 'max-iterations';
-    let lastYield = performance.now();
-    let lastPulse = -Infinity;
-    const report = (): void => {
-      if (!options.onProgress) return;
-      const now = performance.now();
-      const progress: Progress = {
-        start, iteration: run.iterations, meanInfidelity: run.infidelity, objective: run.objective,
-        gradientNorm: run.gradientNorm, elapsedS: (now - t0) / 1000,
-      };
-      if (options.progressPulseEveryMs !== undefined && now - lastPulse >= options.progressPulseEveryMs) {
-        lastPulse = now;
-        progress.pulse = run.samples();
-      }
-      options.onProgress(progress);
+/** A start's result at its accepted point. */
+function startResult(problem: Problem, run: StartRun, stopReason: StopReason, elapsedS: number): StartResult {
+  const samples = run.samples();
+  const pulse: Pulse = { dt: problem.dt, i: samples.i, q: samples.q, metadata: { origin: 'design', name: `design start ${run.start}` } };
+  holdBound(pulse, problem.rabiMax, problem.constraints.bound);
+  if (problem.line?.boundOn === 'both') holdDriveBound(pulse, problem.line, problem.rabiMax);
+  return {
+    start: run.start, pulse, meanInfidelity: run.infidelity, objective: run.objective,
+    iterations: run.iterations, evaluations: run.evaluations, stopReason, elapsedS,
+  };
+}
+
+/** Steps a start until a stop criterion, the signal or the deadline (its reason), or until `until` iterations (null: it may go on). */
+async function advance(problem: Problem, run: StartRun, options: DesignOptions, t0: number, deadline: number, until: number): Promise<StopReason | null> {
+  const { optimizer } = problem;
+  let lastYield = performance.now();
+  let lastPulse = -Infinity;
+  const report = (): void => {
+    if (!options.onProgress) return;
+    const now = performance.now();
+    const progress: Progress = {
+      start: run.start, iteration: run.iterations, meanInfidelity: run.infidelity, objective: run.objective,
+      gradientNorm: run.gradientNorm, elapsedS: (now - t0) / 1000,
     };
-    report();
-    for (;;) {
-      if (run.infidelity <= optimizer.targetInfidelity) { stopReason = 'target-reached'; break; }
-      if (options.signal?.aborted) { stopReason = 'stopped'; break; }
-      if (run.iterations >= optimizer.maxIterations) { stopReason = 'max-iterations'; break; }
-      if (performance.now() >= deadline) { stopReason = 'time-limit'; break; }
-      const stop = run.step();
-      if (stop) { stopReason = stop; break; }
-      report();
-      if (performance.now() - lastYield > YIELD_EVERY_MS) {
-        await yieldToEventLoop();
-        lastYield = performance.now();
-      }
+    if (options.progressPulseEveryMs !== undefined && now - lastPulse >= options.progressPulseEveryMs) {
+      lastPulse = now;
+      progress.pulse = run.samples();
     }
-    const samples = run.samples();
-    const pulse: Pulse = { dt, i: samples.i, q: samples.q, metadata: { origin: 'design', name: `design start ${start}` } };
-    holdBound(pulse, rabiMax, constraints.bound);
-    if (problem.line?.boundOn === 'both') holdDriveBound(pulse, problem.line, rabiMax);
-    return {
-      start, pulse, meanInfidelity: run.infidelity, objective: run.objective,
-      iterations: run.iterations, evaluations: run.evaluations, stopReason, elapsedS: (performance.now() - tStart) / 1000,
-    };
-  } finally {
-    run.dispose();
+    options.onProgress(progress);
+  };
+  report();
+  for (;;) {
+    if (run.infidelity <= optimizer.targetInfidelity) return 'target-reached';
+    if (options.signal?.aborted) return 'stopped';
+    if (run.iterations >= optimizer.maxIterations) return 'max-iterations';
+    if (run.stalled) return 'stalled';
+    if (run.iterations >= until) return null;
+    if (performance.now() >= deadline) return 'time-limit';
+    const stop = run.step();
+    if (stop) return stop;
+    report();
+    if (performance.now() - lastYield > YIELD_EVERY_MS) {
+      await yieldToEventLoop();
+      lastYield = performance.now();
+    }
   }
 }
 

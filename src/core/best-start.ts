@@ -23,3 +23,29 @@ export function mergeDesigns(shares: readonly DesignResult[], elapsedS: number):
   if (share.truncationCheck) merged.truncationCheck = share.truncationCheck;
   return merged;
 }
+
+/** True when a design of `starts` starts prunes: every start runs pruneAfter iterations, then only the keepStarts best go on. */
+export function prunes(optimizer: { pruneAfter: number; keepStarts: number }, starts: number): boolean {
+  return optimizer.pruneAfter > 0 && optimizer.keepStarts < starts;
+}
+
+/**
+ * The starts that go on after the pruning point: of every start's objective there (or at
+ * its end, if it ended before), the keepStarts lowest, ties to the lower index; only
+ * those still running ('pruned' at the point) are returned, in index order. Plain data, so
+ * one loop, threads and the page's workers continue the same starts.
+ */
+export function startsToContinue(probes: readonly Pick<StartResult, 'objective' | 'start' | 'stopReason'>[], keepStarts: number): number[] {
+  const ranked = [...probes].sort((a, b) => a.objective - b.objective || a.start - b.start);
+  return ranked.slice(0, keepStarts).filter((r) => r.stopReason === 'pruned').map((r) => r.start).sort((a, b) => a - b);
+}
+
+/** One design from a pruned run's probe shares and the shares that finished the continued starts (startsToContinue). */
+export function mergePruned(probeShares: readonly DesignResult[], finishShares: readonly DesignResult[], elapsedS: number): DesignResult {
+  const going = new Set(finishShares.flatMap((s) => s.starts.map((r) => r.start)));
+  // A probe share whose best went on holds it at its probe point; the finished copy stands for it.
+  const candidates = [...probeShares.filter((s) => !going.has(s.best.start)), ...finishShares];
+  const merged = mergeDesigns(candidates, elapsedS);
+  const starts = [...probeShares.flatMap((s) => s.starts).filter((r) => !going.has(r.start)), ...finishShares.flatMap((s) => s.starts)];
+  return { ...merged, starts: starts.sort((a, b) => a.start - b.start) };
+}

@@ -24,6 +24,9 @@ try {
       startIndices: [start],
       signal: controller.signal,
       progressPulseEveryMs: workerData.progressPulseEveryMs,
+      // A stage of a pruned design (api.ts DesignOptions.stage): each start alone to the
+      // pruning point, or on to its end.
+      stage: workerData.stage,
       initialPulse: workerData.initialPulse,
       onProgress: (progress) => post({ kind: 'progress', progress }),
     });

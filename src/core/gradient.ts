@@ -22,6 +22,8 @@ export interface FigureGradient {
 /** A job placed in wasm memory once; `run` recomputes it until `dispose` frees its buffers. */
 export interface GradientJob {
   run(): number;
+  /** The figure alone (the maps' sweep), for the benchmark. */
+  figure(): number;
   result(): FigureGradient;
   /** Series settings of the last run: terms and halvings (assembly/qubit.ts). */
   series(): { terms: number; halvings: number };
@@ -48,6 +50,7 @@ export function prepareGradientJob(
   const run = (): number => core.exports.problemGradient(p);
   return {
     run,
+    figure: () => core.exports.problemFigure(p),
     result: () => {
       const mean = run();
       const values = readBuffer(core, p, BUFFER.perMember, (enc.ladder ? 3 : 1) * padded);

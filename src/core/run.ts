@@ -36,6 +36,8 @@ export class StartRun {
   private iterationCount = 0;
   private recentres = 0;
   private lastRecentreObjective = Infinity;
+  /** Objectives after the last stallIterations + 1 iterations, a ring indexed by iteration. */
+  private readonly history: Float64Array;
 
   /** `samples` (Hz, the problem's segments), when given, are where the start begins instead of its seeded pulse. */
   constructor(problem: Problem, start: number, core: Core = getCore(), samples?: { i: ArrayLike<number>; q: ArrayLike<number> }) {
@@ -44,6 +46,7 @@ export class StartRun {
     this.start = start;
     const enc = encodeSystem(problem.target, problem.members, problem.system);
     const { segments: n, dt, rabiMax, constraints, optimizer } = problem;
+    this.history = new Float64Array(optimizer.stallIterations + 1);
     this.ptr = createBlock(core, {
       ...blockSystem(enc), target: problem.target, segments: n, dt, bound: constraints.bound, zeroEdges: constraints.zeroEdges,
       rabiMax, smoothness: constraints.smoothness, optimizer, held: true,
@@ -55,6 +58,7 @@ export class StartRun {
         const x0 = core.put(startVariables(problem, start, nVar, samples));
         core.exports.optInit(this.ptr, x0);
       });
+      this.history[0] = this.objective;
     } catch (error) {
       this.dispose();
       throw error;
@@ -66,13 +70,30 @@ export class StartRun {
     const status = this.core.exports.optStep(this.ptr);
     if (status === STEP_GRADIENT_TOLERANCE || status === STEP_LINE_SEARCH_FAILED) {
       if (this.problem.constraints.bound === 'disc' && this.recentre()) {
-        this.iterationCount++;
+        this.advanced();
         return null;
       }
       return status === STEP_GRADIENT_TOLERANCE ? 'gradient-tolerance' : 'line-search-failed';
     }
-    this.iterationCount++;
+    this.advanced();
     return null;
+  }
+
+  private advanced(): void {
+    this.iterationCount++;
+    this.history[this.iterationCount % this.history.length] = this.objective;
+  }
+
+  /**
+   * True when the last stallIterations iterations lowered the objective by no more than
+   * stallTolerance of its value before them (never when stallIterations is 0). A rule of
+   * the start's own history, so where and beside what a start runs never changes it.
+   */
+  get stalled(): boolean {
+    const { stallIterations: k, stallTolerance: tau } = this.problem.optimizer;
+    if (k === 0 || this.iterationCount < k) return false;
+    const before = this.history[(this.iterationCount - k) % this.history.length];
+    return before - this.objective <= tau * before;
   }
 
   /**

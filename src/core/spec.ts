@@ -28,6 +28,16 @@ export const DEFAULT_OPTIMIZER: Readonly<OptimizerSettings> = {
   gradientTolerance: 1e-12,
   timeLimit: Infinity,
   memory: 12,
+  // Measured on recorded runs (8 seeds of each demo and of a fast box-bounded X(180)): less
+  // than 0.01 % over 100 iterations cost the best start at most 0.03 % of its figure and
+  // saves 9-15 % of the evaluations where starts settle; designs still falling at their
+  // budget (the ion demo) never trigger it.
+  stallIterations: 100,
+  stallTolerance: 1e-4,
+  // Off by default: on the ion demo the order of the starts after 400 of 1000 iterations
+  // was not their final order (the best figure up to 2.5 times higher when pruned).
+  pruneAfter: 0,
+  keepStarts: 2,
 };
 
 const TOP_KEYS = ['name', 'description', 'target', 'duration', 'segments', 'rabiMax', 'ensemble', 'constraints', 'optimizer', 'line', 'system'];
@@ -120,6 +130,10 @@ export const OPTIMIZER_RULES: Readonly<Record<keyof OptimizerSettings, NumberRul
   gradientTolerance: { min: 0 },
   timeLimit: { min: 0, minExclusive: true, unit: 's' },
   memory: { integer: true, min: 1, max: 100 },
+  stallIterations: { integer: true, min: 0, max: 100000 },
+  stallTolerance: { min: 0, max: 1 },
+  pruneAfter: { integer: true, min: 0, max: 100000 },
+  keepStarts: { integer: true, min: 1, max: 64 },
 };
 
 function parseOptimizer(value: unknown): OptimizerSettings {
@@ -138,5 +152,9 @@ function parseOptimizer(value: unknown): OptimizerSettings {
     // null is accepted as "no limit" because JSON cannot spell Infinity.
     timeLimit: obj.timeLimit === null ? Infinity : readNumber(obj, 'timeLimit', path, r.timeLimit, d.timeLimit),
     memory: readNumber(obj, 'memory', path, r.memory, d.memory),
+    stallIterations: readNumber(obj, 'stallIterations', path, r.stallIterations, d.stallIterations),
+    stallTolerance: readNumber(obj, 'stallTolerance', path, r.stallTolerance, d.stallTolerance),
+    pruneAfter: readNumber(obj, 'pruneAfter', path, r.pruneAfter, d.pruneAfter),
+    keepStarts: readNumber(obj, 'keepStarts', path, r.keepStarts, d.keepStarts),
   };
 }

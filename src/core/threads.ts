@@ -10,6 +10,7 @@ import { availableParallelism } from 'node:os';
 import { pathToFileURL } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import { bestOfStarts, toProblem } from './api.ts';
+import { prunes, startsToContinue } from './best-start.ts';
 import type { DesignOptions } from './api.ts';
 import { checkProblemAngles } from './limits.ts';
 import type { DesignResult, Problem, Progress, Pulse, StartResult } from './types.ts';
@@ -46,10 +47,42 @@ export async function designInThreads(spec: unknown, options: ThreadedDesignOpti
   const indices = options.startIndices ?? Array.from({ length: problem.optimizer.starts }, (_, k) => k);
   const threads = Math.max(1, Math.min(options.threads ?? availableParallelism(), indices.length));
   const t0 = performance.now();
+  if (!prunes(problem.optimizer, indices.length)) {
+    const { starts } = await runStage(problem, indices, threads, options, t0);
+    return bestOfStarts(problem, starts, t0);
+  }
+  // Pruned: every start to the pruning point, then the best again from their beginning
+  // (a start is deterministic, so it retraces its probe and goes on as in one loop).
+  const probe = await runStage(problem, indices, threads, options, t0, 'probe');
+  const going = probe.stopped ? [] : startsToContinue(probe.starts, problem.optimizer.keepStarts);
+  if (going.length === 0) return bestOfStarts(problem, probe.starts, t0);
+  const reached = new Map(probe.starts.map((r) => [r.start, r]));
+  const finish = await runStage(problem, going, threads, options, t0, 'finish', reached);
+  const byStart = new Map(finish.starts.map((r) => [r.start, r]));
+  // A start stopped while it retraced its probe keeps its probe's (better) result.
+  const starts = probe.starts.map((r) => {
+    const f = byStart.get(r.start);
+    return f && !(f.stopReason === 'stopped' && f.objective > r.objective) ? f : r;
+  });
+  return bestOfStarts(problem, starts, t0);
+}
+
+/**
+ * One stage of a threaded design (all of it when `stage` is undefined): the starts of
+ * `indices` dealt round-robin over the threads; a stop ends the threads at once and each
+ * running start contributes its last reported pulse. `reached` (the finish stage) holds
+ * the probe results of the starts that go on: their retraced reports are not passed on.
+ */
+async function runStage(
+  problem: Problem, indices: number[], threadCount: number, options: ThreadedDesignOptions, t0: number,
+  stage?: 'probe' | 'finish', reached?: Map<number, StartResult>,
+): Promise<{ starts: StartResult[]; stopped: boolean }> {
+  const threads = Math.min(threadCount, indices.length);
   const shares = Array.from({ length: threads }, (_, t) => indices.filter((_, k) => k % threads === t));
   const latest = new Map<number, Progress>();
   const finished: StartResult[] = [];
   const onProgress = (p: Progress): void => {
+    if (reached && p.iteration <= (reached.get(p.start)?.iterations ?? -1)) return;
     const previous = latest.get(p.start);
     // Keep the last report that carried samples, with the figures of that same iterate.
     if (p.pulse || !previous?.pulse) latest.set(p.start, p);
@@ -59,7 +92,7 @@ export async function designInThreads(spec: unknown, options: ThreadedDesignOpti
     }
   };
   const workers: Worker[] = [];
-  const runs = shares.map((share) => runThread(problem, share, options, workers, onProgress, finished));
+  const runs = shares.map((share) => runThread(problem, share, { ...options, stage }, workers, onProgress, finished));
   // The threads end inside the abort itself, before whatever the caller does next.
   const stopped = new Promise<'stopped'>((resolve) => {
     const stop = (): void => {
@@ -75,10 +108,10 @@ export async function designInThreads(spec: unknown, options: ThreadedDesignOpti
     for (const [start, p] of latest) {
       if (!done.has(start) && p.pulse) finished.push(startFromProgress(problem, p, t0));
     }
-    if (finished.length === 0) throw new StoppedBeforeFirstIterationError('the design was stopped before its first iteration: there is no pulse yet');
+    if (finished.length === 0 && !reached) throw new StoppedBeforeFirstIterationError('the design was stopped before its first iteration: there is no pulse yet');
   }
   finished.sort((a, b) => a.start - b.start);
-  return bestOfStarts(problem, finished, t0);
+  return { starts: finished, stopped: outcome === 'stopped' };
 }
 
 /** A start cut short, from its last progress report with samples. */
@@ -114,7 +147,7 @@ function runThread(
     const entry = threadEntry();
     const keepEvery = Math.min(options.progressPulseEveryMs ?? KEEP_PULSE_EVERY_MS, KEEP_PULSE_EVERY_MS);
     const initialPulse = options.initialPulse ? { i: Array.from(options.initialPulse.i), q: Array.from(options.initialPulse.q) } : undefined;
-    const worker = new Worker(entry.url, { eval: entry.eval, workerData: { problem, startIndices, progressPulseEveryMs: keepEvery, initialPulse } });
+    const worker = new Worker(entry.url, { eval: entry.eval, workerData: { problem, startIndices, progressPulseEveryMs: keepEvery, initialPulse, stage: options.stage } });
     workers.push(worker);
     worker.on('message', (message: ThreadMessage) => {
       if (message.kind === 'progress') onProgress(message.progress);

@@ -50,6 +50,14 @@ export interface OptimizerSettings {
   timeLimit: number;
   /** L-BFGS memory (number of correction pairs). */
   memory: number;
+  /** Iterations over which a start must improve its objective by stallTolerance (0 = never stop on a stall). */
+  stallIterations: number;
+  /** Relative improvement over stallIterations below which a start has stalled. */
+  stallTolerance: number;
+  /** Iterations every start runs before only the keepStarts best go on (0 = no pruning). */
+  pruneAfter: number;
+  /** Starts that go on after pruneAfter iterations: the lowest objectives there. */
+  keepStarts: number;
 }
 
 /** The response of the line between the instrument and the qubit (docs/physics.md section 5). */
@@ -160,7 +168,9 @@ export type StopReason =
   | 'max-iterations'
   | 'time-limit'
   | 'stopped'
-  | 'line-search-failed';
+  | 'line-search-failed'
+  | 'stalled'
+  | 'pruned';
 
 /** One progress report of a running design. */
 export interface Progress {
@@ -195,6 +205,8 @@ export interface DesignResult {
   best: StartResult;
   starts: StartResult[];
   elapsedS: number;
+  /** Set by a design's probe stage: how many starts go on (best-start.ts startsToContinue). */
+  keepStarts?: number;
   /** A ladder design: the best pulse on levels + 2 (a warning when `differs`). */
   truncationCheck?: TruncationCheck;
 }

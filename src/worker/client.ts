@@ -2,10 +2,10 @@
 // Designs spread their starts over the pool and keep the best pulse; maps come back coarse
 // first, then at full resolution in bands computed in parallel. The only `wrap`.
 import { proxy, releaseProxy, wrap, type Endpoint, type Remote } from 'comlink';
-import { mergeDesigns } from '../core/best-start.ts';
+import { mergeDesigns, mergePruned, startsToContinue } from '../core/best-start.ts';
 import { axisValue } from '../core/grid.ts';
 import type { QubitDrive } from '../core/line.ts';
-import type { DesignResult, Evaluation, GridAxis, Line, Member, Pulse, Target, Vec3 } from '../core/types.ts';
+import type { DesignResult, Evaluation, GridAxis, Line, Member, Problem, Pulse, StartResult, Target, Vec3 } from '../core/types.ts';
 import type { EncodedWaveform } from '../io/export/index.ts';
 import type {
   CompareRequest,
@@ -17,8 +17,11 @@ import type {
   ExportFileOptions,
   ExportJudge,
   ExportPreview,
+  FileProgressSink,
+  LivePulse,
   MapResult,
   ProgressBatch,
+  ProgressPoint,
   SpecCheck,
   Spectrum,
   SpectrumRequest,
@@ -66,21 +69,102 @@ export function shareStarts(starts: number, workers: number): number[][] {
 
 export { axisValue };
 
+/** How long Stop waits for the kept pulse's figures before ending the design without its worst member. */
+export const STOP_EVALUATION_WAIT_MS = 40;
+
+/** The newest samples of a start with the progress report they were taken at. */
+export interface KeptPulse {
+  live: LivePulse;
+  point: ProgressPoint;
+}
+
+/**
+ * The samples of every start as last reported, by start: what a run ended at once keeps.
+ * A live pulse is kept only with its own report (same start and iteration), so that its
+ * figures belong to it.
+ */
+export class ReportedPulses {
+  private readonly kept = new Map<number, KeptPulse>();
+  private readonly latest = new Map<number, ProgressPoint>();
+
+  /** Takes a batch of progress. */
+  add(batch: ProgressBatch): void {
+    for (const point of batch.points) this.latest.set(point.start, point);
+    for (const live of batch.live) {
+      const point = batch.points.find((p) => p.start === live.start && p.iteration === live.iteration);
+      if (point) this.kept.set(live.start, { live, point });
+    }
+  }
+
+  /** The kept pulse of lowest objective, or null before any. */
+  best(): KeptPulse | null {
+    let best: KeptPulse | null = null;
+    for (const k of this.kept.values()) if (!best || k.point.objective < best.point.objective) best = k;
+    return best;
+  }
+
+  /** Every start with a kept pulse, with its newest report. */
+  starts(): Array<KeptPulse & { newest: ProgressPoint }> {
+    return [...this.kept.values()].sort((a, b) => a.live.start - b.live.start).map((k) => ({ ...k, newest: this.latest.get(k.live.start) ?? k.point }));
+  }
+}
+
+/** Samples held to the amplitude bound, as the library returns a design's (rounding can leave them a hair over it). */
+export function heldToBound(i: Float64Array, q: Float64Array, rabiMax: number, bound: Problem['constraints']['bound']): void {
+  for (let k = 0; k < i.length; k++) {
+    if (bound === 'box') {
+      i[k] = Math.max(-rabiMax, Math.min(rabiMax, i[k]));
+      q[k] = Math.max(-rabiMax, Math.min(rabiMax, q[k]));
+    } else {
+      const r = Math.hypot(i[k], q[k]);
+      if (r > rabiMax) {
+        const f = (rabiMax / r) * (1 - 2 ** -52);
+        i[k] *= f;
+        q[k] *= f;
+      }
+    }
+  }
+}
+
+/** A running design as the client follows it. */
+interface Running {
+  spec: unknown;
+  problem: Problem;
+  t0: number;
+  reported: ReportedPulses;
+  /** Ends the design at once with an outcome (after the designers were replaced). */
+  abandon: (outcome: DesignOutcome) => void;
+}
+
 /** The client over a pool: one worker for analysis, the others for designs. */
 export class CoreClient {
   private readonly analysis: Remote<CoreService>;
   private readonly designers: Remote<CoreService>[];
+  private readonly designerEndpoints: Endpoint[];
   private readyPromise: Promise<CoreInfo> | null = null;
   private designing = false;
   private stopRequested = false;
+  private current: Running | null = null;
+  /**
+   * Most workers a map's bands run on at once. The browser client leaves one core to the
+   * page: with every core busy with a map, the page's own tasks were stretched past 50 ms.
+   */
+  mapWorkers = Infinity;
 
-  /** Wraps one endpoint for analysis jobs and one or more for design starts. */
+  /**
+   * Wraps one endpoint for analysis jobs and one or more for design starts. With `replace`
+   * (a fresh endpoint for a designer's, whose worker it ends), Stop ends a design at once:
+   * the designers are replaced and the best pulse reported so far is kept; without it, Stop
+   * waits for each designer's current iteration.
+   */
   constructor(
     analysis: Endpoint,
     designers: Endpoint[],
     private readonly onDispose: () => void = () => undefined,
+    private readonly replace: ((designer: Endpoint) => Endpoint) | null = null,
   ) {
     this.analysis = wrap<CoreService>(analysis);
+    this.designerEndpoints = [...designers];
     this.designers = designers.map((endpoint) => wrap<CoreService>(endpoint));
     if (this.designers.length === 0) this.designers.push(this.analysis);
   }
@@ -104,20 +188,50 @@ export class CoreClient {
   /** Runs a design over the pool; `onProgress` gets batches from every worker. */
   async design(spec: unknown, starts: number, onProgress?: (batch: ProgressBatch) => void, livePulseEveryMs = 200): Promise<DesignOutcome> {
     if (this.designing) throw new Error('a design is already running; stop it first');
-    await this.ready();
     this.designing = true;
     this.stopRequested = false;
-    const t0 = performance.now();
-    const groups = shareStarts(starts, this.designers.length);
-    const sink = onProgress ? proxy(onProgress) : undefined;
     try {
-      const shares = await Promise.all(groups.map((group, w) => this.designers[w].design(spec, group, sink, livePulseEveryMs)));
-      return { ...mergeDesigns(shares, (performance.now() - t0) / 1000), stopped: this.stopRequested };
+      await this.ready();
+      const check = await this.analysis.checkSpec(spec);
+      const t0 = performance.now();
+      const groups = shareStarts(starts, this.designers.length);
+      const reported = new ReportedPulses();
+      let abandon: (outcome: DesignOutcome) => void = () => undefined;
+      const abandoned = new Promise<DesignOutcome>((resolve) => (abandon = resolve));
+      if (check.ok) this.current = { spec, problem: check.problem, t0, reported, abandon };
+      const sink = proxy((batch: ProgressBatch) => {
+        reported.add(batch);
+        onProgress?.(batch);
+      });
+      const designers = [...this.designers];
+      const work = (async (): Promise<DesignOutcome> => {
+        // Every start to the pruning point (the whole run when the spec does not prune), then the
+        // best again from their start on, as one loop and the command line's threads do.
+        const probes = await Promise.all(groups.map((group, w) => designers[w].design(spec, group, sink, livePulseEveryMs, 'probe')));
+        const keep = probes[0].keepStarts;
+        const going = keep === undefined || this.stopRequested ? [] : startsToContinue(probes.flatMap((r) => r.starts), keep);
+        if (going.length === 0) return { ...mergeDesigns(probes, (performance.now() - t0) / 1000), stopped: this.stopRequested };
+        const again = shareStarts(going.length, designers.length).map((g) => g.map((k) => going[k]));
+        // A continued start retraces its probe first: the page has those reports already.
+        const reached = new Map(probes.flatMap((r) => r.starts).map((r) => [r.start, r.iterations]));
+        const fresh = (p: { start: number; iteration: number }): boolean => p.iteration > (reached.get(p.start) ?? -1);
+        const finishSink = proxy((batch: ProgressBatch) => {
+          const kept = { points: batch.points.filter(fresh), live: batch.live.filter(fresh) };
+          reported.add(kept);
+          onProgress?.(kept);
+        });
+        const finished = await Promise.all(again.map((group, w) => designers[w].design(spec, group, finishSink, livePulseEveryMs, 'finish')));
+        return { ...mergePruned(probes, finished, (performance.now() - t0) / 1000), stopped: this.stopRequested };
+      })();
+      // Stop pressed while the run was being set up: the designers end their first iteration.
+      if (this.stopRequested) void Promise.all(designers.map((d) => d.stop()));
+      return await Promise.race([work, abandoned]);
     } catch (error) {
       await this.stop();
       throw error;
     } finally {
       this.designing = false;
+      this.current = null;
     }
   }
 
@@ -126,11 +240,82 @@ export class CoreClient {
     return this.designing;
   }
 
-  /** Ends the running design within one iteration of each worker; the best pulse so far is returned by design(). */
+  /**
+   * Ends the running design. With replaceable designers and a pulse reported, at once: the
+   * designers' workers are ended and replaced, and design() resolves with the best pulse
+   * reported so far (evaluated on the analysis worker); otherwise within one iteration of
+   * each designer, with the best pulse so far.
+   */
   async stop(): Promise<void> {
     if (!this.designing) return;
     this.stopRequested = true;
-    await Promise.all(this.designers.map((d) => d.stop()));
+    const running = this.current;
+    const best = running?.reported.best();
+    if (!this.replace || !running || !best) {
+      await Promise.all(this.designers.map((d) => d.stop()));
+      return;
+    }
+    this.current = null;
+    let outcome: DesignOutcome;
+    try {
+      outcome = await this.keptOutcome(running, best);
+    } catch {
+      // Nothing kept could be made an outcome: the designers end their iteration instead.
+      await Promise.all(this.designers.map((d) => d.stop()));
+      return;
+    }
+    this.replaceDesigners();
+    running.abandon(outcome);
+  }
+
+  private replaceDesigners(): void {
+    for (let w = 0; w < this.designers.length; w++) {
+      if (this.designers[w] === this.analysis) continue;
+      // Not released: its calls in flight never settle, and releasing would reject them.
+      const endpoint = this.replace!(this.designerEndpoints[w]);
+      this.designerEndpoints[w] = endpoint;
+      this.designers[w] = wrap<CoreService>(endpoint);
+      // The new worker loads its core now, not when the next job arrives.
+      void this.designers[w].ready().catch(() => undefined);
+    }
+  }
+
+  /** The outcome of a design ended at once: the best reported pulse, every start's newest figures. */
+  private async keptOutcome(running: Running, best: KeptPulse): Promise<DesignOutcome> {
+    const { problem } = running;
+    const pulseOf = (kept: KeptPulse): Pulse => {
+      const i = kept.live.i.slice();
+      const q = kept.live.q.slice();
+      heldToBound(i, q, problem.rabiMax, problem.constraints.bound);
+      return { dt: problem.dt, i, q, metadata: { origin: 'design', name: `design start ${kept.live.start}` } };
+    };
+    const starts: StartResult[] = running.reported.starts().map((k) => ({
+      start: k.live.start,
+      pulse: pulseOf(k),
+      meanInfidelity: k.point.meanInfidelity,
+      objective: k.point.objective,
+      iterations: k.newest.iteration,
+      evaluations: 0,
+      stopReason: 'stopped',
+      elapsedS: k.newest.elapsedS,
+    }));
+    const chosen = starts.find((s) => s.start === best.live.start)!;
+    const pulse = chosen.pulse;
+    // The analysis worker may be busy with a long map: Stop does not wait for it. Then the
+    // worst member is left unknown (NaN) for the page to ask for later.
+    const late = new Promise<null>((resolve) => setTimeout(() => resolve(null), STOP_EVALUATION_WAIT_MS));
+    const evaluated = await Promise.race([this.analysis.evaluate(running.spec, pulse).catch(() => null), late]);
+    const evaluation: Evaluation = evaluated ?? { members: [], meanInfidelity: best.point.meanInfidelity, worstInfidelity: NaN, worstIndex: -1 };
+    pulse.metadata.figures = {
+      meanInfidelity: evaluation.meanInfidelity,
+      worstInfidelity: evaluation.worstInfidelity,
+      iterations: best.point.iteration,
+      stopReason: 'stopped',
+      start: best.live.start,
+    };
+    // The kept samples are those of the report, not of a later iteration.
+    const kept: StartResult = { ...chosen, iterations: best.point.iteration };
+    return { pulse, evaluation, best: kept, starts, elapsedS: (performance.now() - running.t0) / 1000, stopped: true };
   }
 
   /** Figures of a pulse on the spec's ensemble. */
@@ -143,7 +328,8 @@ export class CoreClient {
     const coarse = await this.analysis.map(target, pulse, coarseAxis(detuning), coarseAxis(amplitudeError), line);
     const update: MapUpdate = { coarse, complete: false };
     onUpdate?.({ ...update });
-    const workers = this.designing ? [this.analysis] : [this.analysis, ...this.designers.filter((d) => d !== this.analysis)];
+    const pool = this.designing ? [this.analysis] : [this.analysis, ...this.designers.filter((d) => d !== this.analysis)];
+    const workers = pool.slice(0, Math.max(1, this.mapWorkers));
     const infidelity = new Float64Array(detuning.points * amplitudeError.points).fill(NaN);
     const fine: MapResult = { detuning: { ...detuning }, amplitudeError: { ...amplitudeError }, infidelity };
     const bands = bandRows(amplitudeError.points, workers.length);
@@ -197,6 +383,11 @@ export class CoreClient {
     return this.analysis.readPulse(text);
   }
 
+  /** Reads a pulse file in the analysis worker (the page only passes it on), with progress, evaluated on `spec` when given. */
+  readPulseFile(file: Blob, onProgress?: FileProgressSink, spec?: unknown): Promise<{ pulse: Pulse; evaluation?: Evaluation }> {
+    return this.analysis.readPulseFile(file, onProgress ? proxy(onProgress) : undefined, spec);
+  }
+
   /** Pulse file text of a pulse. */
   writePulse(pulse: Pulse): Promise<string> {
     return this.analysis.writePulse(pulse);
@@ -228,15 +419,22 @@ export function designWorkerCount(hardwareConcurrency: number | undefined): numb
   return Math.max(1, Math.min(4, (hardwareConcurrency || 2) - 1));
 }
 
-/** The client over real Web Workers (browser only). */
+/** The client over real Web Workers (browser only); Stop ends a design worker and starts a fresh one. */
 export function createBrowserClient(): CoreClient {
-  const workers: Worker[] = [];
+  const workers = new Set<Worker>();
   const start = () => {
     const worker = new Worker(new URL('./worker.ts', import.meta.url), { type: 'module', name: 'gatesmith-core' });
-    workers.push(worker);
+    workers.add(worker);
     return worker;
+  };
+  const replace = (old: Endpoint) => {
+    (old as Worker).terminate();
+    workers.delete(old as Worker);
+    return start();
   };
   const analysis = start();
   const designers = Array.from({ length: designWorkerCount(navigator.hardwareConcurrency) }, start);
-  return new CoreClient(analysis, designers, () => workers.forEach((w) => w.terminate()));
+  const client = new CoreClient(analysis, designers, () => workers.forEach((w) => w.terminate()), replace);
+  client.mapWorkers = designWorkerCount(navigator.hardwareConcurrency);
+  return client;
 }

@@ -38,6 +38,9 @@ export interface ProgressBatch {
   live: LivePulse[];
 }
 
+/** Called while a file is read: the fraction of its bytes read, and what is being done. */
+export type FileProgressSink = (fraction: number, stage: 'reading' | 'checking' | 'evaluating') => void;
+
 /** Called with each batch while a design runs. */
 export type ProgressSink = (batch: ProgressBatch) => void;
 
@@ -122,8 +125,8 @@ export interface CoreService {
   ready(): Promise<CoreInfo>;
   /** Validates a spec with the library's own rules. */
   checkSpec(spec: unknown): SpecCheck;
-  /** Designs with the given starts; progress is batched; `stop` ends it early keeping the best pulse. */
-  design(spec: unknown, startIndices: number[], onProgress?: ProgressSink, livePulseEveryMs?: number): Promise<DesignShare>;
+  /** Designs with the given starts (a stage of a pruned design: api.ts DesignOptions.stage); progress is batched; `stop` ends it early keeping the best pulse. */
+  design(spec: unknown, startIndices: number[], onProgress?: ProgressSink, livePulseEveryMs?: number, stage?: 'probe' | 'finish'): Promise<DesignShare>;
   /** Ends every running design of this worker within one iteration. */
   stop(): number;
   /** Figures of a pulse on the spec's ensemble and target. */
@@ -144,6 +147,12 @@ export interface CoreService {
   drive(pulse: Pulse, line?: Line): Promise<QubitDrive>;
   /** Reads a pulse file's text (PulseFormatError when malformed). */
   readPulse(text: string): Pulse;
+  /**
+   * Reads a pulse file itself, reporting the fraction read so far (PulseFormatError when
+   * malformed), and evaluates it on `spec` when one is given (the samples then cross to the
+   * page once, not back again to be evaluated).
+   */
+  readPulseFile(file: Blob, onProgress?: FileProgressSink, spec?: unknown): Promise<{ pulse: Pulse; evaluation?: Evaluation }>;
   /** Writes a pulse file's text. */
   writePulse(pulse: Pulse): string;
   /** The waveform as the instrument plays it and its report, judged on the members when given (ExportError when refused). */

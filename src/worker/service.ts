@@ -102,6 +102,31 @@ export function thinnedIndices(samples: number, maxPoints: number): Int32Array {
   return out;
 }
 
+/** Fraction of a file read between two progress reports. */
+const FILE_PROGRESS_STEP = 0.05;
+
+/** A file's text, decoded as UTF-8 as its chunks arrive, with the fraction read reported now and then. */
+export async function readWithProgress(file: Blob, onFraction: (fraction: number) => void): Promise<string> {
+  if (typeof file.stream !== 'function' || file.size === 0) return file.text();
+  const reader = file.stream().getReader();
+  const decoder = new TextDecoder();
+  const parts: string[] = [];
+  let read = 0;
+  let reported = 0;
+  for (;;) {
+    const { done, value } = await reader.read();
+    if (done) break;
+    read += value.byteLength;
+    parts.push(decoder.decode(value, { stream: true }));
+    if (read / file.size - reported >= FILE_PROGRESS_STEP) {
+      reported = read / file.size;
+      onFraction(reported);
+    }
+  }
+  parts.push(decoder.decode());
+  return parts.join('');
+}
+
 /** How a service reaches its core. */
 export interface ServiceOptions {
   /** Prepares the core (fetching the wasm) once, before the first job. */
@@ -131,7 +156,7 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
       }
     },
 
-    design(spec, startIndices, onProgress, livePulseEveryMs = 200) {
+    design(spec, startIndices, onProgress, livePulseEveryMs = 200, stage) {
       // Registered before queueing, so that a stop sent while the job waits still ends it.
       const controller = new AbortController();
       running.add(controller);
@@ -140,6 +165,7 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
         const result = await library.design(spec, {
           signal: controller.signal,
           startIndices,
+          stage,
           progressPulseEveryMs: onProgress ? livePulseEveryMs : undefined,
           onProgress: (progress) => batcher.add(progress),
         });
@@ -216,6 +242,22 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
 
     readPulse(text) {
       return moved(library.readPulse(text));
+    },
+
+    async readPulseFile(file, onProgress, spec) {
+      // Read here, off the page's thread: a pulse file may be tens of megabytes.
+      try {
+        const text = await readWithProgress(file, (fraction) => void onProgress?.(fraction, 'reading'));
+        await onProgress?.(1, 'checking');
+        const pulse = library.readPulse(text);
+        if (spec === undefined) return moved({ pulse });
+        await onProgress?.(1, 'evaluating');
+        // A figure that cannot be had leaves the pulse without one; the file still opens.
+        const evaluation = await withCore(() => library.evaluate(spec, pulse)).catch(() => undefined);
+        return moved({ pulse, ...(evaluation ? { evaluation } : {}) });
+      } finally {
+        (onProgress as { [releaseProxy]?: () => void } | undefined)?.[releaseProxy]?.();
+      }
     },
 
     writePulse(pulse) {

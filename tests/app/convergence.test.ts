@@ -42,6 +42,21 @@ describe('Convergence', () => {
     expect(c.received).toBe(n);
   });
 
+  it('keeps the points evenly spread over the iterations: no gap wider than four times the mean spacing', () => {
+    const c = new Convergence();
+    const n = 2000;
+    for (let k = 0; k < n; k++) {
+      c.add([point(0, k, 1 / (k + 1))]);
+      const [s] = c.series();
+      // At every moment: the newest report is the last point.
+      expect(s.iteration.at(-1)).toBe(k);
+    }
+    const [s] = c.series();
+    const gaps = s.iteration.slice(1).map((it, k) => it - s.iteration[k]);
+    expect(Math.max(...gaps)).toBeLessThanOrEqual((4 * n) / s.iteration.length);
+    expect(s.iteration.length).toBeGreaterThan(MAX_SERIES_POINTS / 2 - 1);
+  });
+
   it('has no leader before the first report', () => {
     expect(new Convergence().leader()).toBeNull();
   });

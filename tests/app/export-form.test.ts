@@ -80,16 +80,16 @@ describe('the settings handed to the library', () => {
     expect(exportSettingsInput(form({ upconversion: 'minus' }))).toMatchObject({ upconversion: 'minus' });
     expect(exportSettingsInput(form({ channels: 'ssb', upconversion: 'minus' }))).not.toHaveProperty('upconversion');
   });
-  it("passes on the library's SpecError message and field unchanged", () => {
+  it("passes on the library's SpecError field, its message told with the form's labels and units", () => {
     // The messages of src/io/export/settings.ts: field, value, what is allowed.
     expect(checkExportForm(form({ granularity: 0 }))).toEqual({
       ok: false,
       field: 'granularity',
-      message: 'granularity: 0 is not allowed; a whole number of samples >= 1 (the block size)',
+      message: 'Granularity: 0 is not allowed; a whole number of samples >= 1 (the block size)',
     });
     const nyquist = checkExportForm(form({ channels: 'ssb', intermediateFrequency: 6e8 }));
     expect(nyquist.ok === false && nyquist.field).toBe('intermediateFrequency');
-    expect(nyquist.ok === false && nyquist.message).toContain('0 < f < sampleRate/2 = 500000000 (Nyquist)');
+    expect(nyquist.ok === false && nyquist.message).toMatch(/^IF: 600 MHz is not allowed; .*0 < f < Sample rate\/2 = 500000000 \(Nyquist\)/);
     expect(checkExportForm(form({ maxLength: 8, granularity: 16 }))).toMatchObject({ ok: false, field: 'maxLength' });
   });
   it('offers only the units a format can hold (README: raw and WAV hold codes, the pulse JSON Hz)', () => {
@@ -202,5 +202,18 @@ describe('the form in the project file', () => {
     expect(() => parseProject(withForm({ ...form(), bits: 13 }))).toThrow('"settings.export.bits" is 13; expected one of 12, 14, 16');
     expect(() => parseProject(withForm({ ...form(), sampleRate: -1 }))).toThrow('"settings.export.sampleRate" is -1');
     expect(() => parseProject(withForm({ ...form(), marker: 'yes' }))).toThrow('"settings.export.marker"');
+  });
+});
+
+describe('exportLengthRefusal', () => {
+  it('refuses a sample rate that makes the file longer than the page can hold, in engineering units', async () => {
+    const { exportLengthRefusal, MAX_EXPORT_SAMPLES } = await import('../../src/app/export-form.ts');
+    const pulse = { dt: 2e-9, i: new Float64Array(100) };
+    // 200 ns at 1 GS/s: 200 samples.
+    expect(exportLengthRefusal({ sampleRate: 1e9 }, pulse)).toBeNull();
+    const refused = exportLengthRefusal({ sampleRate: 1e30 }, pulse)!;
+    expect(refused.field).toBe('sampleRate');
+    // 200 ns x 1e30 /s = 2e23 samples; the largest rate is 2^24 / 200 ns = 8.39e13 S/s.
+    expect(refused.message).toBe(`Sample rate: 1e21 GS/s would give 2.00e+23 samples for this 200 ns pulse; the page exports at most ${MAX_EXPORT_SAMPLES} samples a channel (83900 GS/s at most for this pulse)`);
   });
 });

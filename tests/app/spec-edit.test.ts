@@ -91,3 +91,17 @@ describe('sample period', () => {
     expect(durationForSamplePeriod(5e-7, 80)).toBe(4e-5);
   });
 });
+
+describe('mergeSpec and isWholeSpec', () => {
+  it('merges a part of a spec: top-level keys replaced, optimizer, constraints and ensemble key by key', async () => {
+    const { mergeSpec, isWholeSpec } = await import('../../src/app/spec-edit.ts');
+    const spec = { target: { gate: { axis: [1, 0, 0], angleDeg: 90 } }, duration: 2e-7, segments: 100, rabiMax: 1e7, optimizer: { starts: 5, seed: 1 }, ensemble: { detuning: { min: -1, max: 1, points: 3 } } };
+    expect(isWholeSpec(spec)).toBe(true);
+    expect(isWholeSpec({ duration: 4e-7 })).toBe(false);
+    const merged = mergeSpec(spec, { duration: 4e-7, optimizer: { starts: 3 }, ensemble: { amplitudeError: { sigma: 0.02, points: 3 } } });
+    expect(merged.keys).toEqual(['duration', 'optimizer.starts', 'ensemble.amplitudeError']);
+    expect(merged.spec).toEqual({ ...spec, duration: 4e-7, optimizer: { starts: 3, seed: 1 }, ensemble: { detuning: { min: -1, max: 1, points: 3 }, amplitudeError: { sigma: 0.02, points: 3 } } });
+    // The spec given is not changed.
+    expect(spec.duration).toBe(2e-7);
+  });
+});

@@ -5,6 +5,11 @@ import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import { formatElapsed, formatFigure, formatQuantity, parseQuantity, roundUpTwoDigits, shiftDecimal, type Quantity } from '../../src/app/units.ts';
 
+function bad(text: string, quantity: Quantity, unit?: string): string {
+  const parsed = parseQuantity(text, quantity, unit);
+  return parsed.ok ? '' : parsed.message;
+}
+
 function value(text: string, quantity: Quantity, unit?: string): number {
   const parsed = parseQuantity(text, quantity, unit);
   if (!parsed.ok) throw new Error(parsed.message);
@@ -30,6 +35,19 @@ describe('parseQuantity', () => {
     expect(value('90°', 'angle')).toBe(90);
     expect(value('1e-4', 'number')).toBe(1e-4);
     expect(value('100', 'count')).toBe(100);
+  });
+
+  it('reads sample rates as instruments print them, samples a second (common practice: "GS/s", "GSa/s")', () => {
+    expect(value('2 GS/s', 'frequency')).toBe(2e9);
+    expect(value('2 GSa/s', 'frequency')).toBe(2e9);
+    expect(value('2.5 gsa/s', 'frequency')).toBe(2.5e9);
+    expect(value('600 MS/s', 'frequency')).toBe(6e8);
+    expect(value('100 kSa/s', 'frequency')).toBe(1e5);
+  });
+
+  it('says in which unit a bare number is read, the field\'s own (a time limit in seconds)', () => {
+    expect(bad('five', 'time', 's')).toContain('a bare number is in s)');
+    expect(bad('five', 'time')).toContain('a bare number is in ns)');
   });
 
   it('reads a bare number in the field unit', () => {

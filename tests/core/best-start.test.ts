@@ -2,7 +2,7 @@
 // for any split of the starts into shares (threads, workers) as for one loop over them.
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { bestStart, mergeDesigns } from '../../src/core/best-start.ts';
+import { bestStart, mergeDesigns, mergePruned, startsToContinue } from '../../src/core/best-start.ts';
 import type { DesignResult, StartResult } from '../../src/core/types.ts';
 
 const start = (index: number, objective: number): StartResult => ({
@@ -43,6 +43,35 @@ describe('the winning start', () => {
         expect(merged.pulse.i[0]).toBe(whole.start);
         expect(merged.starts.map((s) => s.start)).toEqual(starts.map((s) => s.start));
         expect(merged.elapsedS).toBe(0.5);
+      }),
+    );
+  });
+});
+
+describe('pruning over shares', () => {
+  it('continues the keepStarts lowest at the pruning point, only those still running, ties to the lower index', () => {
+    const at = (index: number, objective: number, reason: StartResult['stopReason']): StartResult => ({ ...start(index, objective), stopReason: reason });
+    // Start 2 ended before the point (a stall) and ranks first: it takes one of the places.
+    const probes = [at(0, 3e-3, 'pruned'), at(1, 2e-4, 'pruned'), at(2, 1e-4, 'stalled'), at(3, 2e-4, 'pruned'), at(4, 9e-3, 'pruned')];
+    expect(startsToContinue(probes, 2)).toEqual([1]);
+    expect(startsToContinue(probes, 3)).toEqual([1, 3]);
+    expect(startsToContinue([...probes].reverse(), 3)).toEqual([1, 3]);
+  });
+
+  it('gives the winner and start list of one loop for every split of the probe and finish stages (invariant)', () => {
+    const objectives = fc.array(fc.constantFrom(1e-3, 2e-4, 5e-5), { minLength: 2, maxLength: 10 });
+    fc.assert(
+      fc.property(objectives, fc.integer({ min: 1, max: 4 }), fc.integer({ min: 1, max: 3 }), (values, workers, keep) => {
+        const probes = values.map((v, k) => ({ ...start(k, v), stopReason: 'pruned' as const }));
+        const going = startsToContinue(probes, keep);
+        // A continued start ends lower than at its probe (here: a hundredth of it).
+        const finals = probes.map((r) => (going.includes(r.start) ? { ...start(r.start, r.objective / 100), stopReason: 'max-iterations' as const } : r));
+        const whole = bestStart(finals);
+        const deal = (list: StartResult[]) => Array.from({ length: Math.min(workers, list.length) }, (_, w) => list.filter((_, k) => k % workers === w));
+        const merged = mergePruned(deal(probes).map(share), deal(finals.filter((r) => going.includes(r.start))).map(share), 0.25);
+        expect(merged.best.start).toBe(whole.start);
+        expect(merged.best.objective).toBe(whole.objective);
+        expect(merged.starts.map((r) => [r.start, r.stopReason])).toEqual(finals.map((r) => [r.start, r.stopReason]));
       }),
     );
   });

@@ -44,7 +44,8 @@ function discResidual(spec: unknown, pulse: Pulse, rabiMax: number): number {
 
 describe('box bound: projected L-BFGS with the generalised Cauchy point', () => {
   const rabiMax = 5e6;
-  const spec = { ...demo, rabiMax, constraints: { amplitudeBound: 'box' }, optimizer: { starts: 6, seed: 2, maxIterations: 5000 } };
+  // Run to the optimiser's own end (no stall rule): the checks are of the end point.
+  const spec = { ...demo, rabiMax, constraints: { amplitudeBound: 'box' }, optimizer: { starts: 6, seed: 2, maxIterations: 5000, stallIterations: 0 } };
 
   it('ends where the projected gradient vanishes, and no feasible finite-difference step lowers the figure', async () => {
     const r = await design(spec, { startIndices: [3] });
@@ -93,7 +94,9 @@ describe('disc bound: no stall where tanh saturates', () => {
     // Measured before the re-centring (same spec and seed): starts 1 and 2 stopped on the
     // gradient tolerance at 2.556e-2 and 2.800e-2 with variables of radius up to 1e10 and
     // a sample-space optimality residual of 2.2e-4 and 4.5e-5.
-    const spec = { ...demo, rabiMax: 5e6, optimizer: { starts: 12, seed: 3, maxIterations: 3000 } };
+    // 5000 iterations: where a start ends depends on the last bits of the arithmetic, and
+    // start 2 needs about 4500 with the current backward sweep.
+    const spec = { ...demo, rabiMax: 5e6, optimizer: { starts: 12, seed: 3, maxIterations: 5000, stallIterations: 0 } };
     const r = await design(spec, { startIndices: [1, 2] });
     for (const s of r.starts) {
       for (let k = 0; k < s.pulse.i.length; k++) expect(Math.hypot(s.pulse.i[k], s.pulse.q[k])).toBeLessThanOrEqual(5e6);

@@ -228,10 +228,10 @@ describe.skipIf(reason !== null)('the app in Chromium', () => {
     await typeInto(page, '#f-segments', '0');
     const message = page.locator('#f-segments-error');
     await message.waitFor();
-    // The library's own SpecError message (src/core/spec.ts): field, value and what is allowed.
-    expect(await message.textContent()).toBe('segments: 0 is not allowed; an integer from 1 to 100000');
+    // The library's own SpecError message (src/core/spec.ts), told with the form's label: field, value and what is allowed.
+    expect(await message.textContent()).toBe('Samples: 0 is not allowed; an integer from 1 to 100000');
     expect(await page.getByTestId('run').isDisabled()).toBe(true);
-    expect(await page.getByTestId('run-blocker').textContent()).toContain('segments: 0 is not allowed');
+    expect(await page.getByTestId('run-blocker').textContent()).toContain('Samples: 0 is not allowed');
     await typeInto(page, '#f-rabi', '10 MHzz');
     expect(await page.locator('#f-rabi-error').textContent()).toContain('"MHzz" is not a unit here');
     await page.keyboard.press('Control+Enter');
@@ -344,7 +344,7 @@ describe.skipIf(reason !== null)('the app in Chromium', () => {
     await page.getByTestId('run').click();
     expect(await runToEnd(page)).toMatch(/^done/);
     await page.keyboard.press('Alt+3');
-    await page.locator('.ranges button', { hasText: 'Fit to ensemble' }).click();
+    // The region follows the ion's ensemble (twice its +-5 kHz), not the transmon's.
     await page.waitForFunction(() => /points in/.test(document.querySelector('[data-testid=map-status]')?.textContent ?? ''), undefined, { timeout: 30_000 });
     expect(await page.locator('#m-d-max').inputValue()).toBe('10 kHz');
     await screenshot(page, 'e2e-10-dark-ion');

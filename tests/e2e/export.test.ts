@@ -238,14 +238,15 @@ describe.skipIf(reason !== null)('the export panel in Chromium', () => {
     // The library's own message (parseExportSettings), under the field it names.
     await typeInto(page, '#x-granularity', '0');
     await panelState(page, 'invalid');
-    expect(await page.locator('#x-granularity-error').textContent()).toBe('granularity: 0 is not allowed; a whole number of samples >= 1 (the block size)');
-    expect(await page.getByTestId('export-blocker').textContent()).toContain('granularity: 0 is not allowed');
+    // The library's message (src/io/export/settings.ts) told with the form's label.
+    expect(await page.locator('#x-granularity-error').textContent()).toBe('Granularity: 0 is not allowed; a whole number of samples >= 1 (the block size)');
+    expect(await page.getByTestId('export-blocker').textContent()).toContain('Granularity: 0 is not allowed');
     expect(await download.isDisabled()).toBe(true);
     await page.getByLabel('one channel, single sideband').check();
     await typeInto(page, '#x-if', '600 MHz');
     await screenshot(page, 'e2e-export-04-invalid');
     await typeInto(page, '#x-granularity', '16');
-    expect(await page.locator('#x-if-error').textContent()).toContain('intermediateFrequency: 600000000 is not allowed; a frequency in Hz with 0 < f < sampleRate/2 = 500000000 (Nyquist)');
+    expect(await page.locator('#x-if-error').textContent()).toContain('IF: 600 MHz is not allowed; a frequency in Hz with 0 < f < Sample rate/2 = 500000000 (Nyquist)');
     await page.getByLabel('I and Q', { exact: true }).check();
     await panelState(page, 'ready');
 
@@ -254,7 +255,7 @@ describe.skipIf(reason !== null)('the export panel in Chromium', () => {
     await panelState(page, 'refused');
     const refusal = (await page.getByTestId('export-refusal').textContent()) ?? '';
     expect(refusal).toContain('ExportError');
-    expect(refusal).toContain('above the full scale of 8000000 Hz; the waveform is not written (it is never clipped)');
+    expect(refusal).toContain('above the full scale of 8 MHz; the waveform is not written (it is never clipped)');
     expect(await download.isDisabled()).toBe(true);
     expect(await page.getByTestId('export-add').isDisabled()).toBe(true);
     await screenshot(page, 'e2e-export-05-refused');
@@ -263,7 +264,7 @@ describe.skipIf(reason !== null)('the export panel in Chromium', () => {
     await typeInto(page, '#x-full-scale', '10 MHz');
     await typeInto(page, '#x-sample-rate', '2.4 GHz');
     await panelState(page, 'refused');
-    expect(await page.getByTestId('export-refusal').textContent()).toContain('resample: "hold" needs the design\'s dt to be a whole number of instrument sample periods');
+    expect(await page.getByTestId('export-refusal').textContent()).toContain('Resample: "hold" needs the design\'s dt to be a whole number of instrument sample periods');
     expect(await page.locator('#x-sample-rate-hint').textContent()).toContain('is 4.8 sample periods');
     await page.locator('#x-resample').selectOption('average');
     await panelState(page, 'ready');

@@ -155,13 +155,18 @@ export interface LineChartSpec {
   tooltip?: Record<string, unknown>;
   /** Thins long curves to a few points per pixel column. */
   decimate?: boolean;
+  /** Called with the x-axis value under the pointer as it moves over the chart. */
+  onHover?: (x: number) => void;
 }
+
+/** The property of a chart's canvas that holds the chart: the page's tests read its scales and data there. */
+export const CHART_PROPERTY = 'gatesmithChart';
 
 /** A themed line chart over x/y points (no parsing, no animation), empty until datasets are set. */
 export function lineChart(canvas: HTMLCanvasElement, spec: LineChartSpec): Chart<'line'> {
   const colours = theme();
   const filter = spec.legendFilter;
-  return new Chart(canvas, {
+  const chart = new Chart(canvas, {
     type: 'line',
     data: { datasets: [] },
     options: {
@@ -169,6 +174,7 @@ export function lineChart(canvas: HTMLCanvasElement, spec: LineChartSpec): Chart
       parsing: false,
       normalized: true,
       interaction: spec.interaction,
+      ...(spec.onHover ? { onHover: (event: { x: number | null }, _: unknown, chart: Chart) => spec.onHover!(chart.scales.x.getValueForPixel(event.x ?? NaN) ?? NaN) } : {}),
       scales: {
         x: { type: 'linear', ...axisStyle(colours), title: axisTitle(spec.xTitle, colours) },
         y: { type: spec.yType ?? 'linear', ...axisStyle(colours), title: axisTitle(spec.yTitle, colours), ...spec.y },
@@ -181,6 +187,8 @@ export function lineChart(canvas: HTMLCanvasElement, spec: LineChartSpec): Chart
       },
     } as never,
   });
+  Object.defineProperty(canvas, CHART_PROPERTY, { value: chart, configurable: true });
+  return chart;
 }
 
 /** Decade ticks of a log axis, printed as 1e-4 rather than 0.0001. */

@@ -2,7 +2,7 @@
 // figures (iteration, mean and worst infidelity, elapsed time) and the live waveform.
 // Progress arrives in batches from several workers; the page redraws on its own clock.
 import type { StopReason } from '../../core/types.ts';
-import type { DesignOutcome } from '../../worker/client.ts';
+import { ReportedPulses, type DesignOutcome, type KeptPulse } from '../../worker/client.ts';
 import type { ProgressBatch } from '../../worker/protocol.ts';
 import { Convergence } from '../convergence.ts';
 import { runHistory, type RunHistory } from '../run-history.ts';
@@ -12,13 +12,16 @@ import { newPulseId, type PulseEntry, type Session } from './session.svelte.ts';
 /** Where a run is. */
 export type RunStatus = 'idle' | 'running' | 'stopping' | 'done' | 'failed';
 
-/** The samples shown while a run goes on. */
+/** The samples shown while a run goes on, with the figures of those very samples. */
 export interface LiveWaveform {
   start: number;
   iteration: number;
   dt: number;
   i: Float64Array;
   q: Float64Array;
+  /** Weighted mean and worst member over the spec's ensemble (worst NaN while unknown). */
+  meanInfidelity: number;
+  worstInfidelity: number;
 }
 
 /** Shortest gap between two evaluations of the live pulse on the ensemble (for the worst member). */
@@ -31,7 +34,12 @@ const STOP_WORDS: Record<StopReason, string> = {
   'time-limit': 'time budget used',
   stopped: 'stopped',
   'line-search-failed': 'no further descent (line search)',
+  stalled: 'progress stalled',
+  pruned: 'set aside after the first iterations',
 };
+
+/** How a failed run's notice begins (a later successful run clears it). */
+export const DESIGN_FAILED = 'The design failed:';
 
 /** Words for why a start ended. */
 export function stopReasonText(reason: StopReason): string {
@@ -45,11 +53,8 @@ export class DesignRun {
   version = $state(0);
   iteration = $state(0);
   leaderStart = $state<number | null>(null);
-  meanInfidelity = $state<number | null>(null);
-  worstInfidelity = $state<number | null>(null);
-  /** Iteration of the pulse the worst figure belongs to. */
-  worstAt = $state<number | null>(null);
   elapsedS = $state(0);
+  /** The pulse shown (the best reported so far, or the result) with its own figures. */
   live = $state.raw<LiveWaveform | null>(null);
   outcome = $state.raw<DesignOutcome | null>(null);
   error = $state<string | null>(null);
@@ -64,8 +69,23 @@ export class DesignRun {
   private lastEvaluation = 0;
   private evaluating = false;
   private runs = 0;
+  private reported = new ReportedPulses();
+  private runId = 0;
+  /** The next evaluation of the best reported pulse, when one is waiting for its turn. */
+  private evaluationTimer: ReturnType<typeof setTimeout> | null = null;
 
   constructor(private readonly session: Session) {}
+
+  /** Mean infidelity of the pulse shown, or null before any. */
+  get meanInfidelity(): number | null {
+    return this.live?.meanInfidelity ?? null;
+  }
+
+  /** Worst member's infidelity of the pulse shown, or null while unknown. */
+  get worstInfidelity(): number | null {
+    const worst = this.live?.worstInfidelity;
+    return worst === undefined || Number.isNaN(worst) ? null : worst;
+  }
 
   /** True while a run is going (Run disabled, Stop enabled). */
   get active(): boolean {
@@ -96,25 +116,26 @@ export class DesignRun {
     this.outcome = null;
     this.live = null;
     this.iteration = 0;
-    this.meanInfidelity = null;
-    this.worstInfidelity = null;
-    this.worstAt = null;
     this.leaderStart = null;
     this.history = null;
     this.restoredFrom = null;
+    this.reported = new ReportedPulses();
+    const id = ++this.runId;
     this.version++;
     this.t0 = performance.now();
     this.elapsedS = 0;
     this.timer = setInterval(() => (this.elapsedS = (performance.now() - this.t0) / 1000), 100);
     const dt = problem.dt;
     try {
-      const outcome = await session.client.design(spec, problem.optimizer.starts, (batch) => this.take(batch, spec, dt));
+      const outcome = await session.client.design(spec, problem.optimizer.starts, (batch) => this.take(batch, spec, dt, id));
       this.finish(outcome, spec);
+      // A failure of an earlier run is no longer news once a run succeeded.
+      if (session.notice?.kind === 'error' && session.notice.text.startsWith(DESIGN_FAILED)) session.notice = null;
       return outcome;
     } catch (error) {
       this.status = 'failed';
       this.error = `${(error as Error).name}: ${(error as Error).message}`;
-      session.notice = { kind: 'error', text: `The design failed: ${(error as Error).message}` };
+      session.notice = { kind: 'error', text: `${DESIGN_FAILED} ${(error as Error).message}` };
       return null;
     } finally {
       if (this.timer) clearInterval(this.timer);
@@ -130,66 +151,94 @@ export class DesignRun {
     await this.session.client.stop();
   }
 
-  private take(batch: ProgressBatch, spec: unknown, dt: number): void {
-    if (!this.active) return;
+  private take(batch: ProgressBatch, spec: unknown, dt: number, id: number): void {
+    if (!this.active || id !== this.runId) return;
     this.convergence.add(batch.points);
+    this.reported.add(batch);
     const leader = this.convergence.leader();
     if (leader) {
       this.iteration = this.convergence.totalIterations();
-      this.meanInfidelity = leader.meanInfidelity;
       this.leaderStart = leader.start;
     }
-    const live = batch.live.find((l) => l.start === leader?.start) ?? (this.live ? undefined : batch.live[0]);
-    if (live) {
-      this.live = { start: live.start, iteration: live.iteration, dt, i: live.i, q: live.q };
-      void this.evaluateLive(spec);
-    }
+    void this.evaluateLive(spec, dt, id);
     this.version++;
   }
 
-  // The worst member is not part of a progress report: the analysis worker evaluates the
-  // live pulse now and then, while the designers keep designing.
-  private async evaluateLive(spec: unknown): Promise<void> {
-    const live = this.live;
-    if (!live || this.evaluating || performance.now() - this.lastEvaluation < LIVE_EVALUATION_MS) return;
+  // The pulse shown is the best one reported so far, shown once the analysis worker has
+  // evaluated it, so that its mean and worst member are of those very samples; the
+  // designers keep designing meanwhile.
+  private async evaluateLive(spec: unknown, dt: number, id: number): Promise<void> {
+    const best = this.reported.best();
+    if (!best || this.evaluating || this.isShown(best)) return;
+    const wait = LIVE_EVALUATION_MS - (performance.now() - this.lastEvaluation);
+    if (wait > 0 && this.live) {
+      if (!this.evaluationTimer) {
+        this.evaluationTimer = setTimeout(() => {
+          this.evaluationTimer = null;
+          void this.evaluateLive(spec, dt, id);
+        }, wait);
+      }
+      return;
+    }
     this.evaluating = true;
     this.lastEvaluation = performance.now();
     try {
-      const evaluation = await this.session.client.evaluate(spec, { dt: live.dt, i: live.i, q: live.q, metadata: {} });
-      if (this.active) {
-        this.worstInfidelity = evaluation.worstInfidelity;
-        this.worstAt = live.iteration;
-      }
+      const evaluation = await this.session.client.evaluate(spec, { dt, i: best.live.i, q: best.live.q, metadata: {} });
+      if (this.active && id === this.runId) this.show(best, dt, evaluation.meanInfidelity, evaluation.worstInfidelity);
     } catch {
-      // A figure that could not be had is simply not shown.
+      // A figure that could not be had: the pulse is shown with the figures of its report.
+      if (this.active && id === this.runId) this.show(best, dt, best.point.meanInfidelity, NaN);
     } finally {
       this.evaluating = false;
     }
+    if (this.active && id === this.runId) void this.evaluateLive(spec, dt, id);
+  }
+
+  private isShown(kept: KeptPulse): boolean {
+    return this.live !== null && this.live.start === kept.live.start && this.live.iteration === kept.live.iteration;
+  }
+
+  private show(kept: KeptPulse, dt: number, meanInfidelity: number, worstInfidelity: number): void {
+    const { start, iteration, i, q } = kept.live;
+    this.live = { start, iteration, dt, i, q, meanInfidelity, worstInfidelity };
+    this.version++;
   }
 
   private finish(outcome: DesignOutcome, spec: unknown): void {
     this.outcome = outcome;
     this.status = 'done';
-    this.meanInfidelity = outcome.evaluation.meanInfidelity;
-    this.worstInfidelity = outcome.evaluation.worstInfidelity;
-    this.worstAt = null;
-    this.iteration = outcome.starts.reduce((sum, s) => sum + s.iterations, 0);
+    this.iteration = Math.max(this.iteration, outcome.starts.reduce((sum, s) => sum + s.iterations, 0));
     this.leaderStart = outcome.best.start;
-    this.live = { start: outcome.best.start, iteration: outcome.best.iterations, dt: outcome.pulse.dt, i: outcome.pulse.i, q: outcome.pulse.q };
+    const { meanInfidelity, worstInfidelity } = outcome.evaluation;
+    this.live = { start: outcome.best.start, iteration: outcome.best.iterations, dt: outcome.pulse.dt, i: outcome.pulse.i, q: outcome.pulse.q, meanInfidelity, worstInfidelity };
     this.runs++;
     const when = formatClock(Date.now());
     const name = typeof (spec as { name?: unknown }).name === 'string' ? (spec as { name: string }).name : 'design';
     const pulse = outcome.pulse;
     pulse.metadata = { ...pulse.metadata, origin: 'design', name, spec, stopped: outcome.stopped };
     this.history = runHistory(outcome, this.convergence);
-    this.session.addPulse({
+    const entry = {
       id: newPulseId('design'),
       label: `${name} #${this.runs} (${when}${outcome.stopped ? ', stopped' : ''})`,
       pulse,
-      evaluation: { meanInfidelity: outcome.evaluation.meanInfidelity, worstInfidelity: outcome.evaluation.worstInfidelity },
+      evaluation: { meanInfidelity, worstInfidelity },
       history: this.history,
-    });
+    };
+    this.session.addPulse(entry);
     this.version++;
+    // Stopped while the analysis worker was busy: its worst member is asked for now.
+    if (Number.isNaN(worstInfidelity)) void this.completeFigures(entry, spec);
+  }
+
+  private async completeFigures(entry: { id: string; pulse: DesignOutcome['pulse'] }, spec: unknown): Promise<void> {
+    try {
+      const evaluation = await this.session.client.evaluate(spec, entry.pulse);
+      const figures = { meanInfidelity: evaluation.meanInfidelity, worstInfidelity: evaluation.worstInfidelity };
+      this.session.updatePulse(entry.id, { evaluation: figures });
+      if (this.live && this.live.i === entry.pulse.i) this.live = { ...this.live, ...figures };
+    } catch {
+      // Left unknown; the views evaluate the pulse again when they need its figures.
+    }
   }
 
   /**
@@ -205,11 +254,9 @@ export class DesignRun {
     this.outcome = null;
     this.leaderStart = h.best;
     this.iteration = h.starts.reduce((sum, s) => sum + s.iterations, 0);
-    this.meanInfidelity = entry.evaluation?.meanInfidelity ?? null;
-    this.worstInfidelity = entry.evaluation?.worstInfidelity ?? null;
-    this.worstAt = null;
     const best = h.starts.find((s) => s.start === h.best);
-    this.live = { start: h.best, iteration: best?.iterations ?? 0, dt: entry.pulse.dt, i: entry.pulse.i, q: entry.pulse.q };
+    const { meanInfidelity, worstInfidelity } = entry.evaluation ?? { meanInfidelity: NaN, worstInfidelity: NaN };
+    this.live = { start: h.best, iteration: best?.iterations ?? 0, dt: entry.pulse.dt, i: entry.pulse.i, q: entry.pulse.q, meanInfidelity, worstInfidelity };
     this.version++;
   }
 }

@@ -22,7 +22,9 @@ import {
 } from '../project.ts';
 import type { RunHistory } from '../run-history.ts';
 import { setAt, type SpecJson } from '../spec-edit.ts';
-import { isoTimestamp } from '../units.ts';
+import { DEFAULT_SAMPLE_RATE } from '../export-form.ts';
+import { inFormWords, specLimits, type FieldNoteText } from '../spec-limits.ts';
+import { isoTimestamp, roundUpTwoDigits } from '../units.ts';
 
 /** The views of the page, in the order of their shortcuts (Alt+1 ...). */
 export const VIEWS = [
@@ -54,11 +56,17 @@ export interface SessionStorage {
   save(project: Project): Promise<void>;
 }
 
-/** A message shown to the user (errors keep the class name the UI branched on). */
+/** A message shown to the user (errors keep the class name the UI branched on), with an optional action (Undo). */
 export interface Notice {
   kind: 'error' | 'info';
   text: string;
+  action?: { label: string; run: () => void };
 }
+
+/** Most spec versions the undo history keeps. */
+export const HISTORY_LENGTH = 100;
+/** Edits of one field closer together than this are one step of the history (typing "10 MHz" is one edit). */
+export const HISTORY_MERGE_MS = 1000;
 
 /** Milliseconds between the last edit and the autosave. */
 export const AUTOSAVE_DELAY_MS = 400;
@@ -69,13 +77,14 @@ export function newPulseId(prefix: string): string {
   return `${prefix}-${Date.now().toString(36)}-${(nextId++).toString(36)}`;
 }
 
-function storedPulse(entry: PulseEntry): StoredPulse {
+// The store keeps typed arrays (copied in one piece); a file needs plain arrays for its JSON.
+function storedPulse(entry: PulseEntry, typed: boolean): StoredPulse {
   return {
     id: entry.id,
     label: entry.label,
     dt: entry.pulse.dt,
-    i: Array.from(entry.pulse.i),
-    q: Array.from(entry.pulse.q),
+    i: typed ? entry.pulse.i : Array.from(entry.pulse.i),
+    q: typed ? entry.pulse.q : Array.from(entry.pulse.q),
     metadata: entry.pulse.metadata,
     ...(entry.evaluation ? { evaluation: { ...entry.evaluation } } : {}),
     ...(entry.history ? { history: $state.snapshot(entry.history) as RunHistory } : {}),
@@ -88,6 +97,8 @@ export class Session {
   /** Text that could not be read as a value, by spec path (the spec keeps its last good value). */
   fieldErrors = $state.raw<Record<string, string>>({});
   check = $state.raw<SpecCheck | null>(null);
+  /** Physically odd values of the spec, by field (shown, never blocking). */
+  warnings = $state.raw<FieldNoteText[]>([]);
   pulses = $state.raw<PulseEntry[]>([]);
   selectedId = $state<string | null>(null);
   view = $state<ViewId>('design');
@@ -97,11 +108,23 @@ export class Session {
   ready = $state(false);
   /** Bumped whenever the whole spec is replaced (demo, JSON, project, link): the form retypes every field. */
   specRevision = $state(0);
+  /** A pulse file being opened, and how far (the page shows its progress). */
+  opening = $state.raw<{ name: string; bytes: number; fraction: number; stage: 'reading' | 'checking' | 'evaluating' } | null>(null);
   /** Set when the last autosave failed (the page says so; work stays in memory). */
   saveError = $state<string | null>(null);
   /** Bumped whenever a saved session or project replaced the pulses (the run's history is then restored). */
   projectRevision = $state(0);
 
+  /** Earlier specs, newest last (Ctrl+Z), and undone ones, newest last (Ctrl+Shift+Z). */
+  private past = $state.raw<SpecJson[]>([]);
+  private future = $state.raw<SpecJson[]>([]);
+  /** The field and time of the last edit, to merge keystrokes into one history step. */
+  private lastEdit: { path: string; at: number } | null = null;
+  /** The spec field edited last in the form (a warning caused by it is said there). */
+  editedPath = $state<string | null>(null);
+  /** Series colours by pulse key ("origin:label"): a pulse keeps its colour in every view and run. */
+  // A plain record, not reactive state: a colour, once given, never changes.
+  private colours: Record<string, number> = {};
   private checkSeq = 0;
   private saveTimer: ReturnType<typeof setTimeout> | null = null;
   private checkTimer: ReturnType<typeof setTimeout> | null = null;
@@ -116,9 +139,38 @@ export class Session {
     return this.check?.ok ? this.check.problem : null;
   }
 
-  /** The library's complaint about the spec, if any. */
+  /** The complaint about the spec (the library's, or the form's limits), in the form's words, if any. */
   get specError(): ErrorInfo | null {
-    return this.check && !this.check.ok ? this.check.error : null;
+    return this.check && !this.check.ok ? { ...this.check.error, message: inFormWords(this.check.error) } : null;
+  }
+
+  /**
+   * The robustness and comparison region: set by hand in the map's fields, or else twice the
+   * spec's ensemble in each error (a fifth of the peak Rabi frequency in detuning, 20 % in
+   * amplitude, where the ensemble has none), with the points and threshold of the settings.
+   */
+  get region(): ViewSettings['map'] {
+    const map = this.settings.map;
+    const problem = this.problem;
+    if (map.byHand || !problem) return map;
+    let d = 0;
+    let a = 0;
+    for (const m of problem.members) {
+      d = Math.max(d, Math.abs(m.detuning));
+      a = Math.max(a, Math.abs(m.amplitudeError));
+    }
+    const dMax = roundUpTwoDigits(2 * d) || problem.rabiMax / 5;
+    const aMax = Math.min(0.9, roundUpTwoDigits(2 * a) || 0.2);
+    return {
+      ...map,
+      detuning: { min: -dMax, max: dMax, points: map.detuning.points },
+      amplitudeError: { min: -aMax, max: aMax, points: map.amplitudeError.points },
+    };
+  }
+
+  /** The warning about a field (physically odd, not blocking), or null. */
+  warningAt(path: string): string | null {
+    return this.warnings.find((w) => w.field === path)?.message ?? null;
   }
 
   /** True when every field reads and the library accepts the spec. */
@@ -149,6 +201,18 @@ export class Session {
     }
   }
 
+  /** The palette index of a pulse, fixed the first time it is asked for (key: origin and label, as the comparison names it). */
+  colourIndex(origin: string, label: string): number {
+    const key = `${origin}:${label}`;
+    this.colours[key] ??= Object.keys(this.colours).length;
+    return this.colours[key];
+  }
+
+  /** The palette index of a pulse the session holds. */
+  colourOfEntry(entry: PulseEntry): number {
+    return this.colourIndex(String(entry.pulse.metadata.origin ?? 'design'), entry.label);
+  }
+
   /** Loads the core, then restores the session: the link's spec first, else the autosave, else the demo. */
   async start(hash = ''): Promise<void> {
     try {
@@ -171,6 +235,8 @@ export class Session {
     try {
       const linked = specFromHash(hash);
       if (linked) {
+        // The autosaved spec stays one Ctrl+Z away.
+        this.remember();
         this.spec = linked;
         this.specRevision++;
         this.notice = { kind: 'info', text: 'Spec loaded from the link.' };
@@ -181,10 +247,56 @@ export class Session {
     await this.validate();
   }
 
-  /** Replaces one spec value from the form. */
+  /** Replaces one spec value from the form (one undo step per field edit, keystrokes merged). */
   setField(path: string, value: unknown): void {
+    const now = Date.now();
+    const merge = this.lastEdit?.path === path && now - this.lastEdit.at < HISTORY_MERGE_MS;
+    if (!merge) this.remember();
+    this.lastEdit = { path, at: now };
+    this.editedPath = path;
     this.spec = setAt(this.spec, path, value);
     this.setFieldError(path, null);
+    this.specChanged();
+  }
+
+  /** True when there is an edit of the spec to undo. */
+  get canUndo(): boolean {
+    return this.past.length > 0;
+  }
+
+  /** True when there is an undone edit to redo. */
+  get canRedo(): boolean {
+    return this.future.length > 0;
+  }
+
+  /** Goes back to the spec before the last edit (the form retypes every field). */
+  undo(): void {
+    const previous = this.past.at(-1);
+    if (!previous) return;
+    this.past = this.past.slice(0, -1);
+    this.future = [...this.future, this.spec];
+    this.restore(previous);
+  }
+
+  /** Applies again the last undone edit. */
+  redo(): void {
+    const next = this.future.at(-1);
+    if (!next) return;
+    this.future = this.future.slice(0, -1);
+    this.past = [...this.past, this.spec];
+    this.restore(next);
+  }
+
+  private remember(): void {
+    this.past = [...this.past.slice(-(HISTORY_LENGTH - 1)), this.spec];
+    this.future = [];
+  }
+
+  private restore(spec: SpecJson): void {
+    this.lastEdit = null;
+    this.spec = spec;
+    this.fieldErrors = {};
+    this.specRevision++;
     this.specChanged();
   }
 
@@ -200,8 +312,10 @@ export class Session {
     }
   }
 
-  /** Replaces the whole spec (demo, JSON editor, link). */
+  /** Replaces the whole spec (demo, JSON editor, link); one step of the undo history. */
   replaceSpec(spec: SpecJson): void {
+    this.remember();
+    this.lastEdit = null;
     this.spec = spec;
     this.fieldErrors = {};
     this.specRevision++;
@@ -220,8 +334,19 @@ export class Session {
     this.checkTimer = null;
     const seq = ++this.checkSeq;
     const spec = this.spec;
-    const check = await this.client.checkSpec($state.snapshot(spec));
-    if (seq === this.checkSeq) this.check = check;
+    let check = await this.client.checkSpec($state.snapshot(spec));
+    let warnings: FieldNoteText[] = [];
+    if (check.ok) {
+      // What the core cannot compute never reaches it: the spec counts as invalid.
+      const limits = specLimits(check.problem, this.settings.export?.sampleRate ?? DEFAULT_SAMPLE_RATE);
+      warnings = limits.warnings;
+      const refusal = limits.refusals[0];
+      if (refusal) check = { ok: false, error: { name: 'SpecError', message: refusal.message, field: refusal.field } };
+    }
+    if (seq === this.checkSeq) {
+      this.check = check;
+      this.warnings = warnings;
+    }
     return check;
   }
 
@@ -232,11 +357,37 @@ export class Session {
     this.changed();
   }
 
-  /** Forgets a pulse. */
-  removePulse(id: string): void {
-    this.pulses = this.pulses.filter((p) => p.id !== id);
-    if (this.selectedId === id) this.selectedId = this.pulses.at(-1)?.id ?? null;
+  /** Replaces some fields of a pulse entry (its figures, once known). */
+  updatePulse(id: string, patch: Partial<Omit<PulseEntry, 'id'>>): void {
+    this.pulses = this.pulses.map((p) => (p.id === id ? { ...p, ...patch } : p));
     this.changed();
+  }
+
+  /** Forgets a pulse; the notice offers to bring it back where it was. */
+  removePulse(id: string): void {
+    const index = this.pulses.findIndex((p) => p.id === id);
+    if (index < 0) return;
+    const entry = this.pulses[index];
+    const wasSelected = this.selectedId === id;
+    this.pulses = this.pulses.filter((p) => p.id !== id);
+    if (wasSelected) this.selectedId = this.pulses.at(-1)?.id ?? null;
+    this.changed();
+    this.notice = {
+      kind: 'info',
+      text: `Removed ${entry.label}.`,
+      action: {
+        label: 'Undo',
+        run: () => {
+          if (this.pulses.some((p) => p.id === entry.id)) return;
+          const pulses = [...this.pulses];
+          pulses.splice(Math.min(index, pulses.length), 0, entry);
+          this.pulses = pulses;
+          if (wasSelected) this.selectedId = entry.id;
+          this.notice = { kind: 'info', text: `${entry.label} is back.` };
+          this.changed();
+        },
+      },
+    };
   }
 
   /** Shows a pulse in the analysis views. */
@@ -259,31 +410,57 @@ export class Session {
 
   /** Opens a pulse file's text; a malformed file is refused with its reason and changes nothing. */
   async openPulseText(fileName: string, text: string): Promise<boolean> {
-    let pulse: Pulse;
+    return this.openPulse(fileName, async () => {
+      const pulse = await this.client.readPulse(text);
+      if (!this.problem) return { pulse };
+      const evaluation = await this.client.evaluate($state.snapshot(this.spec), pulse).catch(() => undefined);
+      return { pulse, ...(evaluation ? { evaluation } : {}) };
+    });
+  }
+
+  /** Opens a pulse file: read, checked and evaluated in the worker, its progress in `opening`; a malformed file changes nothing. */
+  async openPulseFile(file: File): Promise<boolean> {
+    this.opening = { name: file.name, bytes: file.size, fraction: 0, stage: 'reading' };
     try {
-      pulse = await this.client.readPulse(text);
+      const spec = this.problem ? $state.snapshot(this.spec) : undefined;
+      return await this.openPulse(file.name, () =>
+        this.client.readPulseFile(
+          file,
+          (fraction, stage) => {
+            if (this.opening?.name === file.name) this.opening = { ...this.opening, fraction, stage };
+          },
+          spec,
+        ),
+      );
+    } finally {
+      this.opening = null;
+    }
+  }
+
+  private async openPulse(fileName: string, read: () => Promise<{ pulse: Pulse; evaluation?: Evaluation }>): Promise<boolean> {
+    let pulse: Pulse;
+    let evaluation: Evaluation | undefined;
+    try {
+      ({ pulse, evaluation } = await read());
     } catch (error) {
       this.notice = { kind: 'error', text: `${fileName} was not opened: ${(error as Error).message}` };
       return false;
     }
     const entry: PulseEntry = { id: newPulseId('file'), label: fileName, pulse };
-    if (this.problem) {
-      const evaluation = await this.client.evaluate($state.snapshot(this.spec), pulse).catch(() => undefined);
-      if (evaluation) entry.evaluation = { meanInfidelity: evaluation.meanInfidelity, worstInfidelity: evaluation.worstInfidelity };
-    }
+    if (evaluation) entry.evaluation = { meanInfidelity: evaluation.meanInfidelity, worstInfidelity: evaluation.worstInfidelity };
     this.addPulse(entry);
     this.notice = { kind: 'info', text: `Opened ${fileName}: ${pulse.i.length} samples.` };
     return true;
   }
 
-  /** The session as a project. */
-  toProject(): Project {
+  /** The session as a project; `typed` keeps the samples as typed arrays (for the browser's store, not for a file). */
+  toProject(typed = false): Project {
     return {
       format: PROJECT_FORMAT,
       version: PROJECT_VERSION,
       savedAt: isoTimestamp(Date.now()),
       spec: $state.snapshot(this.spec) as Record<string, unknown>,
-      pulses: this.pulses.map(storedPulse),
+      pulses: this.pulses.map((p) => storedPulse(p, typed)),
       settings: { ...$state.snapshot(this.settings), view: this.view, selectedPulse: this.selectedId } as ViewSettings,
     };
   }
@@ -299,9 +476,27 @@ export class Session {
       const project = parseProject(text);
       // Pulses go through the library's own reader before anything is replaced.
       await Promise.all(project.pulses.map((p) => this.client.readPulse(JSON.stringify({ dt: p.dt, i: p.i, q: p.q, metadata: p.metadata }))));
+      const before = { spec: this.spec, pulses: this.pulses, selectedId: this.selectedId, settings: this.settings, view: this.view };
+      this.remember();
       await this.apply(project);
       await this.validate();
-      this.notice = { kind: 'info', text: `Opened project ${fileName}.` };
+      this.notice = {
+        kind: 'info',
+        text: `Opened project ${fileName}.`,
+        action: {
+          label: 'Undo',
+          run: () => {
+            this.remember();
+            this.restore(before.spec);
+            this.pulses = before.pulses;
+            this.selectedId = before.selectedId;
+            this.settings = before.settings;
+            this.view = before.view;
+            this.notice = { kind: 'info', text: `Back to the session before ${fileName} was opened.` };
+            this.changed();
+          },
+        },
+      };
       return true;
     } catch (error) {
       const reason = error instanceof ProjectFormatError || (error as Error).name === 'PulseFormatError' ? (error as Error).message : String(error);
@@ -347,7 +542,7 @@ export class Session {
     this.saveTimer = null;
     if (!this.storage) return;
     try {
-      await this.storage.save(this.toProject());
+      await this.storage.save(this.toProject(true));
       this.saveError = null;
     } catch (error) {
       this.saveError = (error as Error).message;
