@@ -2,7 +2,7 @@
 // and the view settings. Read strictly, whole or not at all, so that a malformed file
 // changes nothing; pulses are checked again by the library's pulse reader on opening.
 import { MAX_AXIS_POINTS } from '../core/grid.ts';
-import type { Evaluation } from '../core/types.ts';
+import type { Evaluation, StopReason } from '../core/types.ts';
 import { RESAMPLE_METHODS, UPCONVERSIONS, WAVEFORM_FORMATS } from '../io/export/index.ts';
 import type { ExportForm } from './export-form.ts';
 import type { RunHistory } from './run-history.ts';
@@ -122,7 +122,12 @@ function readPulseEntry(value: unknown, k: number): StoredPulse {
   return { id: obj.id, label: obj.label, dt, i, q, metadata, ...(evaluation ? { evaluation } : {}), ...(history ? { history } : {}) };
 }
 
-const STOP_REASONS = ['target-reached', 'gradient-tolerance', 'max-iterations', 'time-limit', 'stopped', 'line-search-failed'] as const;
+/** Every reason a start can end with (StopReason of src/core/types.ts; the check below keeps the two lists equal). */
+const STOP_REASONS = ['target-reached', 'gradient-tolerance', 'max-iterations', 'time-limit', 'stopped', 'line-search-failed', 'stalled', 'pruned'] as const satisfies readonly StopReason[];
+// A reason added to StopReason and not here fails to compile.
+type MissingStopReason = Exclude<StopReason, (typeof STOP_REASONS)[number]>;
+const noMissingStopReason: [MissingStopReason] extends [never] ? true : never = true;
+void noMissingStopReason;
 
 function numbers(value: unknown, where: string): number[] {
   if (!Array.isArray(value)) fail(where, value, 'expected a list of numbers');
