@@ -10,6 +10,7 @@ import { design, evaluateMembers, robustnessMap } from '../src/core/api.ts';
 import { createBlock, freeBlock, setSamples } from '../src/core/block.ts';
 import { encodeMembers } from '../src/core/encode.ts';
 import { prepareGradientJob } from '../src/core/gradient.ts';
+import { heldSpectrum } from '../src/core/spectrum.ts';
 import { calibrateDrag } from '../src/core/drag.ts';
 import { asLadderMembers } from '../src/core/ladder.ts';
 import { parseLadderSpec } from '../src/core/spec-system.ts';
@@ -159,6 +160,17 @@ for (const [side, segments, reps] of [[101, 200, 15], [201, 200, 5], [401, 1000,
   log(`${`${side} x ${side}`.padEnd(11)} ${String(segments).padStart(8)}   ${ms.toFixed(2).padStart(8)}   ${row.nsPerMemberSegment.toFixed(2)}`);
 }
 
+// 2b. The held pulse's spectrum (plain TypeScript, run in the app's analysis worker).
+log('\nspectrum of the held pulse (FFT; span ±40 MHz, 1601 points), medians');
+log('samples     ms');
+const spectrum: { samples: number; ms: number }[] = [];
+for (const [samples, reps] of [[1000, 15], [100_000, 3]] as const) {
+  const pulse = smoothPulse(samples, 1e-9 * samples, 1e7);
+  const ms = median(() => void heldSpectrum(pulse, { min: -4e7, max: 4e7, points: 1601, levels: [-3, -20] }), reps, 1);
+  spectrum.push({ samples, ms });
+  log(`${String(samples).padStart(7)}  ${ms.toFixed(1).padStart(7)}`);
+}
+
 // 3. Accuracy of the series sine/cosine of the kernels against the exact oracle.
 const accuracyPulse = smoothPulse(200, 4e-7, 1e7);
 const accuracyMembers = gridMembers(121);
@@ -270,5 +282,5 @@ if (!process.argv.includes('--no-app')) {
 }
 
 if (json) {
-  process.stdout.write(JSON.stringify({ objectiveGradient, ladder, dragCalibration, design: designs, maps, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs }, line: { maps: lineMaps, crossover, designs: lineDesigns }, command, batch, app }) + '\n');
+  process.stdout.write(JSON.stringify({ objectiveGradient, ladder, dragCalibration, design: designs, maps, spectrum, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs }, line: { maps: lineMaps, crossover, designs: lineDesigns }, command, batch, app }) + '\n');
 }

@@ -25,6 +25,19 @@ export class Convergence {
   /** Reports taken in (counts every point, thinned or not). */
   received = 0;
 
+  /** A record rebuilt from kept curves (a restored run), each curve's last point as its newest report. */
+  static fromCurves(curves: readonly { start: number; iteration: number[]; meanInfidelity: number[] }[]): Convergence {
+    const record = new Convergence();
+    for (const c of curves) {
+      if (c.iteration.length === 0) continue;
+      const last = c.iteration.length - 1;
+      const latest: ProgressPoint = { start: c.start, iteration: c.iteration[last], meanInfidelity: c.meanInfidelity[last], objective: c.meanInfidelity[last], gradientNorm: NaN, elapsedS: NaN };
+      record.byStart.set(c.start, { start: c.start, iteration: [...c.iteration], meanInfidelity: [...c.meanInfidelity], latest, stride: 1, tail: false });
+      record.received += c.iteration.length;
+    }
+    return record;
+  }
+
   /** Adds reports from any workers, in the order they arrived. */
   add(points: readonly ProgressPoint[]): void {
     for (const point of points) {

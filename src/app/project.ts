@@ -2,9 +2,10 @@
 // and the view settings. Read strictly, whole or not at all, so that a malformed file
 // changes nothing; pulses are checked again by the library's pulse reader on opening.
 import { MAX_AXIS_POINTS } from '../core/grid.ts';
-import type { Evaluation } from '../core/types.ts';
+import type { Evaluation, StopReason } from '../core/types.ts';
 import { RESAMPLE_METHODS, UPCONVERSIONS, WAVEFORM_FORMATS } from '../io/export/index.ts';
 import type { ExportForm } from './export-form.ts';
+import type { RunHistory } from './run-history.ts';
 
 /** The `format` name of a project file. */
 export const PROJECT_FORMAT = 'gatesmith.project';
@@ -26,6 +27,8 @@ export interface StoredPulse {
   q: number[] | Float64Array;
   metadata: Record<string, unknown>;
   evaluation?: Pick<Evaluation, 'meanInfidelity' | 'worstInfidelity'>;
+  /** The design run that made it (starts table and convergence curves). */
+  history?: RunHistory;
 }
 
 /** Settings of the analysis views, kept with the project. */
@@ -35,7 +38,8 @@ export interface ViewSettings {
   /** The robustness and comparison region; it follows the spec's ensemble unless `byHand` (set from the map's fields). */
   map: { detuning: { min: number; max: number; points: number }; amplitudeError: { min: number; max: number; points: number }; threshold: number; byHand?: boolean };
   compare: { composites: string[] };
-  bloch: { from: string; member: number };
+  /** Which members the Bloch view draws: one (`member`, -1 for no error), all, or a chosen few (`chosen`). */
+  bloch: { from: string; member: number; show?: 'one' | 'all' | 'chosen'; chosen?: number[] };
   /** The export panel's form, once edited (until then it follows the spec and the pulse). */
   export?: ExportForm;
 }
@@ -114,7 +118,49 @@ function readPulseEntry(value: unknown, k: number): StoredPulse {
     const e = record(obj.evaluation, `${where}.evaluation`);
     evaluation = { meanInfidelity: finite(e.meanInfidelity, `${where}.evaluation.meanInfidelity`), worstInfidelity: finite(e.worstInfidelity, `${where}.evaluation.worstInfidelity`) };
   }
-  return { id: obj.id, label: obj.label, dt, i, q, metadata, ...(evaluation ? { evaluation } : {}) };
+  const history = obj.history === undefined ? undefined : readHistory(obj.history, `${where}.history`);
+  return { id: obj.id, label: obj.label, dt, i, q, metadata, ...(evaluation ? { evaluation } : {}), ...(history ? { history } : {}) };
+}
+
+/** Every reason a start can end with (StopReason of src/core/types.ts; the check below keeps the two lists equal). */
+const STOP_REASONS = ['target-reached', 'gradient-tolerance', 'max-iterations', 'time-limit', 'stopped', 'line-search-failed', 'stalled', 'pruned'] as const satisfies readonly StopReason[];
+// A reason added to StopReason and not here fails to compile.
+type MissingStopReason = Exclude<StopReason, (typeof STOP_REASONS)[number]>;
+const noMissingStopReason: [MissingStopReason] extends [never] ? true : never = true;
+void noMissingStopReason;
+
+function numbers(value: unknown, where: string): number[] {
+  if (!Array.isArray(value)) fail(where, value, 'expected a list of numbers');
+  value.forEach((x, k) => finite(x, `${where}[${k}]`));
+  return value as number[];
+}
+
+function readHistory(value: unknown, where: string): RunHistory {
+  const obj = record(value, where);
+  if (!Array.isArray(obj.starts)) fail(`${where}.starts`, obj.starts, 'expected a list of starts');
+  if (!Array.isArray(obj.curves)) fail(`${where}.curves`, obj.curves, 'expected a list of curves');
+  const whole = (x: unknown, at: string) => finite(x, at, (v) => Number.isInteger(v) && v >= 0, 'a whole number');
+  const starts = obj.starts.map((row, k) => {
+    const r = record(row, `${where}.starts[${k}]`);
+    const at = `${where}.starts[${k}]`;
+    return {
+      start: whole(r.start, `${at}.start`),
+      meanInfidelity: finite(r.meanInfidelity, `${at}.meanInfidelity`),
+      iterations: whole(r.iterations, `${at}.iterations`),
+      stopReason: oneOf(r.stopReason, `${at}.stopReason`, STOP_REASONS),
+      elapsedS: finite(r.elapsedS, `${at}.elapsedS`),
+    };
+  });
+  const curves = obj.curves.map((curve, k) => {
+    const c = record(curve, `${where}.curves[${k}]`);
+    const at = `${where}.curves[${k}]`;
+    const iteration = numbers(c.iteration, `${at}.iteration`);
+    const meanInfidelity = numbers(c.meanInfidelity, `${at}.meanInfidelity`);
+    if (iteration.length !== meanInfidelity.length) fail(`${at}.meanInfidelity`, `${meanInfidelity.length} values`, `expected one per iteration (${iteration.length})`);
+    return { start: whole(c.start, `${at}.start`), iteration, meanInfidelity };
+  });
+  if (typeof obj.stopped !== 'boolean') fail(`${where}.stopped`, obj.stopped, 'expected true or false');
+  return { starts, best: whole(obj.best, `${where}.best`), stopped: obj.stopped, elapsedS: finite(obj.elapsedS, `${where}.elapsedS`), curves };
 }
 
 function oneOf<T>(value: unknown, where: string, allowed: readonly T[]): T {
@@ -178,7 +224,14 @@ function readSettings(value: unknown): ViewSettings {
       ...(map.byHand === true ? { byHand: true } : {}),
     },
     compare: { composites: composites as string[] },
-    bloch: { from: bloch.from as string, member: finite(bloch.member, 'settings.bloch.member', Number.isInteger, 'a member index (-1: no error)') },
+    bloch: {
+      from: bloch.from as string,
+      member: finite(bloch.member, 'settings.bloch.member', Number.isInteger, 'a member index (-1: no error)'),
+      ...(bloch.show !== undefined ? { show: oneOf(bloch.show, 'settings.bloch.show', ['one', 'all', 'chosen'] as const) } : {}),
+      ...(bloch.chosen !== undefined
+        ? { chosen: numbers(bloch.chosen, 'settings.bloch.chosen').map((x, k) => finite(x, `settings.bloch.chosen[${k}]`, (v) => Number.isInteger(v) && v >= 0, 'a member index')) }
+        : {}),
+    },
     ...(obj.export !== undefined ? { export: readExportForm(obj.export) } : {}),
   };
 }

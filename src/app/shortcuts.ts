@@ -2,7 +2,7 @@
 import { VIEWS, type ViewId } from './state/session.svelte.ts';
 
 /** What a shortcut does. */
-export type Action = { kind: 'run' } | { kind: 'stop' } | { kind: 'view'; view: ViewId } | { kind: 'save' } | { kind: 'open' } | { kind: 'undo' } | { kind: 'redo' };
+export type Action = { kind: 'run' } | { kind: 'stop' } | { kind: 'view'; view: ViewId } | { kind: 'save' } | { kind: 'open' } | { kind: 'undo' } | { kind: 'redo' } | { kind: 'docs' };
 
 /** A shortcut as listed on the page. */
 export interface Shortcut {
@@ -14,10 +14,11 @@ export interface Shortcut {
 export const SHORTCUTS: Shortcut[] = [
   { keys: 'Ctrl+Enter', what: 'run' },
   { keys: 'Esc', what: 'stop' },
-  { keys: 'Alt+1 … Alt+6', what: VIEWS.map((v) => v.title.toLowerCase()).join(', ') },
+  { keys: `Alt+1 … Alt+${VIEWS.length}`, what: VIEWS.map((v) => v.title.toLowerCase()).join(', ') },
   { keys: 'Ctrl+S', what: 'save project' },
   { keys: 'Ctrl+O', what: 'open project' },
   { keys: 'Ctrl+Z / Ctrl+Shift+Z', what: 'undo / redo a spec edit' },
+  { keys: 'F1', what: 'documentation (at the field in focus)' },
 ];
 
 /** The action of a key press, or null (Cmd counts as Ctrl on a Mac). */
@@ -25,6 +26,7 @@ export function actionFor(event: Pick<KeyboardEvent, 'key' | 'code' | 'ctrlKey' 
   const ctrl = event.ctrlKey || event.metaKey;
   if (ctrl && event.key === 'Enter') return { kind: 'run' };
   if (event.key === 'Escape') return { kind: 'stop' };
+  if (event.key === 'F1') return { kind: 'docs' };
   if (ctrl && !event.altKey && event.key.toLowerCase() === 's') return { kind: 'save' };
   if (ctrl && !event.altKey && event.key.toLowerCase() === 'o') return { kind: 'open' };
   if (ctrl && !event.altKey && event.key.toLowerCase() === 'z') return { kind: event.shiftKey ? 'redo' : 'undo' };

@@ -13,6 +13,7 @@ import type {
   CoreInfo,
   CoreService,
   Cuts,
+  EnsemblePaths,
   ExportFileOptions,
   ExportJudge,
   ExportPreview,
@@ -26,6 +27,8 @@ import type {
   ShortestRequest,
   SpecCheck,
   TrialSink,
+  Spectrum,
+  SpectrumRequest,
 } from './protocol.ts';
 
 /** A merged design: the best start over every worker, and whether Stop ended it. */
@@ -387,6 +390,16 @@ export class CoreClient {
   /** The drive the qubit sees through the line. */
   drive(pulse: Pulse, line?: Line): Promise<QubitDrive> {
     return this.analysis.drive(pulse, line);
+  }
+
+  /** Bloch paths of several members, each thinned to at most `maxPoints` points. */
+  ensembleTrajectories(pulse: Pulse, members: Member[], from: Vec3, maxPoints = 600, line?: Line): Promise<EnsemblePaths> {
+    return this.analysis.ensembleTrajectories(pulse, members, from, maxPoints, line);
+  }
+
+  /** The held pulse's spectrum over a span of detunings, computed in the analysis worker. */
+  spectrum(pulse: Pulse, request: SpectrumRequest): Promise<Spectrum> {
+    return this.analysis.spectrum(pulse, request);
   }
 
   /** Reads a pulse file (rejects with a PulseFormatError named error when malformed). */

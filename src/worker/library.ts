@@ -6,6 +6,7 @@ import { dragFamily } from '../core/drag-family.ts';
 import { ladderPopulations } from '../core/ladder.ts';
 import { qubitDrive } from '../core/line.ts';
 import { cuts } from '../core/robustness.ts';
+import { heldSpectrum } from '../core/spectrum.ts';
 import { parseSpec } from '../core/spec.ts';
 import { rectangularTime, shortestDuration } from '../core/shortest.ts';
 import { readPulse, writePulse } from '../io/pulse.ts';
@@ -27,6 +28,7 @@ export const library: CoreLibrary = {
     const values = ladderPopulations(drive, { ...member, anharmonicityError: member.anharmonicityError ?? 0 }, system, from);
     return { levels: system.levels, dt: drive.dt, startS: drive.startS, values };
   },
+  heldSpectrum,
   qubitDrive: (pulse, line) => qubitDrive(pulse, line),
   compare,
   cuts,

@@ -7,6 +7,9 @@ import type { CompareRow, NamedPulse } from '../core/compare.ts';
 import type { DurationTrial, ShortestResult } from '../core/shortest.ts';
 import type { Cuts } from '../core/robustness.ts';
 import type { EncodedWaveform, ExportReport, SampleUnits, WaveformFormat } from '../io/export/index.ts';
+import type { Spectrum, SpectrumRequest } from '../core/spectrum.ts';
+
+export type { Spectrum, SpectrumRequest };
 
 /** An error as it survives the boundary: its class name, message and, for a SpecError, the field. */
 export interface ErrorInfo {
@@ -137,6 +140,16 @@ export type ShortestOutcome = Omit<ShortestResult, 'design'>;
 
 export type { DurationTrial } from '../core/shortest.ts';
 
+/** Bloch paths of several members, each thinned to at most a given number of points. */
+export interface EnsemblePaths {
+  /** Every member's path one after the other, 3 values per point. */
+  paths: Float64Array;
+  /** Points in each member's path (the start, then samples at even steps, the end always kept). */
+  pointsPerPath: number;
+  /** Index of the step (sample, or fine step through a line) after which each point lies (0 for the start). */
+  sampleIndex: Int32Array;
+}
+
 /** The API the worker exposes; every method is one job. */
 export interface CoreService {
   /** Loads the core (once) and lists what it can build. */
@@ -161,6 +174,10 @@ export interface CoreService {
   trajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line, system?: LadderSystem): Promise<Float64Array>;
   /** Population of every level after each sample of the drive through the line, for one member. */
   populations(pulse: Pulse, member: Member, system: LadderSystem, from: Vec3, line?: Line): Promise<Populations>;
+  /** Bloch paths of several members from one initial state (through the line when given), thinned to at most `maxPoints` points each. */
+  ensembleTrajectories(pulse: Pulse, members: Member[], from: Vec3, maxPoints: number, line?: Line): Promise<EnsemblePaths>;
+  /** |X(D)| of the held pulse over a span of detunings (src/core/spectrum.ts). */
+  spectrum(pulse: Pulse, request: SpectrumRequest): Promise<Spectrum>;
   /** The drive the qubit sees when the pulse is played through the line (the one library function, qubitDrive). */
   drive(pulse: Pulse, line?: Line): Promise<QubitDrive>;
   /** Reads a pulse file's text (PulseFormatError when malformed). */

@@ -3,6 +3,7 @@
 // MessageChannel in one realm, exactly as the worker does across threads.
 import type { DesignOptions, RobustnessMap } from '../core/api.ts';
 import type { ShortestOptions, ShortestResult } from '../core/shortest.ts';
+import type { Spectrum, SpectrumRequest } from '../core/spectrum.ts';
 import type { CompareOptions, Comparison, NamedPulse } from '../core/compare.ts';
 import type { Cuts } from '../core/robustness.ts';
 import type { QubitDrive } from '../core/line.ts';
@@ -13,6 +14,7 @@ import type {
   CoreService,
   ExportPreview,
   CompositeChoice,
+  EnsemblePaths,
   ErrorInfo,
   LivePulse,
   MapResult,
@@ -41,6 +43,8 @@ export interface CoreLibrary {
   populations(pulse: Pulse, member: Member, system: LadderSystem, from: Vec3, line?: Line): Populations;
   /** The drive the qubit sees through a line (the pulse itself without one). */
   qubitDrive(pulse: Pulse, line: Line | undefined): QubitDrive;
+  /** |X(D)| of the held pulse over a span of detunings. */
+  heldSpectrum(pulse: Pulse, request: SpectrumRequest): Spectrum;
   /** Pulses and composite sequences judged on one spec, best first (what `gatesmith compare` prints). */
   compare(spec: unknown, pulses: readonly NamedPulse[], options?: CompareOptions): Comparison;
   /** The cuts through zero error along each axis. */
@@ -96,6 +100,14 @@ class ProgressBatcher {
     // Not awaited while designing; a page that has gone away must not fail the design.
     return Promise.resolve(this.sink(batch)).catch(() => undefined);
   }
+}
+
+/** Sample indices kept when a path of n samples is drawn with at most `maxPoints` points: 0, even steps, n. */
+export function thinnedIndices(samples: number, maxPoints: number): Int32Array {
+  const count = Math.max(2, Math.min(samples + 1, Math.floor(maxPoints)));
+  const out = new Int32Array(count);
+  for (let k = 0; k < count; k++) out[k] = Math.round((k * samples) / (count - 1));
+  return out;
 }
 
 /** Fraction of a file read between two progress reports. */
@@ -247,6 +259,30 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
 
     drive(pulse, line) {
       return withCore(() => moved(library.qubitDrive(pulse, line)));
+    },
+
+    ensembleTrajectories(pulse, members, from, maxPoints, line) {
+      return withCore((): EnsemblePaths => {
+        // Through a line the path has a point per fine step, not per sample: thin by its own length.
+        let keep: Int32Array | null = null;
+        let paths = new Float64Array(0);
+        members.forEach((member, m) => {
+          const path = library.blochTrajectory(pulse, member, from, line);
+          if (!keep) {
+            keep = thinnedIndices(path.length / 3 - 1, maxPoints);
+            paths = new Float64Array(3 * keep.length * members.length);
+          }
+          const kept = keep;
+          kept.forEach((k, p) => paths.set(path.subarray(3 * k, 3 * k + 3), 3 * (m * kept.length + p)));
+        });
+        const sampleIndex = keep ?? new Int32Array(0);
+        return moved({ paths, pointsPerPath: sampleIndex.length, sampleIndex });
+      });
+    },
+
+    spectrum(pulse, request) {
+      // Pure TypeScript (no core), but long for big pulses: it runs here, off the page's thread.
+      return Promise.resolve().then(() => moved(library.heldSpectrum(pulse, request)));
     },
 
     readPulse(text) {

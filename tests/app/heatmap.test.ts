@@ -93,3 +93,28 @@ describe('ticks', () => {
     expect(ticks(1, 1)).toEqual([1]);
   });
 });
+
+describe('ratio of two maps', () => {
+  it('is a / b cell by cell, symmetric in decades, and white where the two are equal', async () => {
+    const { ratioGrid, ratioSpan, renderRatioPixels, divergingColour } = await import('../../src/app/plot/ratio.ts');
+    const a = { nx: 2, ny: 2, values: [1e-6, 1e-3, 1e-4, NaN] };
+    const b = { nx: 2, ny: 2, values: [1e-3, 1e-3, 1e-6, 1e-2] };
+    const r = ratioGrid(a, b);
+    // 10^(log10 a - log10 b): the decades subtract (a property of logarithms).
+    expect(r.values[0]).toBeCloseTo(1e-3, 15);
+    expect(r.values[1]).toBe(1);
+    expect(r.values[2]).toBeCloseTo(100, 9);
+    expect(r.values[3]).toBeNaN();
+    expect(ratioSpan(r.values)).toBe(3);
+    // The middle of RdBu is its neutral class #f7f7f7; the ends are its deepest blue and red.
+    expect(divergingColour(0.5)).toEqual([0xf7, 0xf7, 0xf7]);
+    expect(divergingColour(0)).toEqual([0x05, 0x30, 0x61]);
+    expect(divergingColour(1)).toEqual([0x67, 0x00, 0x1f]);
+    const pixels = renderRatioPixels(r, 3);
+    // Row 0 of the image is the top (second row of the grid): cell (0, 1) is a / b = 100, red side.
+    expect(pixels[0]).toBeGreaterThan(pixels[2]);
+    // The unknown cell stays transparent.
+    expect(pixels[7]).toBe(0);
+    expect(() => ratioGrid(a, { nx: 1, ny: 4, values: [1, 1, 1, 1] })).toThrow('ratioGrid: grids of 2 x 2 and 1 x 4 points differ');
+  });
+});

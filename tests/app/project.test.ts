@@ -37,6 +37,27 @@ describe('project files', () => {
     expect(back.pulses[0].i[0]).toBe(0.1 + 0.2);
   });
 
+  it('keep the run that made a pulse (its starts and convergence curves), and refuse a broken one by its place', () => {
+    const original = project();
+    original.pulses[0].history = {
+      starts: [
+        { start: 0, meanInfidelity: 5.6e-4, iterations: 306, stopReason: 'gradient-tolerance', elapsedS: 0.024 },
+        { start: 1, meanInfidelity: 3.2e-4, iterations: 2000, stopReason: 'max-iterations', elapsedS: 0.146 },
+      ],
+      best: 1,
+      stopped: false,
+      elapsedS: 0.5,
+      curves: [{ start: 0, iteration: [0, 1, 306], meanInfidelity: [0.9, 0.5, 5.6e-4] }, { start: 1, iteration: [0, 2000], meanInfidelity: [0.7, 3.2e-4] }],
+    };
+    expect(parseProject(projectText(original))).toEqual(original);
+    const broken = structuredClone(original);
+    (broken.pulses[0].history!.curves[1].meanInfidelity as unknown[]).pop();
+    expect(() => parseProject(broken)).toThrow('project file: "pulses[0].history.curves[1].meanInfidelity" is "1 values"; expected one per iteration (2)');
+    const reason = structuredClone(original);
+    (reason.pulses[0].history!.starts[0] as { stopReason: string }).stopReason = 'tired';
+    expect(() => parseProject(reason)).toThrow(/"pulses\[0\].history.starts\[0\].stopReason" is "tired"/);
+  });
+
   it('accept the stored object itself (the autosave)', () => {
     expect(parseProject(structuredClone(project())).settings.view).toBe('robustness');
   });

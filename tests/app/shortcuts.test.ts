@@ -18,6 +18,7 @@ describe('shortcuts', () => {
     expect(actionFor(key('Enter', { ctrlKey: true }))).toEqual({ kind: 'run' });
     expect(actionFor(key('Enter', { metaKey: true }))).toEqual({ kind: 'run' });
     expect(actionFor(key('Escape'))).toEqual({ kind: 'stop' });
+    expect(actionFor(key('F1'))).toEqual({ kind: 'docs' });
     expect(actionFor(key('s', { ctrlKey: true }))).toEqual({ kind: 'save' });
     expect(actionFor(key('o', { ctrlKey: true }))).toEqual({ kind: 'open' });
     expect(actionFor(key('Enter'))).toBeNull();
@@ -31,7 +32,7 @@ describe('shortcuts', () => {
   });
   it('are all listed on the page', () => {
     const listed = SHORTCUTS.map((s) => s.keys).join(' ');
-    for (const keys of ['Ctrl+Enter', 'Esc', 'Alt+1', 'Alt+6', 'Ctrl+S', 'Ctrl+O']) expect(listed).toContain(keys);
+    for (const keys of ['Ctrl+Enter', 'Esc', 'Alt+1', `Alt+${VIEWS.length}`, 'Ctrl+S', 'Ctrl+O', 'F1']) expect(listed).toContain(keys);
     expect(SHORTCUTS.find((s) => s.keys.startsWith('Alt'))?.what).toContain('robustness');
   });
 });

@@ -8,6 +8,7 @@ import { parseSpec } from '../../src/core/spec.ts';
 import type { Pulse, Target } from '../../src/core/types.ts';
 import { demoSpec } from '../../src/app/demo.ts';
 import { library } from '../../src/worker/library.ts';
+import { thinnedIndices } from '../../src/worker/service.ts';
 import type { CoreService, ProgressBatch } from '../../src/worker/protocol.ts';
 import { closePorts, serviceEndpoint } from './in-realm.ts';
 
@@ -169,6 +170,34 @@ describe('worker service over a MessageChannel', () => {
     // Half way (sample 5) the vector is at 45 degrees: (0, -sin 45, cos 45).
     expect(path[16]).toBeCloseTo(-Math.SQRT1_2, 12);
     expect(path[17]).toBeCloseTo(Math.SQRT1_2, 12);
+  });
+
+  it('gives the paths of several members in one job, thinned but ending where the full path ends', async () => {
+    const pulse = rectangular(Math.PI / 2, 1e7, 10);
+    const members = [
+      { detuning: 0, amplitudeError: 0, weight: 1 },
+      { detuning: 2e6, amplitudeError: 0.1, weight: 1 },
+    ];
+    const result = await core.ensembleTrajectories(pulse, members, [0, 0, 1], 4);
+    expect(result.pointsPerPath).toBe(4);
+    expect(Array.from(result.sampleIndex)).toEqual([0, 3, 7, 10]);
+    for (const [m, member] of members.entries()) {
+      const full = library.blochTrajectory(pulse, member, [0, 0, 1]);
+      for (const [p, k] of Array.from(result.sampleIndex).entries()) {
+        // The same numbers as the library's own path at those samples.
+        expect(Array.from(result.paths.subarray(3 * (m * 4 + p), 3 * (m * 4 + p) + 3))).toEqual(Array.from(full.subarray(3 * k, 3 * k + 3)));
+      }
+    }
+    expect(thinnedIndices(3, 600)).toEqual(Int32Array.from([0, 1, 2, 3]));
+  });
+
+  it('computes the spectrum in the worker: a rectangle gives A T at zero detuning (sinc(0) = 1)', async () => {
+    const pulse = rectangular(Math.PI / 2, 1e7, 10);
+    const spectrum = await core.spectrum(pulse, { min: -1e8, max: 1e8, points: 101 });
+    const area = pulse.i.reduce((sum, x) => sum + x * pulse.dt, 0);
+    expect(spectrum.reference).toBeCloseTo(area, 15);
+    expect(spectrum.detuning.length).toBe(101);
+    await expect(core.spectrum(pulse, { min: 1, max: 0, points: 101 })).rejects.toMatchObject({ name: 'ArgumentError' });
   });
 
   it('compares a pulse with composite sequences under the same limits', async () => {

@@ -37,8 +37,27 @@ export interface ThemeColours {
 }
 
 let cached: ThemeColours | null = null;
-// Reading computed styles forces a style pass: read them once per colour scheme, not per redraw.
-if (typeof matchMedia === 'function') matchMedia('(prefers-color-scheme: dark)').addEventListener('change', () => (cached = null));
+// Reading computed styles forces a style pass: read them once per colour scheme, not per
+// redraw. When the scheme changes, every chart on the page takes the new text and grid colours.
+if (typeof matchMedia === 'function') {
+  matchMedia('(prefers-color-scheme: dark)').addEventListener('change', () => {
+    cached = null;
+    for (const chart of Object.values(Chart.instances)) retheme(chart as Chart);
+  });
+}
+
+/** Gives a chart the theme's text, tick, grid and legend colours (series colours are set when drawn). */
+export function retheme(chart: Chart, colours = theme()): void {
+  const options = chart.options as { color?: string; scales?: Record<string, { ticks?: { color?: string }; grid?: { color?: string }; title?: { color?: string } }>; plugins?: { legend?: { labels?: { color?: string } } } };
+  options.color = colours.text;
+  for (const scale of Object.values(options.scales ?? {})) {
+    if (scale.ticks) scale.ticks.color = colours.muted;
+    if (scale.grid) scale.grid.color = colours.grid;
+    if (scale.title) scale.title.color = colours.text;
+  }
+  if (options.plugins?.legend?.labels) options.plugins.legend.labels.color = colours.text;
+  chart.update('none');
+}
 
 /** The page's theme colours as chart.js wants them. */
 export function theme(): ThemeColours {

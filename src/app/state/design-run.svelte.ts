@@ -5,8 +5,9 @@ import type { StopReason } from '../../core/types.ts';
 import { ReportedPulses, type DesignOutcome, type KeptPulse } from '../../worker/client.ts';
 import type { ProgressBatch } from '../../worker/protocol.ts';
 import { Convergence } from '../convergence.ts';
+import { runHistory, type RunHistory } from '../run-history.ts';
 import { formatClock } from '../units.ts';
-import { newPulseId, type Session } from './session.svelte.ts';
+import { newPulseId, type PulseEntry, type Session } from './session.svelte.ts';
 
 /** Where a run is. */
 export type RunStatus = 'idle' | 'running' | 'stopping' | 'done' | 'failed';
@@ -58,6 +59,10 @@ export class DesignRun {
   outcome = $state.raw<DesignOutcome | null>(null);
   error = $state<string | null>(null);
   convergence = new Convergence();
+  /** The starts table and curves of the run shown (this one's once it ends, or one restored with its pulse). */
+  history = $state.raw<RunHistory | null>(null);
+  /** The label of the pulse whose history is shown after a reload or a project, else null. */
+  restoredFrom = $state<string | null>(null);
 
   private t0 = 0;
   private timer: ReturnType<typeof setInterval> | null = null;
@@ -112,6 +117,8 @@ export class DesignRun {
     this.live = null;
     this.iteration = 0;
     this.leaderStart = null;
+    this.history = null;
+    this.restoredFrom = null;
     this.reported = new ReportedPulses();
     const id = ++this.runId;
     this.version++;
@@ -209,11 +216,13 @@ export class DesignRun {
     const name = typeof (spec as { name?: unknown }).name === 'string' ? (spec as { name: string }).name : 'design';
     const pulse = outcome.pulse;
     pulse.metadata = { ...pulse.metadata, origin: 'design', name, spec, stopped: outcome.stopped };
+    this.history = runHistory(outcome, this.convergence);
     const entry = {
       id: newPulseId('design'),
       label: `${name} #${this.runs} (${when}${outcome.stopped ? ', stopped' : ''})`,
       pulse,
       evaluation: { meanInfidelity, worstInfidelity },
+      history: this.history,
     };
     this.session.addPulse(entry);
     this.version++;
@@ -230,5 +239,24 @@ export class DesignRun {
     } catch {
       // Left unknown; the views evaluate the pulse again when they need its figures.
     }
+  }
+
+  /**
+   * Shows the history kept with a pulse (after a reload or on opening a project): the shown
+   * pulse's if it has one, else the newest designed pulse's. Nothing changes while a run goes on.
+   */
+  restore(entry: PulseEntry | null = this.session.selected?.history ? this.session.selected : ([...this.session.pulses].reverse().find((p) => p.history) ?? null)): void {
+    if (this.active || !entry?.history) return;
+    const h = entry.history;
+    this.convergence = Convergence.fromCurves(h.curves);
+    this.history = h;
+    this.restoredFrom = entry.label;
+    this.outcome = null;
+    this.leaderStart = h.best;
+    this.iteration = h.starts.reduce((sum, s) => sum + s.iterations, 0);
+    const best = h.starts.find((s) => s.start === h.best);
+    const { meanInfidelity, worstInfidelity } = entry.evaluation ?? { meanInfidelity: NaN, worstInfidelity: NaN };
+    this.live = { start: h.best, iteration: best?.iterations ?? 0, dt: entry.pulse.dt, i: entry.pulse.i, q: entry.pulse.q, meanInfidelity, worstInfidelity };
+    this.version++;
   }
 }

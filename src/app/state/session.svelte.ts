@@ -20,6 +20,7 @@ import {
   type StoredPulse,
   type ViewSettings,
 } from '../project.ts';
+import type { RunHistory } from '../run-history.ts';
 import { setAt, type SpecJson } from '../spec-edit.ts';
 import { DEFAULT_SAMPLE_RATE } from '../export-form.ts';
 import { inFormWords, specLimits, type FieldNoteText } from '../spec-limits.ts';
@@ -33,6 +34,7 @@ export const VIEWS = [
   { id: 'compare', title: 'Compare' },
   { id: 'bloch', title: 'Bloch sphere' },
   { id: 'export', title: 'Export' },
+  { id: 'spectrum', title: 'Spectrum' },
 ] as const;
 
 /** A view's id. */
@@ -44,6 +46,8 @@ export interface PulseEntry {
   label: string;
   pulse: Pulse;
   evaluation?: Pick<Evaluation, 'meanInfidelity' | 'worstInfidelity'>;
+  /** The design run that made it: starts table and convergence curves. */
+  history?: RunHistory;
 }
 
 /** Where the session is kept between visits. */
@@ -83,6 +87,7 @@ function storedPulse(entry: PulseEntry, typed: boolean): StoredPulse {
     q: typed ? entry.pulse.q : Array.from(entry.pulse.q),
     metadata: entry.pulse.metadata,
     ...(entry.evaluation ? { evaluation: { ...entry.evaluation } } : {}),
+    ...(entry.history ? { history: $state.snapshot(entry.history) as RunHistory } : {}),
   };
 }
 
@@ -107,6 +112,8 @@ export class Session {
   opening = $state.raw<{ name: string; bytes: number; fraction: number; stage: 'reading' | 'checking' | 'evaluating' } | null>(null);
   /** Set when the last autosave failed (the page says so; work stays in memory). */
   saveError = $state<string | null>(null);
+  /** Bumped whenever a saved session or project replaced the pulses (the run's history is then restored). */
+  projectRevision = $state(0);
 
   /** Earlier specs, newest last (Ctrl+Z), and undone ones, newest last (Ctrl+Shift+Z). */
   private past = $state.raw<SpecJson[]>([]);
@@ -507,11 +514,13 @@ export class Session {
       label: p.label,
       pulse: { dt: p.dt, i: Float64Array.from(p.i), q: Float64Array.from(p.q), metadata: p.metadata },
       ...(p.evaluation ? { evaluation: p.evaluation } : {}),
+      ...(p.history ? { history: p.history } : {}),
     }));
     this.selectedId = project.settings.selectedPulse ?? this.pulses.at(-1)?.id ?? null;
     const view = VIEWS.find((v) => v.id === project.settings.view);
     this.view = view ? view.id : 'design';
     this.settings = project.settings;
+    this.projectRevision++;
     this.changed();
   }
 
