@@ -15,6 +15,7 @@
 // Samples are the envelope at each sample's midpoint.
 import { ArgumentError, describeValue } from './errors.ts';
 import { evaluateLadder, type LadderEvaluation } from './ladder.ts';
+import { qubitDrive } from './line.ts';
 import { nelderMead } from './simplex.ts';
 import type { LadderSpec } from './spec-system.ts';
 import type { Pulse, Target } from './types.ts';
@@ -158,12 +159,13 @@ export function calibrateDrag(spec: LadderSpec, options: DragCalibrationOptions)
       `(its peak is ${peakAmplitude(nominal).toPrecision(3)} Hz); raise rabiMax or the duration`);
   }
   const figureOptions = { freePhaseAfter };
+  // Calibrated as the qubit sees it: through the spec's line (docs/physics.md section 5).
   const figure = (x: number[]): number => {
     const pulse = dragPulse(problem.target, limits, system.anharmonicity, parametersOf(x));
     const peak = peakAmplitude(pulse);
     // Above the limit: worse than any allowed pulse, and more so the further above.
     if (peak > problem.rabiMax) return 1 + peak / problem.rabiMax;
-    return evaluateLadder(problem.target, pulse, members, system, figureOptions).meanInfidelity;
+    return evaluateLadder(problem.target, qubitDrive(pulse, problem.line), members, system, figureOptions).meanInfidelity;
   };
   const x0 = tune.map((knob) => base[knob] / scale[knob]);
   const result = nelderMead(figure, x0, {
@@ -176,7 +178,7 @@ export function calibrateDrag(spec: LadderSpec, options: DragCalibrationOptions)
     throw new ArgumentError(`rabiMax: ${problem.rabiMax} Hz is too low for the ${options.envelope} DRAG pulse in ${problem.duration} s ` +
       `(the search found no pulse under it); raise rabiMax or the duration`);
   }
-  const evaluation = evaluateLadder(problem.target, pulse, members, system, figureOptions);
+  const evaluation = evaluateLadder(problem.target, qubitDrive(pulse, problem.line), members, system, figureOptions);
   pulse.metadata.figures = { meanInfidelity: evaluation.meanInfidelity, worstInfidelity: evaluation.worstInfidelity, meanLeakage: evaluation.meanLeakage };
   return { pulse, parameters, evaluation, evaluations: result.evaluations, atPeakLimit: peakAmplitude(pulse) > 0.999 * problem.rabiMax };
 }
