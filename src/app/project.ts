@@ -123,7 +123,7 @@ function readPulseEntry(value: unknown, k: number): StoredPulse {
 }
 
 /** Every reason a start can end with (StopReason of src/core/types.ts; the check below keeps the two lists equal). */
-const STOP_REASONS = ['target-reached', 'gradient-tolerance', 'max-iterations', 'time-limit', 'stopped', 'line-search-failed', 'stalled', 'pruned'] as const satisfies readonly StopReason[];
+const STOP_REASONS = ['target-reached', 'gradient-tolerance', 'max-iterations', 'time-limit', 'stopped', 'line-search-failed', 'stalled', 'pruned', 'outpaced'] as const satisfies readonly StopReason[];
 // A reason added to StopReason and not here fails to compile.
 type MissingStopReason = Exclude<StopReason, (typeof STOP_REASONS)[number]>;
 const noMissingStopReason: [MissingStopReason] extends [never] ? true : never = true;

@@ -2,7 +2,7 @@
 // Designs spread their starts over the pool and keep the best pulse; maps come back coarse
 // first, then at full resolution in bands computed in parallel. The only `wrap`.
 import { proxy, releaseProxy, wrap, type Endpoint, type Remote } from 'comlink';
-import { mergeDesigns, mergePruned, startsToContinue } from '../core/best-start.ts';
+import { mergeDesigns, mergePruned, prunes, Referee, startsToContinue, type Checkpoint } from '../core/best-start.ts';
 import { axisValue } from '../core/grid.ts';
 import type { QubitDrive } from '../core/line.ts';
 import type { DesignResult, Evaluation, GridAxis, LadderSystem, Line, Member, Problem, Pulse, StartResult, Target, Vec3 } from '../core/types.ts';
@@ -211,7 +211,19 @@ export class CoreClient {
       const work = (async (): Promise<DesignOutcome> => {
         // Every start to the pruning point (the whole run when the spec does not prune), then the
         // best again from their start on, as one loop and the command line's threads do.
-        const probes = await Promise.all(groups.map((group, w) => designers[w].design(spec, group, sink, livePulseEveryMs, 'probe')));
+        // A design that does not prune compares its starts across the workers (best-start.ts Referee).
+        const o = check.ok ? check.problem.optimizer : undefined;
+        const referee = o && o.outpaceEvery > 0 && !prunes(o, o.starts) ? new Referee(groups.length, o) : undefined;
+        const probes = await Promise.all(groups.map((group, w) => {
+          const judge = referee && proxy((checkpoint: Checkpoint) => referee.report(w, checkpoint));
+          return designers[w].design(spec, group, sink, livePulseEveryMs, 'probe', judge).then((share) => {
+            referee?.end(w, share.starts);
+            return share;
+          }, (error: unknown) => {
+            referee?.end(w, []);
+            throw error;
+          });
+        }));
         const keep = probes[0].keepStarts;
         const going = keep === undefined || this.stopRequested ? [] : startsToContinue(probes.flatMap((r) => r.starts), keep);
         if (going.length === 0) return { ...mergeDesigns(probes, (performance.now() - t0) / 1000), stopped: this.stopRequested };
