@@ -420,7 +420,8 @@ async function advance(problem: Problem, run: StartRun, options: DesignOptions, 
     }
     options.onProgress(progress);
   };
-  report();
+  // Iteration 0 once; a start advanced again (in step, or after the pruning point) goes on from where it was reported.
+  if (run.iterations === 0) report();
   for (;;) {
     if (run.infidelity <= optimizer.targetInfidelity) return 'target-reached';
     if (options.signal?.aborted) return 'stopped';

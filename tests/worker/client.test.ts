@@ -55,6 +55,18 @@ describe('CoreClient over MessageChannels', () => {
     for (const start of outcome.starts) expect(start.objective).toBeGreaterThanOrEqual(outcome.best.objective);
   });
 
+  it('compares the starts of both designers with each other: the starts outpaced and the pulse of one library call', async () => {
+    const spec = demoSpec();
+    spec.optimizer = { starts: 5, seed: 1, maxIterations: 800 };
+    const outcome = await client.design(spec, 5);
+    const direct = await libraryDesign(spec);
+    const shape = (starts: typeof direct.starts) => starts.map((s) => [s.start, s.stopReason, s.iterations, s.evaluations, s.objective]);
+    expect(direct.starts.some((s) => s.stopReason === 'outpaced')).toBe(true);
+    expect(shape(outcome.starts)).toEqual(shape(direct.starts));
+    expect(Array.from(outcome.pulse.i)).toEqual(Array.from(direct.pulse.i));
+    expect(Array.from(outcome.pulse.q)).toEqual(Array.from(direct.pulse.q));
+  }, 60_000);
+
   it('stops every worker and returns the best pulse so far', async () => {
     const spec = demoSpec();
     spec.segments = 1000;
