@@ -315,16 +315,18 @@ async function designInStep(
 ): Promise<void> {
   const { outpaceEvery, maxIterations } = problem.optimizer;
   const judge = options.judge ?? ((c: Checkpoint) => outpacedStarts(c.standings, c.iteration, problem.optimizer));
-  let pending = [...indices];
   for (let iteration = outpaceEvery; ; iteration += outpaceEvery) {
     const until = Math.min(iteration, maxIterations);
-    // Starts are created in the first round, unless the run was stopped or out of time (as one at a time would).
-    for (const s of pending) {
-      if (starts.length + open.length > 0 && (options.signal?.aborted || performance.now() >= deadline)) break;
-      open.push({ run: new StartRun(problem, s, undefined, s === 0 ? options.initialPulse : undefined), elapsedS: 0 });
-    }
-    pending = [];
-    for (const entry of [...open]) {
+    // The first round creates each start as it comes to it, and none once the run is
+    // stopped or out of time (as starts run one at a time would).
+    const round = iteration === outpaceEvery ? indices : [...open];
+    for (const item of round) {
+      let entry: { run: StartRun; elapsedS: number };
+      if (typeof item === 'number') {
+        if (starts.length + open.length > 0 && (options.signal?.aborted || performance.now() >= deadline)) break;
+        entry = { run: new StartRun(problem, item, undefined, item === 0 ? options.initialPulse : undefined), elapsedS: 0 };
+        open.push(entry);
+      } else entry = item;
       const tStart = performance.now();
       const reason = await advance(problem, entry.run, options, t0, deadline, until);
       entry.elapsedS += (performance.now() - tStart) / 1000;
