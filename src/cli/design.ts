@@ -169,7 +169,7 @@ function plan(
     single = estimateDesign(problem, 1, measureSecondsPerMemberSample(evaluateMembers));
   }
   const threads = requested ?? (single.seconds > 2 ? Math.max(1, Math.min(availableParallelism(), problem.optimizer.starts)) : 1);
-  return { threads, estimate: estimateDesign(problem, threads, single.secondsPerMemberSample) };
+  return { threads, estimate: estimateDesign(problem, threads, single.qubitSecondsPerMemberSample) };
 }
 
 /** The lowest-objective report among each start's latest with samples. */

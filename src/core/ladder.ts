@@ -122,3 +122,20 @@ export function ladderPopulations(pulse: Pulse, member: LadderMember, system: La
     return core.read(outPtr, (n + 1) * d);
   });
 }
+
+/**
+ * The leakage L = 1 - Tr(M^dag M)/2 of one member, from the populations kernel: the mean of
+ * what left levels 0 and 1 from |0> and from |1> (L is the same mean over any orthonormal
+ * pair of qubit states). It is the gate figures' leakage, and so the leakage map's value at
+ * that member, computed here by another kernel.
+ */
+export function ladderSubspaceLeakage(pulse: Pulse, member: LadderMember, system: LadderSystem): number {
+  const d = system.levels;
+  const leaked = (from: Vec3): number => {
+    const values = ladderPopulations(pulse, member, system, from);
+    let sum = 0;
+    for (let l = 2; l < d; l++) sum += values[values.length - d + l];
+    return sum;
+  };
+  return (leaked([0, 0, 1]) + leaked([0, 0, -1])) / 2;
+}
