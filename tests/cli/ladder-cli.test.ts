@@ -81,6 +81,17 @@ describe('the command line on a ladder spec', () => {
     expect((await run(['map', file, pulse])).stdout).toContain(`(worst member of the ensemble: detuning 0 Hz, amplitude error 0 %, ${text})`);
   });
 
+  // Source: the truncation check (docs/transmon.md): a fast X(180) made on 3 levels misses the
+  // shift of |2> by |3>; shortest's answer gets the same check and warning as design's.
+  it('shortest warns when its answer, designed on too few levels, reads otherwise on two more', async () => {
+    const three = { ...SPEC, system: { levels: 3, anharmonicity: -2.12e8 }, ensemble: undefined, optimizer: { starts: 1, seed: 1, maxIterations: 150 } };
+    const file = join(dir, 'three.json');
+    writeFileSync(file, JSON.stringify(three));
+    const r = await run(['shortest', file, '--goal-mean', '1e-3', '--min', '4e-9']);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stderr).toMatch(/warning: the shortest pulse found: on 5 levels the mean infidelity is \S+ and the mean leakage \S+, more than a factor two from .* on 3 levels/);
+  });
+
   it('compare builds the DRAG family under the spec limits, calibrated, with the values in the name', async () => {
     const out = await run(['compare', spec, pulse, '--composites', 'drag-gaussian,drag-cosine', '--json']);
     expect(out.code).toBe(0);
