@@ -56,7 +56,6 @@ fraction below the threshold and the half-widths.
 
 Example:
   gatesmith compare examples/transmon-x90.json x90.pulse.json --composites bb1,sk1,corpse
-  gatesmith compare examples/transmon-x180-fast.json x180.pulse.json --composites drag-gaussian,drag-cosine
 
 Options:
 ${optionsHelp(ARGS)}

@@ -44,11 +44,10 @@ pulse area (turns) and energy (Hz^2 s). See docs/analysis.md.
 
 On a ladder (a spec with a system of more than two levels) every point has its leakage too:
 the map file gets a leakage column (CSV) or array (JSON). One point on an axis makes the
-file a cut along the other: --amplitude 0:0:1 is the cut along detuning, with its leakage.
+file a cut along the other: --amplitude 0:0:1 gives the cut along detuning, with its leakage.
 
-Examples:
+Example:
   gatesmith map examples/transmon-x90.json x90.pulse.json --detuning -2e6:2e6:201 --out map.csv
-  gatesmith map examples/transmon-x90.json x90.pulse.json --detuning -5e7:5e7:201 --amplitude 0:0:1 --out cut.csv
 
 Options:
 ${optionsHelp(ARGS)}
