@@ -8,17 +8,22 @@
 //   opening a 62 MB pulse file.
 // Every browser step has a time limit: a step that fails or runs out of time is reported
 // as a figure (NaN, with its reason), and the benchmark goes on.
-// Usage: npm run bench:app [-- --large-only] (needs /usr/bin/chromium); `npm run bench` runs it too and
-// puts its figures under the key "app".
+// Usage: npm run bench:app [-- --large-only] [-- --attribute] (needs /usr/bin/chromium); `npm run bench`
+// runs it too and puts its figures under the key "app". With --attribute, each 100 000-sample
+// phase is traced (Chromium tracing, with the V8 sampling profiler) and every long task is
+// printed with its main-thread CPU time, the events it ran and its busiest functions.
 import type { Page } from 'playwright-core';
 import { existsSync } from 'node:fs';
 import { mkdtemp, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { basename, join } from 'node:path';
-import { CHROMIUM, skipReason, startHarness, visit, type Harness } from '../tests/e2e/harness.ts';
+import { CHROMIUM, SCREENSHOTS, skipReason, startHarness, visit, type Harness } from '../tests/e2e/harness.ts';
+import { longTasksOfTrace, TRACE_CATEGORIES, type LongTask } from './long-tasks.ts';
 
 // `--large-only`: only the 100 000-sample figures, in one page (a quick look while working on them).
 const LARGE_ONLY = process.argv.includes('--large-only');
+// `--attribute`: trace the 100 000-sample phases and say what each long task ran.
+const ATTRIBUTE = process.argv.includes('--attribute');
 const REPEATS = LARGE_ONLY ? 0 : 5;
 /** Fresh pages for the 100 000-sample figures. */
 const LARGE_REPEATS = LARGE_ONLY ? 1 : 3;
@@ -103,13 +108,13 @@ async function timedStop(page: Page): Promise<number> {
   );
 }
 
-/** Starts recording the page's long tasks (kept in the page until `longTasks` reads them). */
-async function recordLongTasks(page: Page): Promise<void> {
-  await page.evaluate(() => {
+/** Starts recording the page's long tasks (kept in the page until `longTasks` reads them); `buffered` takes those since the page loaded too. */
+async function recordLongTasks(page: Page, buffered = false): Promise<void> {
+  await page.evaluate((buffered) => {
     const w = window as unknown as { __longTasks: number[] };
     w.__longTasks = [];
-    new PerformanceObserver((list) => list.getEntries().forEach((e) => w.__longTasks.push(e.duration))).observe({ type: 'longtask', buffered: false });
-  });
+    new PerformanceObserver((list) => list.getEntries().forEach((e) => w.__longTasks.push(e.duration))).observe({ type: 'longtask', buffered });
+  }, buffered);
 }
 
 /** The long tasks recorded since `recordLongTasks` (ms), after a pause for the last ones to be reported. */
@@ -136,58 +141,96 @@ async function largePulseFile(bytes: number, dir: string): Promise<string> {
   return path;
 }
 
-/** Figures at 100 000 samples in one fresh page: Stop latency and every long task of a run, the views and a large file. */
-async function largeFigures(harness: Harness, file: string): Promise<{ stopMs: number; tasks: Array<[string, number[]]>; fileMs: number; progressShown: boolean }> {
+/** The long tasks of one phase: their durations, and what ran in them when traced. */
+interface Phase {
+  name: string;
+  tasks: number[];
+  attributed: LongTask[];
+}
+
+/** Figures at 100 000 samples in one fresh page: Stop latency and every long task of a run, the views, a reload and a large file. */
+async function largeFigures(harness: Harness, file: string): Promise<{ stopMs: number; phases: Phase[]; fileMs: number; progressShown: boolean }> {
   const { page, context } = await visit(harness);
-  const out = { stopMs: NaN, tasks: [] as Array<[string, number[]]>, fileMs: NaN, progressShown: false };
-  /** Runs a step and files the long tasks seen during it under its name. */
+  const out = { stopMs: NaN, phases: [] as Phase[], fileMs: NaN, progressShown: false };
+  /** Runs a step and files the long tasks seen during it under its name (traced with --attribute). */
   const measured = async (name: string, timeoutMs: number, body: () => Promise<void>) => {
     await recordLongTasks(page);
+    if (ATTRIBUTE) await harness.browser.startTracing(page, { categories: TRACE_CATEGORIES });
     await step(name, timeoutMs, undefined, body);
-    out.tasks.push([name, await longTasks(page)]);
+    const tasks = await longTasks(page);
+    let attributed: LongTask[] = [];
+    if (ATTRIBUTE) {
+      const trace = await harness.browser.stopTracing();
+      // Kept for a closer look (Chromium's performance panel opens it).
+      await writeFile(join(SCREENSHOTS, `trace-${name.replace(/[^\w]+/g, '-')}.json`), trace);
+      attributed = longTasksOfTrace(trace);
+    }
+    out.phases.push({ name, tasks, attributed });
+  };
+  const view = async (key: string, ready: () => Promise<unknown>) => {
+    await page.keyboard.press(key);
+    await ready();
   };
   try {
-    await step('100k: form', 60_000, undefined, async () => {
+    await measured('form to 100 000 samples', 60_000, async () => {
       await runEnabled(page);
       await setField(page, '#f-duration', '200 us');
       await setField(page, '#f-segments', String(LARGE_SAMPLES));
       await setField(page, '#f-iterations', '100000');
       await runEnabled(page);
     });
-    await recordLongTasks(page);
-    const started = await step('100k: run', 90_000, false, async () => {
+    let started = false;
+    await measured('run (design view, live)', 90_000, async () => {
       await page.getByTestId('run').click();
       await page.waitForFunction(() => document.querySelector('[data-testid=run-status]')?.textContent === 'running', undefined, { timeout: 30_000 });
       await page.waitForFunction(() => Number(document.querySelector('[data-testid=run-iteration]')?.textContent) >= 3, undefined, { timeout: 80_000 });
       await page.waitForTimeout(1500);
-      return true;
+      started = true;
     });
-    if (started) out.stopMs = await step('100k: stop', 30_000, NaN, () => timedStop(page));
-    await page.waitForTimeout(1000);
-    out.tasks.push(['run and stop', await longTasks(page)]);
-
-    await measured('waveform view', 30_000, async () => {
-      await page.keyboard.press('Alt+2');
-      await page.getByTestId('waveform-chart').waitFor({ timeout: 20_000 });
+    await measured('stop and keep the pulse', 30_000, async () => {
+      if (started) out.stopMs = await timedStop(page);
       await page.waitForTimeout(1000);
     });
-    await measured('robustness view', 120_000, async () => {
-      await page.keyboard.press('Alt+3');
-      await page.waitForFunction(() => /points in/.test(document.querySelector('[data-testid=map-status]')?.textContent ?? ''), undefined, { timeout: 110_000 });
-    });
-    await measured('Bloch view', 30_000, async () => {
-      await page.keyboard.press('Alt+5');
-      await page.getByTestId('bloch').waitFor({ timeout: 20_000 });
-      await page.waitForTimeout(1500);
-    });
-    await measured('export view', 90_000, async () => {
-      await page.keyboard.press('Alt+6');
-      await page.waitForFunction(() => ['ready', 'refused', 'invalid'].includes(document.querySelector('[data-testid=export-panel]')?.getAttribute('data-state') ?? ''), undefined, { timeout: 80_000 });
+    await measured('waveform view, amplitude, table', 30_000, async () => {
+      await view('Alt+2', () => page.getByTestId('waveform-chart').waitFor({ timeout: 20_000 }));
+      await page.waitForTimeout(800);
+      await page.locator('input[name=wf-mode][value=polar]').check();
+      await page.waitForTimeout(800);
+      await page.getByTestId('samples').locator('summary').click();
+      await page.getByTestId('samples').getByRole('button', { name: 'Last' }).click();
+      await page.waitForFunction(() => /page 1000 of 1000/.test(document.querySelector('[data-testid=samples-page]')?.textContent ?? ''), undefined, { timeout: 20_000 });
       await page.waitForTimeout(500);
     });
-    await measured('compare view', 90_000, async () => {
-      await page.keyboard.press('Alt+4');
-      await page.waitForFunction(() => document.querySelectorAll('[data-testid=compare-table] tbody tr').length > 1, undefined, { timeout: 80_000 });
+    await measured('robustness view (map)', 120_000, () =>
+      view('Alt+3', () => page.waitForFunction(() => /points in/.test(document.querySelector('[data-testid=map-status]')?.textContent ?? ''), undefined, { timeout: 110_000 })),
+    );
+    await measured('Bloch view, one member then all', 60_000, async () => {
+      await view('Alt+5', () => page.getByTestId('bloch').waitFor({ timeout: 20_000 }));
+      await page.waitForTimeout(1500);
+      await page.locator('input[name=b-show][value=all]').check();
+      await page.waitForFunction(() => Number(document.querySelector('[data-testid=bloch-facts]')?.getAttribute('data-members')) > 1, undefined, { timeout: 50_000 });
+      await page.waitForTimeout(500);
+    });
+    await measured('spectrum view', 90_000, async () => {
+      await view('Alt+7', () => page.waitForFunction(() => /0 dB =/.test(document.querySelector('[data-testid=spectrum-status]')?.textContent ?? ''), undefined, { timeout: 80_000 }));
+      await page.waitForTimeout(500);
+    });
+    await measured('export view', 90_000, async () => {
+      await view('Alt+6', () =>
+        page.waitForFunction(() => ['ready', 'refused', 'invalid'].includes(document.querySelector('[data-testid=export-panel]')?.getAttribute('data-state') ?? ''), undefined, { timeout: 80_000 }),
+      );
+      await page.waitForTimeout(500);
+    });
+    await measured('compare view', 90_000, () =>
+      view('Alt+4', () => page.waitForFunction(() => document.querySelectorAll('[data-testid=compare-table] tbody tr').length > 1, undefined, { timeout: 80_000 })),
+    );
+    await measured('reload (session restored)', 60_000, async () => {
+      // Autosaved before the reload, as on leaving the page.
+      await page.waitForTimeout(1000);
+      await page.reload();
+      await runEnabled(page);
+      await recordLongTasks(page, true);
+      await page.waitForTimeout(1500);
     });
     await measured(`${LARGE_FILE_BYTES / 1e6} MB pulse file`, 120_000, async () => {
       const t0 = await page.evaluate(() => performance.now());
@@ -289,15 +332,17 @@ export async function appBenchmark(log: (line: string) => void = console.log): P
     let largeTasks: number[] = [];
     const fileTimes: number[] = [];
     let progressShown = true;
-    const taskRows: Array<[string, number[]]> = [];
+    const phases = new Map<string, number[][]>();
+    const attributed: Array<[string, LongTask]> = [];
     for (let r = 0; r < LARGE_REPEATS; r++) {
       const large = await largeFigures(harness, file);
       largeStops.push(large.stopMs);
       fileTimes.push(large.fileMs);
       progressShown &&= large.progressShown;
-      for (const [name, values] of large.tasks) {
-        largeTasks = largeTasks.concat(values);
-        taskRows.push([`${name} (page ${r + 1})`, values]);
+      for (const phase of large.phases) {
+        largeTasks = largeTasks.concat(phase.tasks);
+        phases.set(phase.name, [...(phases.get(phase.name) ?? []), phase.tasks]);
+        for (const task of phase.attributed) attributed.push([`${phase.name} (page ${r + 1})`, task]);
       }
     }
     await rm(dir, { recursive: true, force: true });
@@ -318,7 +363,18 @@ export async function appBenchmark(log: (line: string) => void = console.log): P
     row(`open a ${LARGE_FILE_BYTES / 1e6} MB pulse file, to "Opened"`, fileTimes);
     log(`${'progress shown while the file is read'.padEnd(48)} ${progressShown ? 'yes' : 'no'}`);
     tasks(`main-thread tasks over 50 ms at ${LARGE_SAMPLES} samples`, largeTasks);
-    for (const [name, values] of taskRows) tasks(`  ${name}`, values);
+    for (const [name, pages] of phases) {
+      const all = pages.flat();
+      log(`  ${name.padEnd(46)} ${String(all.filter((t) => t > 50).length).padStart(9)}      (longest ${all.length ? Math.max(...all).toFixed(0) : 0} ms; per page: ${pages.map((p) => p.length).join(', ')})`);
+    }
+    if (ATTRIBUTE) {
+      log(`long tasks traced at ${LARGE_SAMPLES} samples (wall / main-thread CPU ms; events; functions by samples):`);
+      for (const [name, t] of attributed) {
+        log(`  ${name}: ${t.wallMs.toFixed(0)} / ${t.cpuMs.toFixed(0)} ms at ${(t.atMs / 1000).toFixed(2)} s`);
+        log(`    events: ${t.events.map(([e, ms]) => `${e} ${ms}`).join('; ')}`);
+        log(`    functions: ${t.functions.map(([f, ms]) => `${f} ${ms.toFixed(1)}`).join('; ')}`);
+      }
+    }
     log(`steps that failed or ran out of time: ${failures.length ? failures.join('; ') : 'none'}`);
     const over = longTasksMs.filter((t) => t > 50);
     return {
