@@ -512,7 +512,8 @@ export class Session {
     this.pulses = project.pulses.map((p) => ({
       id: p.id,
       label: p.label,
-      pulse: { dt: p.dt, i: Float64Array.from(p.i), q: Float64Array.from(p.q), metadata: p.metadata },
+      // Typed arrays from the browser's store are kept as they are (copying them element by element held the page).
+      pulse: { dt: p.dt, i: p.i instanceof Float64Array ? p.i : Float64Array.from(p.i), q: p.q instanceof Float64Array ? p.q : Float64Array.from(p.q), metadata: p.metadata },
       ...(p.evaluation ? { evaluation: p.evaluation } : {}),
       ...(p.history ? { history: p.history } : {}),
     }));
