@@ -17,6 +17,7 @@ import {
   specFromHash,
   specHash,
   type Project,
+  type SpecHistory,
   type StoredPulse,
   type ViewSettings,
 } from '../project.ts';
@@ -68,6 +69,9 @@ export const HISTORY_LENGTH = 100;
 /** Edits of one field closer together than this are one step of the history (typing "10 MHz" is one edit). */
 export const HISTORY_MERGE_MS = 1000;
 
+/** Most characters of spec JSON the autosave keeps of the undo history (the newest steps first). */
+export const SAVED_HISTORY_CHARS = 500_000;
+
 /** Milliseconds between the last edit and the autosave. */
 export const AUTOSAVE_DELAY_MS = 400;
 
@@ -75,6 +79,17 @@ let nextId = 1;
 /** A fresh pulse id, unique in this page. */
 export function newPulseId(prefix: string): string {
   return `${prefix}-${Date.now().toString(36)}-${(nextId++).toString(36)}`;
+}
+
+/** Characters of a spec's JSON, measured once per spec (a spec of the history never changes). */
+const specSizes = new WeakMap<SpecJson, number>();
+function specChars(spec: SpecJson): number {
+  let size = specSizes.get(spec);
+  if (size === undefined) {
+    size = JSON.stringify(spec).length;
+    specSizes.set(spec, size);
+  }
+  return size;
 }
 
 // The store keeps typed arrays (copied in one piece); a file needs plain arrays for its JSON.
@@ -226,7 +241,13 @@ export class Session {
       try {
         const saved = await this.storage.load();
         if (saved !== undefined && saved !== null) {
-          await this.apply(parseProject(saved));
+          const project = parseProject(saved);
+          await this.apply(project);
+          // Ctrl+Z goes on where it was before the reload.
+          if (project.specHistory) {
+            this.past = project.specHistory.past.slice(-HISTORY_LENGTH);
+            this.future = project.specHistory.future.slice(-HISTORY_LENGTH);
+          }
         }
       } catch (error) {
         this.notice = { kind: 'error', text: `The saved session could not be restored (${(error as Error).message}); starting from the demo.` };
@@ -453,16 +474,36 @@ export class Session {
     return true;
   }
 
-  /** The session as a project; `typed` keeps the samples as typed arrays (for the browser's store, not for a file). */
-  toProject(typed = false): Project {
+  /**
+   * The session as a project; `forStore` keeps the samples as typed arrays and the spec's undo
+   * history (bounded by SAVED_HISTORY_CHARS): for the browser's store, not for a file.
+   */
+  toProject(forStore = false): Project {
     return {
       format: PROJECT_FORMAT,
       version: PROJECT_VERSION,
       savedAt: isoTimestamp(Date.now()),
       spec: $state.snapshot(this.spec) as Record<string, unknown>,
-      pulses: this.pulses.map((p) => storedPulse(p, typed)),
+      pulses: this.pulses.map((p) => storedPulse(p, forStore)),
       settings: { ...$state.snapshot(this.settings), view: this.view, selectedPulse: this.selectedId } as ViewSettings,
+      ...(forStore ? { specHistory: this.savedHistory() } : {}),
     };
+  }
+
+  /** The newest undo and redo steps whose JSON fits in SAVED_HISTORY_CHARS, the undo steps first. */
+  private savedHistory(): SpecHistory {
+    let budget = SAVED_HISTORY_CHARS;
+    const newest = (list: SpecJson[]): SpecJson[] => {
+      const out: SpecJson[] = [];
+      for (let k = list.length - 1; k >= 0; k--) {
+        budget -= specChars(list[k]);
+        if (budget < 0) break;
+        out.unshift(list[k]);
+      }
+      return out;
+    };
+    const past = newest(this.past);
+    return { past, future: newest(this.future) };
   }
 
   /** The project file's text. */
