@@ -103,14 +103,16 @@ function jsSamples(events: TraceEvent[], pid: number, tid: number): Array<[numbe
 const top = (m: Map<string, number>, n: number): Array<[string, number]> =>
   [...m].sort((a, b) => b[1] - a[1]).slice(0, n).map(([k, v]) => [k, Math.round(v * 10) / 10]);
 
-/** The long tasks (over `thresholdMs`) of a trace's page main thread, with what ran in them. */
-export function longTasksOfTrace(trace: string | Buffer, thresholdMs = 50): LongTask[] {
+/** The long tasks (over `thresholdMs`) of a trace's page main thread, with what ran in them; with `afterMark`, only those after the page's last performance.mark of that name. */
+export function longTasksOfTrace(trace: string | Buffer, thresholdMs = 50, afterMark?: string): LongTask[] {
   const parsed = JSON.parse(String(trace)) as { traceEvents?: TraceEvent[] } | TraceEvent[];
   const events = Array.isArray(parsed) ? parsed : (parsed.traceEvents ?? []);
   const main = mainThread(events);
   if (!main) return [];
   const own = events.filter((e) => e.pid === main.pid && e.tid === main.tid && e.ph === 'X');
-  const tasks = own.filter((e) => e.name === 'RunTask');
+  const marks = events.filter((e) => afterMark !== undefined && e.name === afterMark && e.pid === main.pid).map((e) => e.ts);
+  const since = marks.length ? Math.max(...marks) : -Infinity;
+  const tasks = own.filter((e) => e.name === 'RunTask' && e.ts >= since);
   const first = tasks.reduce((m, e) => Math.min(m, e.ts), Infinity);
   const samples = jsSamples(events, main.pid, main.tid);
   const interval = samples.length > 1 ? Math.max(0.1, (samples.at(-1)![0] - samples[0][0]) / (samples.length - 1) / 1000) : 0.1;
