@@ -18,7 +18,7 @@ import { mkdtemp, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { basename, join } from 'node:path';
 import { CHROMIUM, SCREENSHOTS, skipReason, startHarness, visit, type Harness } from '../tests/e2e/harness.ts';
-import { longTasksOfTrace, TRACE_CATEGORIES, type LongTask } from './long-tasks.ts';
+import { longTasksOfTrace, TASK_CATEGORIES, TRACE_CATEGORIES, type LongTask } from './long-tasks.ts';
 
 // `--large-only`: only the 100 000-sample figures, in one page (a quick look while working on them).
 const LARGE_ONLY = process.argv.includes('--large-only');
@@ -113,9 +113,12 @@ async function timedStop(page: Page): Promise<number> {
 /** Starts recording the page's long tasks (kept in the page until `longTasks` reads them); `buffered` takes those since the page loaded too. */
 async function recordLongTasks(page: Page, buffered = false): Promise<void> {
   await page.evaluate((buffered) => {
-    const w = window as unknown as { __longTasks: number[] };
+    const w = window as unknown as { __longTasks: number[]; __longTaskObserver?: PerformanceObserver };
+    // One observer at a time: each earlier one still running would file every task again.
+    w.__longTaskObserver?.disconnect();
     w.__longTasks = [];
-    new PerformanceObserver((list) => list.getEntries().forEach((e) => w.__longTasks.push(e.duration))).observe({ type: 'longtask', buffered });
+    w.__longTaskObserver = new PerformanceObserver((list) => list.getEntries().forEach((e) => w.__longTasks.push(e.duration)));
+    w.__longTaskObserver.observe({ type: 'longtask', buffered });
   }, buffered);
 }
 
@@ -156,22 +159,19 @@ async function largeFigures(harness: Harness, file: string): Promise<{ stopMs: n
   const out = { stopMs: NaN, phases: [] as Phase[], fileMs: NaN, progressShown: false };
   /** Runs a step and files the long tasks seen during it under its name (traced with --attribute). */
   const measured = async (name: string, timeoutMs: number, body: () => Promise<void>) => {
-    if (ATTRIBUTE) {
-      await harness.browser.startTracing(page, { categories: TRACE_CATEGORIES });
-      // Starting the profiler is itself a long task of the page: left out of the phase.
-      await page.waitForTimeout(500);
-    }
+    // Every phase is traced: the trace gives each task's main-thread CPU time, which a busy
+    // machine does not stretch as it stretches wall time. --attribute adds the JS profiler.
+    await harness.browser.startTracing(page, { categories: ATTRIBUTE ? TRACE_CATEGORIES : TASK_CATEGORIES });
+    // Starting the trace is itself a task of the page: left out of the phase.
+    await page.waitForTimeout(500);
     await recordLongTasks(page);
     await page.evaluate(() => performance.mark('gatesmith-phase'));
     await step(name, timeoutMs, undefined, body);
     const tasks = await longTasks(page);
-    let attributed: LongTask[] = [];
-    if (ATTRIBUTE) {
-      const trace = await harness.browser.stopTracing();
-      // Kept for a closer look (Chromium's performance panel opens it).
-      await writeFile(join(SCREENSHOTS, `trace-${name.replace(/[^\w]+/g, '-')}.json`), trace);
-      attributed = longTasksOfTrace(trace, 50, 'gatesmith-phase');
-    }
+    const trace = await harness.browser.stopTracing();
+    // Kept for a closer look (Chromium's performance panel opens it).
+    if (ATTRIBUTE) await writeFile(join(SCREENSHOTS, `trace-${name.replace(/[^\w]+/g, '-')}.json`), trace);
+    const attributed = longTasksOfTrace(trace, 50, 'gatesmith-phase');
     out.phases.push({ name, tasks, attributed });
   };
   const view = async (key: string, ready: () => Promise<unknown>) => {
@@ -269,6 +269,8 @@ export interface AppFigures {
   stopLargeMs: number;
   /** Main-thread tasks over 50 ms at 100 000 samples: a run and its Stop, every view, a 62 MB file. */
   largeLongTasksMs: number[];
+  /** Main-thread CPU time of each of those tasks over 50 ms of CPU (from the trace: a busy machine stretches wall time, not this). */
+  largeCpuLongTasksMs: number[];
   largeFileOpenMs: number;
   largeFileProgressShown: boolean;
   /** Steps that failed or ran out of time. */
@@ -370,12 +372,19 @@ export async function appBenchmark(log: (line: string) => void = console.log): P
     row(`open a ${LARGE_FILE_BYTES / 1e6} MB pulse file, to "Opened"`, fileTimes);
     log(`${'progress shown while the file is read'.padEnd(48)} ${progressShown ? 'yes' : 'no'}`);
     tasks(`main-thread tasks over 50 ms at ${LARGE_SAMPLES} samples`, largeTasks);
+    const cpuOver = attributed.filter(([, t]) => t.cpuMs > 50);
+    log(`${`tasks over 50 ms of main-thread CPU at ${LARGE_SAMPLES} samples`.padEnd(48)} ${String(cpuOver.length).padStart(9)}      (longest ${Math.max(0, ...attributed.map(([, t]) => t.cpuMs)).toFixed(0)} ms)`);
+    log(`  per phase: wall-clock long tasks (over 50 ms; longest) | the same tasks' main-thread CPU (over 50 ms; longest)`);
     for (const [name, pages] of phases) {
       const all = pages.flat();
-      log(`  ${name.padEnd(46)} ${String(all.filter((t) => t > 50).length).padStart(9)}      (longest ${all.length ? Math.max(...all).toFixed(0) : 0} ms; per page: ${pages.map((p) => p.length).join(', ')})`);
+      const cpu = attributed.filter(([n]) => n.startsWith(`${name} (page`)).map(([, t]) => t.cpuMs);
+      log(
+        `  ${name.padEnd(34)} wall ${String(all.filter((t) => t > 50).length).padStart(3)}; ${(all.length ? Math.max(...all) : 0).toFixed(0).padStart(4)} ms` +
+          ` | CPU ${String(cpu.filter((t) => t > 50).length).padStart(3)}; ${(cpu.length ? Math.max(...cpu) : 0).toFixed(0).padStart(4)} ms`,
+      );
     }
     if (ATTRIBUTE) {
-      log(`long tasks traced at ${LARGE_SAMPLES} samples (wall / main-thread CPU ms; events; functions by samples):`);
+      log(`long tasks at ${LARGE_SAMPLES} samples (wall / main-thread CPU ms; events; functions by samples):`);
       for (const [name, t] of attributed) {
         log(`  ${name}: ${t.wallMs.toFixed(0)} / ${t.cpuMs.toFixed(0)} ms at ${(t.atMs / 1000).toFixed(2)} s`);
         log(`    events: ${t.events.map(([e, ms]) => `${e} ${ms}`).join('; ')}`);
@@ -387,7 +396,7 @@ export async function appBenchmark(log: (line: string) => void = console.log): P
     return {
       loadToInteractiveMs: median(loads), firstConvergencePointMs: median(firstPoints), demoDesignMs: median(designs),
       stopMs: median(stops), map201CoarseMs: median(coarse), map201FullMs: median(full), longTasksMs, longTasksOver50: over.length,
-      stopLargeMs: median(largeStops), largeLongTasksMs: largeTasks.filter((t) => t > 50), largeFileOpenMs: median(fileTimes),
+      stopLargeMs: median(largeStops), largeLongTasksMs: largeTasks.filter((t) => t > 50), largeCpuLongTasksMs: cpuOver.map(([, t]) => t.cpuMs), largeFileOpenMs: median(fileTimes),
       largeFileProgressShown: progressShown, failures: [...failures],
     };
   } finally {
