@@ -5,7 +5,7 @@
 // paint, ...) and the JavaScript functions the sampling profiler saw most in it.
 
 /** Trace categories that give the tasks with their thread (CPU) time and inner events: cheap enough for every run. */
-export const TASK_CATEGORIES = ['toplevel', 'devtools.timeline', 'blink.user_timing'];
+export const TASK_CATEGORIES = ['toplevel', 'devtools.timeline', 'disabled-by-default-devtools.timeline', 'blink.user_timing'];
 
 /** Trace categories that give tasks, their events with thread time, and JS samples. */
 export const TRACE_CATEGORIES = [
