@@ -107,6 +107,26 @@ describe('Session', () => {
     expect(second.toProject().specHistory).toBeUndefined();
   });
 
+  it('keeps a pulse opened while the saved session is still being restored', async () => {
+    const storage = memoryStorage();
+    const first = new Session(client, storage);
+    await first.start();
+    await first.openPulseText('saved.json', JSON.stringify({ dt: 1e-9, i: [1e6], q: [0] }));
+    await first.saveNow();
+    // A store that answers late, as IndexedDB does on a busy page reading many chunks.
+    let release = () => undefined as void;
+    const gate = new Promise<void>((resolve) => (release = resolve));
+    const slow: SessionStorage = { load: async () => (await gate, storage.load()), save: (p) => storage.save(p) };
+    const second = new Session(client, slow);
+    const starting = second.start();
+    const opening = second.openPulseText('early.json', JSON.stringify({ dt: 1e-9, i: [2e6], q: [0] }));
+    await new Promise((resolve) => setTimeout(resolve, 50));
+    release();
+    await Promise.all([starting, opening]);
+    expect(second.pulses.map((p) => p.label)).toEqual(['saved.json', 'early.json']);
+    expect(second.selected?.label).toBe('early.json');
+  });
+
   it('lets a link\'s spec win over the autosave', async () => {
     const storage = memoryStorage();
     const first = new Session(client, storage);

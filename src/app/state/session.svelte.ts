@@ -230,13 +230,27 @@ export class Session {
 
   /** Loads the core, then restores the session: the link's spec first, else the autosave, else the demo. */
   async start(hash = ''): Promise<void> {
+    let restored = () => undefined as void;
+    this.restoring = new Promise<void>((resolve) => (restored = resolve));
     try {
-      this.composites = (await this.client.ready()).composites;
-    } catch (error) {
-      this.notice = { kind: 'error', text: `The core could not be loaded (${(error as Error).message}); reload the page, or rebuild with "npm start".` };
-      return;
+      try {
+        this.composites = (await this.client.ready()).composites;
+      } catch (error) {
+        this.notice = { kind: 'error', text: `The core could not be loaded (${(error as Error).message}); reload the page, or rebuild with "npm start".` };
+        return;
+      }
+      this.ready = true;
+      await this.restoreSaved(hash);
+    } finally {
+      restored();
     }
-    this.ready = true;
+    await this.validate();
+  }
+
+  /** Settles once the saved session and the link are applied: a pulse opened meanwhile waits for it, or the restore would drop it. */
+  private restoring: Promise<void> = Promise.resolve();
+
+  private async restoreSaved(hash: string): Promise<void> {
     if (this.storage) {
       try {
         const saved = await this.storage.load();
@@ -265,7 +279,6 @@ export class Session {
     } catch (error) {
       this.notice = { kind: 'error', text: `${(error as Error).message}; the link was ignored.` };
     }
-    await this.validate();
   }
 
   /** Replaces one spec value from the form (one undo step per field edit, keystrokes merged). */
@@ -467,6 +480,7 @@ export class Session {
       this.notice = { kind: 'error', text: `${fileName} was not opened: ${(error as Error).message}` };
       return false;
     }
+    await this.restoring;
     const entry: PulseEntry = { id: newPulseId('file'), label: fileName, pulse };
     if (evaluation) entry.evaluation = { meanInfidelity: evaluation.meanInfidelity, worstInfidelity: evaluation.worstInfidelity };
     this.addPulse(entry);
