@@ -22,7 +22,7 @@ import {
 } from '../project.ts';
 import type { RunHistory } from '../run-history.ts';
 import { setAt, type SpecJson } from '../spec-edit.ts';
-import { DEFAULT_SAMPLE_RATE } from '../export-form.ts';
+import { exportSampleRate } from '../export-form.ts';
 import { inFormWords, specLimits, type FieldNoteText } from '../spec-limits.ts';
 import { isoTimestamp, roundUpTwoDigits } from '../units.ts';
 
@@ -338,7 +338,8 @@ export class Session {
     let warnings: FieldNoteText[] = [];
     if (check.ok) {
       // What the core cannot compute never reaches it: the spec counts as invalid.
-      const limits = specLimits(check.problem, this.settings.export?.sampleRate ?? DEFAULT_SAMPLE_RATE);
+      // The period is judged against a rate the user chose; by default the export follows the spec.
+      const limits = specLimits(check.problem, exportSampleRate(this.settings.export, check.problem.dt));
       warnings = limits.warnings;
       const refusal = limits.refusals[0];
       if (refusal) check = { ok: false, error: { name: 'SpecError', message: refusal.message, field: refusal.field } };
