@@ -95,8 +95,20 @@ export async function typeInto(page: Page, selector: string, text: string): Prom
   await input.dispatchEvent('input');
 }
 
-/** Waits until the run status says the run ended, and returns it. */
+/**
+ * Waits until the run status says the run ended and, in the design view, until the
+ * convergence chart says it draws the ended run; returns the status.
+ */
 export async function runToEnd(page: Page, timeout = 90_000): Promise<string> {
   await page.waitForFunction(() => /^(done|stopped)/.test(document.querySelector('[data-testid=run-status]')?.textContent ?? ''), undefined, { timeout });
+  await page.waitForFunction(() => document.querySelector('[data-testid=convergence]')?.getAttribute('data-state') !== 'live', undefined, { timeout });
   return (await page.getByTestId('run-status').textContent()) ?? '';
+}
+
+/** Waits until Run can be pressed: the core is loaded and the spec checked. */
+export async function runEnabled(page: Page, timeout = 30_000): Promise<void> {
+  await page.waitForFunction(() => {
+    const run = document.querySelector<HTMLButtonElement>('[data-testid=run]');
+    return run !== null && !run.disabled;
+  }, undefined, { timeout });
 }

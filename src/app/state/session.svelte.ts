@@ -323,9 +323,14 @@ export class Session {
   }
 
   private specChanged(): void {
+    this.recheck();
+    this.changed();
+  }
+
+  /** Validates the spec again shortly (edits in quick succession are checked once). */
+  private recheck(): void {
     if (this.checkTimer) clearTimeout(this.checkTimer);
     this.checkTimer = setTimeout(() => void this.validate(), 60);
-    this.changed();
   }
 
   /** Validates the current spec with the library (results of older edits are dropped). */
@@ -406,6 +411,8 @@ export class Session {
   /** Replaces some view settings. */
   updateSettings(patch: Partial<ViewSettings>): void {
     this.settings = { ...this.settings, ...patch };
+    // The spec form judges its sample period by the export's rate: a rate typed or reset is judged at once.
+    if ('export' in patch) this.recheck();
     this.changed();
   }
 
