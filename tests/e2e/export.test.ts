@@ -3,7 +3,6 @@
 // byte, what the command line (src/cli/main.ts, run in this process) writes from the pulse
 // JSON the page downloaded with the same settings (issue 5). Invalid fields and refused
 // exports offer nothing to download. Each test leaves screenshots in test-results/.
-import { readFileSync } from 'node:fs';
 import { mkdtemp, readFile, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -12,7 +11,7 @@ import type { Page } from 'playwright-core';
 import type { CliIO } from '../../src/cli/command.ts';
 import { main } from '../../src/cli/main.ts';
 import { runToEnd, screenshot, skipReason, typeInto } from './harness.ts';
-import { openReady, screenshotsEverywhere, useHarness } from './screens.ts';
+import { FAST_LOBE, FAST_TRANSMON, openPulse, openReady, screenshotsEverywhere, useHarness } from './screens.ts';
 
 const reason = skipReason();
 if (reason) console.warn(`browser tests skipped: ${reason}`);
@@ -278,20 +277,15 @@ describe.skipIf(reason !== null)('the export panel in Chromium', () => {
     await context.close();
   }, 120_000);
 
-  // examples/transmon-x180-fast.json: 48 samples in 20 ns, "at the 2.4 GS/s of the lab's waveform generator".
-  const fast = JSON.parse(readFileSync(new URL('../../examples/transmon-x180-fast.json', import.meta.url), 'utf8')) as Record<string, unknown>;
-  /** The fast example's 48 samples of 416.67 ps: a cosine lobe on I. */
-  const lobe = { dt: 2e-8 / 48, i: Array.from({ length: 48 }, (_, k) => 2.5e7 * (1 - Math.cos((2 * Math.PI * (k + 0.5)) / 48))), q: new Array<number>(48).fill(0), metadata: { name: 'lobe' } };
   /** Opens the fast example with its lobe, in the export view. */
   async function fastExport(page: Page): Promise<void> {
-    await page.getByTestId('open-pulse').setInputFiles({ name: 'lobe.json', mimeType: 'application/json', buffer: Buffer.from(JSON.stringify(lobe)) });
-    await page.getByTestId('notice').filter({ hasText: 'Opened lobe.json' }).waitFor();
+    await openPulse(page, 'lobe.json', FAST_LOBE);
     await page.keyboard.press('Alt+6');
     await exported(page, '--sample-rate 2400000000');
   }
 
   it('exports at the rate of the instrument the spec describes, and warns at the sample period only about a rate the user types', async () => {
-    const { page, context, consoleErrors } = await openReady(harness(), { hash: `#spec=${encodeURIComponent(JSON.stringify(fast))}` });
+    const { page, context, consoleErrors } = await openReady(harness(), { hash: `#spec=${encodeURIComponent(FAST_TRANSMON)}` });
     // The spec form says nothing about the 416.67 ps period: the export follows it.
     expect(await page.locator('#f-dt').inputValue()).toBe('416.667 ps');
     expect(await page.locator('#f-dt-warning').count()).toBe(0);
@@ -318,6 +312,6 @@ describe.skipIf(reason !== null)('the export panel in Chromium', () => {
   }, 120_000);
 
   it('looks right in light and dark, at 1440 and 800 px wide: the fast example exported at 2.4 GS/s', async () => {
-    await screenshotsEverywhere(harness(), 'e2e-export-07-instrument-rate', fastExport, { hash: `#spec=${encodeURIComponent(JSON.stringify(fast))}` });
+    await screenshotsEverywhere(harness(), 'e2e-export-07-instrument-rate', fastExport, { hash: `#spec=${encodeURIComponent(FAST_TRANSMON)}` });
   }, 180_000);
 });

@@ -83,9 +83,19 @@ export async function visit(harness: Harness, hash = '', context?: BrowserContex
   return { context: ctx, page, requests, consoleErrors };
 }
 
-/** Saves a full-page screenshot under test-results/. */
+/**
+ * Saves a full-page screenshot under test-results/. The spec column keeps to the window as the
+ * page scrolls (CSS sticky), so an image of the whole page taken scrolled down drew it lower
+ * than the views beside it; for the capture it stands where the page lays it out.
+ */
 export async function screenshot(page: Page, name: string): Promise<void> {
-  await page.screenshot({ path: join(SCREENSHOTS, `${name}.png`), fullPage: true });
+  const pin = (position: string) => page.evaluate((p) => document.querySelector<HTMLElement>('main > aside')?.style.setProperty('position', p), position);
+  await pin('static');
+  try {
+    await page.screenshot({ path: join(SCREENSHOTS, `${name}.png`), fullPage: true });
+  } finally {
+    await pin('');
+  }
 }
 
 /** Types into a text field as a user does (the field reads its text on every input). */
