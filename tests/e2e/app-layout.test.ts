@@ -151,7 +151,8 @@ describe.skipIf(reason !== null)('layout and keyboard', () => {
     const { page, context } = await openReady(harness(), { hash: `#spec=${encodeURIComponent(FAST_TRANSMON)}` });
     await openPulse(page, 'lobe.json', FAST_LOBE);
     await page.keyboard.press('Alt+3');
-    await page.getByTestId('leakage-heatmap').waitFor({ timeout: 60_000 });
+    await page.waitForFunction(() => /points in/.test(document.querySelector('[data-testid=map-status]')?.textContent ?? ''), undefined, { timeout: 60_000 });
+    await page.getByTestId('leakage-heatmap').waitFor();
     /** Tops of the spec column and of the views panel, in page coordinates, and the spec column's top in the window. */
     const tops = () =>
       page.evaluate(() => {

@@ -69,7 +69,7 @@ function drawnCurves(page: Page): Promise<Curve[]> {
 function expectCurvesOfTable(curves: Curve[], rows: Row[]): void {
   expect(rows.map((r) => r.number)).toEqual(['1', '2', '3', '4', '5']);
   expect(rows.filter((r) => r.best)).toHaveLength(1);
-  const pruned = rows.filter((r) => r.ended === 'set aside after the first iterations');
+  const pruned = rows.filter((r) => r.ended === 'pruned: set aside after the first iterations');
   // Every start reaches the pruning point; the 3 not kept end there.
   expect(pruned.length).toBe(5 - KEEP_STARTS);
   expect(curves.map((c) => c.label)).toEqual(rows.map((r) => `start ${r.number}${pruned.includes(r) ? ' (pruned)' : ''}`));
