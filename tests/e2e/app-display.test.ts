@@ -239,6 +239,23 @@ describe.skipIf(reason !== null)('what the app draws, in Chromium', () => {
     await screenshot(page, 'display-05-region');
   }, 120_000);
 
+  it('ends the axes of the cuts with the map\'s region (±12 % for the ion demo, not ±15 %)', async () => {
+    const { page } = await fresh();
+    await page.locator('#demo-picker').selectOption('ion-x180');
+    await page.getByTestId('notice-action').waitFor();
+    await openPulse(page, 'spike.json', SPIKE);
+    await page.keyboard.press('Alt+3');
+    // The ion demo's region: twice its ±5 kHz, and its Gaussian 2 % to the last of 5 Gauss-Hermite nodes, 2.857 sigma, doubled and rounded up: ±12 %.
+    await page.waitForFunction(() => /points in/.test(document.querySelector('[data-testid=map-status]')?.textContent ?? ''), undefined, { timeout: 30_000 });
+    await drawn(page, 'cut-amplitude', 'spike.json');
+    const amplitude = await xAxis(page, 'cut-amplitude');
+    expect([amplitude.min, amplitude.max, amplitude.title]).toEqual([-12, 12, 'amplitude error ε (%)']);
+    const detuning = await xAxis(page, 'cut-detuning');
+    expect([detuning.min, detuning.max, detuning.title]).toEqual([-10, 10, 'detuning Δ (kHz)']);
+    // The threshold line spans the same cut.
+    expect((await seriesData(page, 'cut-amplitude', 'threshold')).map((p) => p.x)).toEqual([-12, 12]);
+  }, 120_000);
+
   it('looks right in light and dark, at 1440 and 800 px wide: waveform and robustness (the design view after a run: convergence.test.ts)', async () => {
     for (const [name, key] of [['display-06-waveform', 'Alt+2'], ['display-07-robustness', 'Alt+3']] as const) {
       await screenshotsEverywhere(harness(), name, async (page) => {
