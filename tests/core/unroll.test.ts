@@ -50,7 +50,7 @@ describe('kernel templates', () => {
     const out = expand(text, 'qubit-sweeps.template.ts');
     // npm run build:wasm wrote it; a stale file means the wasm under test is not the template's.
     expect(readFileSync(new URL('../../assembly/generated/qubit-sweeps.ts', import.meta.url), 'utf8')).toBe(out);
-    for (const name of ['figureQuad', 'figurePair', 'gradientQuad', 'gradientPair']) expect(out).toContain(`export function ${name}(`);
+    for (const name of ['figureQuad', 'figurePair', 'gradientQuad', 'gradientPair', 'blocksForward', 'blocksBackward']) expect(out).toContain(`export function ${name}(`);
     const code = out.split('\n').filter((line) => !line.trim().startsWith('//')).join('\n');
     expect(code).not.toMatch(/\$|__NAME__|JOIN\(/);
   });
