@@ -22,7 +22,7 @@
 import { seriesTerms, halvings } from './su2';
 import { figureQuad, figurePair, gradientQuad, gradientPair } from './generated/qubit-sweeps';
 import { Problem } from './problem';
-import { blocksGradient, distinctMembers } from './qubit-blocks';
+import { blocksGradient, blocksWorkBytes, distinctMembers } from './qubit-blocks';
 
 /** Member parameters per member: scale (1 + amplitude error) and detuning. */
 export const QUBIT_PARAMS: i32 = 2;
@@ -32,10 +32,10 @@ export const QUBIT_TARGET_VALUES: i32 = 8;
 export const QUBIT_MEMBER_MULTIPLE: i32 = 2;
 
 /**
- * Scratch of the gradient sweep: cos a, S, T per segment for two pairs (12 n f64), which
- * also holds the blocks' sweeps (qubit-blocks.ts, blocksWorkBytes: at most 8 n + 104 f64).
+ * Scratch of the gradient sweeps: cos a, S, T per segment for two pairs (12 n f64), or
+ * one member's blocks of segments (qubit-blocks.ts), whichever is larger.
  */
-export function qubitWorkValues(nDrive: i32): i32 { return 12 * nDrive + 104; }
+export function qubitWorkValues(nDrive: i32): i32 { return max(12 * nDrive, <i32>(blocksWorkBytes(nDrive) >> 3)); }
 
 /**
  * Series settings for the largest angle of a job, packed as terms | halvings << 8:
