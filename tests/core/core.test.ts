@@ -70,6 +70,23 @@ function gradientAgainstOracle(target: Target, pulse: Pulse, members: Member[]):
   return got;
 }
 
+/** The core's gradient against central differences of its figure, relative error < 1e-6 (Nocedal & Wright, section 8.1: error O(h^2)). */
+function expectCentralDifferences(target: Target, pulse: Pulse, members: Member[]): void {
+  const got = figureAndGradient(target, pulse, members);
+  const h = 100; // Hz, on samples of order 1e6 Hz: rounding error ~1e-16/h, truncation ~h^2
+  for (const channel of ['i', 'q'] as const) {
+    for (let k = 0; k < pulse.i.length; k++) {
+      const plus = { ...pulse, [channel]: pulse[channel].slice() } as Pulse;
+      const minus = { ...pulse, [channel]: pulse[channel].slice() } as Pulse;
+      plus[channel][k] += h;
+      minus[channel][k] -= h;
+      const fd = (evaluateMembers(target, plus, members).meanInfidelity - evaluateMembers(target, minus, members).meanInfidelity) / (2 * h);
+      const g = channel === 'i' ? got.gradI[k] : got.gradQ[k];
+      expect(Math.abs(g - fd)).toBeLessThan(1e-6 * Math.max(Math.abs(fd), 1e-9));
+    }
+  }
+}
+
 describe('wasm gradient against the oracle and finite differences', () => {
   for (const r of regimes) {
     for (const target of targets) {
@@ -96,21 +113,7 @@ describe('wasm gradient against the oracle and finite differences', () => {
   it('matches central finite differences of the wasm figure (relative error < 1e-6), zero-drive samples included', () => {
     // Central differences: error O(h^2) (Nocedal & Wright, section 8.1).
     for (const target of targets) {
-      const pulse = randomPulse(15, 2e-8, 5e6, 4);
-      const members = randomMembers(5, 1e6, 0.1);
-      const got = figureAndGradient(target, pulse, members);
-      const h = 100; // Hz, on samples of order 1e6 Hz: rounding error ~1e-16/h, truncation ~h^2
-      for (const channel of ['i', 'q'] as const) {
-        for (let k = 0; k < pulse.i.length; k++) {
-          const plus = { ...pulse, [channel]: pulse[channel].slice() } as Pulse;
-          const minus = { ...pulse, [channel]: pulse[channel].slice() } as Pulse;
-          plus[channel][k] += h;
-          minus[channel][k] -= h;
-          const fd = (evaluateMembers(target, plus, members).meanInfidelity - evaluateMembers(target, minus, members).meanInfidelity) / (2 * h);
-          const g = channel === 'i' ? got.gradI[k] : got.gradQ[k];
-          expect(Math.abs(g - fd)).toBeLessThan(1e-6 * Math.max(Math.abs(fd), 1e-9));
-        }
-      }
+      expectCentralDifferences(target, randomPulse(15, 2e-8, 5e6, 4), randomMembers(5, 1e6, 0.1));
     }
   });
 });
@@ -145,23 +148,7 @@ describe('one member: blocks of segments side by side in the lanes (assembly/qub
   it('one member with zero-drive stretches matches central finite differences (relative error < 1e-6)', () => {
     // Central differences: error O(h^2) (Nocedal & Wright, section 8.1).
     for (const target of targets) {
-      for (const n of [3, 11]) {
-        const pulse = randomPulse(n, 2e-8, 5e6, 2);
-        const members = randomMembers(1, 1e6, 0.1);
-        const got = figureAndGradient(target, pulse, members);
-        const h = 100; // Hz, on samples of order 1e6 Hz
-        for (const channel of ['i', 'q'] as const) {
-          for (let k = 0; k < n; k++) {
-            const plus = { ...pulse, [channel]: pulse[channel].slice() } as Pulse;
-            const minus = { ...pulse, [channel]: pulse[channel].slice() } as Pulse;
-            plus[channel][k] += h;
-            minus[channel][k] -= h;
-            const fd = (evaluateMembers(target, plus, members).meanInfidelity - evaluateMembers(target, minus, members).meanInfidelity) / (2 * h);
-            const g = channel === 'i' ? got.gradI[k] : got.gradQ[k];
-            expect(Math.abs(g - fd)).toBeLessThan(1e-6 * Math.max(Math.abs(fd), 1e-9));
-          }
-        }
-      }
+      for (const n of [3, 11]) expectCentralDifferences(target, randomPulse(n, 2e-8, 5e6, 2), randomMembers(1, 1e6, 0.1));
     }
   });
 
