@@ -1,6 +1,7 @@
 // How long a design may take, before it starts: the problem's size times the speed of this
 // machine, measured on a small job of the same core. The figure is an upper bound (every
 // start running to its iteration limit); most designs stop earlier, at their target.
+import { needsLadder } from '../core/system.ts';
 import type { Member, Problem, Pulse } from '../core/types.ts';
 import { formatTime } from './format.ts';
 
@@ -8,8 +9,25 @@ import { formatTime } from './format.ts';
 const EVALUATIONS_PER_ITERATION = 1.2;
 /** A figure-and-gradient evaluation costs about this many figure-only evaluations (npm run bench). */
 const GRADIENT_OVER_FIGURE = 2.6;
-/** Cost per member-sample of a gradient evaluation assumed before measuring (s); a generous guess. */
+/** Cost per member-sample of a qubit gradient evaluation assumed before measuring (s); a generous guess. */
 export const ASSUMED_SECONDS_PER_MEMBER_SAMPLE = 2e-8;
+
+// The ladder kernels' objective + gradient per segment-member, a + b d^3 ns against the qubit
+// kernels' QUBIT_NS (one member at a time in scalar f64, an eigendecomposition per sample:
+// docs/transmon.md). Fitted to the least of many interleaved timings on this project's
+// 2-core machine, N = 100, 25 members: 472, 816, 1211, 2066, 3000 ns at d = 3..7 against
+// 8.1 to 8.8 ns for the qubit; the fit is within 5 % there, gives 334 ns at d = 2 (measured
+// 366) and 4400 ns at d = 8 (measured 2900 to 5200 under load).
+const LADDER_NS_A = 270;
+const LADDER_NS_B = 8;
+const QUBIT_NS = 8.5;
+
+/** How many times a qubit member-sample a member-sample of this problem's system costs (1 on the qubit kernels). */
+export function systemCostFactor(problem: Pick<Problem, 'target' | 'system'>): number {
+  if (!needsLadder(problem.target, problem.system)) return 1;
+  const d = problem.system?.levels ?? 2;
+  return (LADDER_NS_A + LADDER_NS_B * d ** 3) / QUBIT_NS;
+}
 
 /** The time a design may take and what the figure rests on. */
 export interface DesignEstimate {
@@ -17,28 +35,33 @@ export interface DesignEstimate {
   seconds: number;
   /** One optimiser iteration (s): the longest a stop inside the same thread can wait. */
   iterationSeconds: number;
-  /** Measured (or assumed) gradient cost per member-sample (s). */
+  /** Gradient cost per member-sample of this problem's system (s): the qubit's times systemCostFactor. */
   secondsPerMemberSample: number;
+  /** The qubit's gradient cost per member-sample it rests on (s), measured or assumed. */
+  qubitSecondsPerMemberSample: number;
   threads: number;
 }
 
-/** Members the core processes: padded to a multiple of 4, as the kernels do. */
+/** Members the core processes: padded to a multiple of 4 on the qubit kernels; the ladder kernels take one at a time. */
 function paddedMembers(problem: Problem): number {
-  return Math.ceil(problem.members.length / 4) * 4;
+  const multiple = needsLadder(problem.target, problem.system) ? 1 : 4;
+  return Math.ceil(problem.members.length / multiple) * multiple;
 }
 
-/** The estimate from a cost per member-sample (the time limit, when set, caps it). */
-export function estimateDesign(problem: Problem, threads: number, secondsPerMemberSample = ASSUMED_SECONDS_PER_MEMBER_SAMPLE): DesignEstimate {
+/** The estimate from the qubit's cost per member-sample, scaled to the problem's system (the time limit, when set, caps it). */
+export function estimateDesign(problem: Problem, threads: number, qubitSecondsPerMemberSample = ASSUMED_SECONDS_PER_MEMBER_SAMPLE): DesignEstimate {
   const { segments, optimizer } = problem;
+  const secondsPerMemberSample = qubitSecondsPerMemberSample * systemCostFactor(problem);
   const iterationSeconds = EVALUATIONS_PER_ITERATION * secondsPerMemberSample * segments * paddedMembers(problem);
   const startsPerThread = Math.ceil(optimizer.starts / Math.max(1, threads));
   const seconds = Math.min(iterationSeconds * optimizer.maxIterations * startsPerThread, optimizer.timeLimit);
-  return { seconds, iterationSeconds, secondsPerMemberSample, threads };
+  return { seconds, iterationSeconds, secondsPerMemberSample, qubitSecondsPerMemberSample, threads };
 }
 
 /**
- * The gradient cost per member-sample on this machine: a figure-only evaluation of a small
- * job timed for about 20 ms, scaled by the gradient's known cost ratio.
+ * The qubit's gradient cost per member-sample on this machine: a figure-only evaluation of a
+ * small qubit job timed for about 20 ms, scaled by the gradient's known cost ratio (another
+ * system's cost follows from it by systemCostFactor, without timing a slow job).
  */
 export function measureSecondsPerMemberSample(evaluateMembers: (target: Problem['target'], pulse: Pulse, members: Member[]) => unknown): number {
   const n = 256;
