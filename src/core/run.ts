@@ -36,7 +36,7 @@ export class StartRun {
   private iterationCount = 0;
   private recentres = 0;
   private lastRecentreObjective = Infinity;
-  /** Objectives after the last stallIterations + 1 iterations, a ring indexed by iteration. */
+  /** Objectives after the last max(stallIterations, outpaceEvery) + 1 iterations, a ring indexed by iteration. */
   private readonly history: Float64Array;
 
   /** `samples` (Hz, the problem's segments), when given, are where the start begins instead of its seeded pulse. */
@@ -46,7 +46,7 @@ export class StartRun {
     this.start = start;
     const enc = encodeSystem(problem.target, problem.members, problem.system);
     const { segments: n, dt, rabiMax, constraints, optimizer } = problem;
-    this.history = new Float64Array(optimizer.stallIterations + 1);
+    this.history = new Float64Array(Math.max(optimizer.stallIterations, optimizer.outpaceEvery) + 1);
     this.ptr = createBlock(core, {
       ...blockSystem(enc), target: problem.target, segments: n, dt, bound: constraints.bound, zeroEdges: constraints.zeroEdges,
       rabiMax, smoothness: constraints.smoothness, optimizer, held: true,
@@ -94,6 +94,14 @@ export class StartRun {
     if (k === 0 || this.iterationCount < k) return false;
     const before = this.history[(this.iterationCount - k) % this.history.length];
     return before - this.objective <= tau * before;
+  }
+
+  /** The objective after `iteration` iterations, one of the last max(stallIterations, outpaceEvery) + 1 (else a RangeError). */
+  objectiveAt(iteration: number): number {
+    if (!Number.isInteger(iteration) || iteration < 0 || iteration > this.iterationCount || this.iterationCount - iteration >= this.history.length) {
+      throw new RangeError(`iteration: ${iteration} is not kept; the start keeps iterations ${Math.max(0, this.iterationCount - this.history.length + 1)} to ${this.iterationCount}`);
+    }
+    return this.history[iteration % this.history.length];
   }
 
   /**

@@ -58,6 +58,14 @@ export interface OptimizerSettings {
   pruneAfter: number;
   /** Starts that go on after pruneAfter iterations: the lowest objectives there. */
   keepStarts: number;
+  /**
+   * Iterations between comparisons of the starts, and the window of a start's recent rate
+   * (0 = never): a start that could not overtake the leading start even descending at
+   * outpaceFactor times that rate until maxIterations stops (best-start.ts outpacedStarts).
+   */
+  outpaceEvery: number;
+  /** How much faster than its recent rate a start is assumed to keep descending when judged. */
+  outpaceFactor: number;
 }
 
 /** The response of the line between the instrument and the qubit (docs/physics.md section 5). */
@@ -170,7 +178,8 @@ export type StopReason =
   | 'stopped'
   | 'line-search-failed'
   | 'stalled'
-  | 'pruned';
+  | 'pruned'
+  | 'outpaced';
 
 /** One progress report of a running design. */
 export interface Progress {
