@@ -106,8 +106,13 @@ function expm(a: number[][]): number[][] {
   const d = a.length;
   let norm = 0;
   for (const row of a) norm = Math.max(norm, row.reduce((s, x) => s + Math.abs(x), 0));
-  const squarings = norm > 0.5 ? Math.ceil(Math.log2(norm / 0.5)) : 0;
-  const scaled = a.map((row) => row.map((x) => x / 2 ** squarings));
+  // Halved until the norm is at most 1/2 (exact steps: the same count on every engine).
+  let squarings = 0, factor = 1;
+  for (let n = norm; n > 0.5; n /= 2) {
+    squarings++;
+    factor /= 2;
+  }
+  const scaled = a.map((row) => row.map((x) => x * factor));
   const identity = (): number[][] => Array.from({ length: d }, (_, i) => Array.from({ length: d }, (_, k) => (i === k ? 1 : 0)));
   let result = identity();
   let term = identity();

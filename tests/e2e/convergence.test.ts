@@ -1,19 +1,25 @@
 // A pruned design in the app, in Debian's Chromium: the transmon demo (examples/transmon-x90.json)
-// runs 5 starts to pruneAfter = 400 iterations and goes on with the keepStarts = 2 best. The
+// with pruning turned on (its optimiser given pruneAfter = 400 and keepStarts = 2, opened by a
+// #spec= link) runs 5 starts to 400 iterations and goes on with the 2 best. The
 // convergence chart must agree with the starts table the moment the run ends: one curve per
 // start from iteration 0 to the iterations the table gives it (the probe and the finish of a
 // start that went on joined), a pruned start's curve ending at 400 with a cross, and starts
 // numbered from 1 everywhere, as the command line numbers them. The same after a reload.
-// Screenshots (light and dark, 1440 and 800 px) in test-results/.
+// The same demo without pruning designs, in the app, what the library designs in Node (the same
+// iterations per start, the same best start). Screenshots (light and dark, 1440 and 800 px) in test-results/.
 import { describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import { runToEnd, skipReason } from './harness.ts';
 import { openReady, screenshotsEverywhere, useHarness } from './screens.ts';
+import transmon from '../../examples/transmon-x90.json';
+import { design } from '../../src/core/api.ts';
 
 const reason = skipReason();
-/** The demo's pruning (examples/transmon-x90.json): every start to 400 iterations, then the 2 best on. */
+/** Pruning: every start to 400 iterations, then the 2 best on (the outpacing rule off, as pruning turns it off). */
 const PRUNE_AFTER = 400;
 const KEEP_STARTS = 2;
+const PRUNED_DEMO = { ...transmon, optimizer: { ...transmon.optimizer, pruneAfter: PRUNE_AFTER, keepStarts: KEEP_STARTS } };
+const HASH = `#spec=${encodeURIComponent(JSON.stringify(PRUNED_DEMO))}`;
 
 interface Row {
   number: string;
@@ -95,7 +101,7 @@ describe.skipIf(reason !== null)('a pruned design in the app', () => {
 
   for (const cores of [2, 8]) {
     it(`draws every start's whole curve the moment the run ends, numbered from 1, and again after a reload (${cores} cores, so ${Math.min(4, cores - 1)} design worker(s))`, async () => {
-      const { page, context, consoleErrors } = await openReady(harness(), { cores });
+      const { page, context, consoleErrors } = await openReady(harness(), { cores, hash: HASH });
       await page.getByTestId('run').click();
       expect(await runToEnd(page)).toMatch(/^done/);
       const rows = await startsTable(page);
@@ -121,10 +127,23 @@ describe.skipIf(reason !== null)('a pruned design in the app', () => {
     }, 120_000);
   }
 
+  it('designs what the library designs in Node for the same spec and seed: every start ends at the same iteration, the best figure the same', async () => {
+    // Reference: the library called in Node on the demo's file (an independent engine: V8 in
+    // Node 20 against Chromium's, whose Math.sin and Math.exp differ in the last bit).
+    const inNode = await design(transmon);
+    const { page, context } = await openReady(harness(), { cores: 2, hash: `#spec=${encodeURIComponent(JSON.stringify(transmon))}` });
+    await page.getByTestId('run').click();
+    expect(await runToEnd(page)).toMatch(/^done/);
+    const rows = await startsTable(page);
+    expect(rows.map((r) => r.iterations)).toEqual(inNode.starts.map((s) => s.iterations));
+    expect(rows.findIndex((r) => r.best)).toBe(inNode.best.start);
+    await context.close();
+  }, 120_000);
+
   it('looks right in light and dark, at 1440 and 800 px wide', async () => {
     await screenshotsEverywhere(harness(), 'convergence-pruned', async (page) => {
       await page.getByTestId('run').click();
       await runToEnd(page);
-    });
+    }, { hash: HASH });
   }, 180_000);
 });
