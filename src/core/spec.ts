@@ -121,7 +121,7 @@ function parseConstraints(value: unknown, segments: number): Constraints {
 }
 
 /** The rules of the `optimizer` fields, shared by parseSpec and checkProblem. */
-export const OPTIMIZER_RULES: Readonly<Record<keyof OptimizerSettings, NumberRule>> = {
+export const OPTIMIZER_RULES: Readonly<Record<Exclude<keyof OptimizerSettings, 'arithmetic'>, NumberRule>> = {
   starts: { integer: true, min: 1, max: 64 },
   // A 32-bit unsigned seed fits every generator the core may use.
   seed: { integer: true, min: 0, max: 4294967295 },
@@ -136,11 +136,16 @@ export const OPTIMIZER_RULES: Readonly<Record<keyof OptimizerSettings, NumberRul
   keepStarts: { integer: true, min: 1, max: 64 },
 };
 
+/** The core builds a design may ask for (`optimizer.arithmetic`). */
+export const ARITHMETIC = ['portable', 'fused'] as const;
+
 function parseOptimizer(value: unknown): OptimizerSettings {
   const path = 'optimizer';
   if (value === undefined) return { ...DEFAULT_OPTIMIZER };
-  const keys = Object.keys(OPTIMIZER_RULES);
+  const keys = [...Object.keys(OPTIMIZER_RULES), 'arithmetic'];
   const obj = readObject(value, path, keys, 'the optimizer settings');
+  // Present only when given, so that a spec without it reads as before.
+  const arithmetic = obj.arithmetic === undefined ? {} : { arithmetic: readChoice(obj, 'arithmetic', path, ARITHMETIC, 'portable') };
   const d = DEFAULT_OPTIMIZER;
   const r = OPTIMIZER_RULES;
   return {
@@ -156,5 +161,6 @@ function parseOptimizer(value: unknown): OptimizerSettings {
     stallTolerance: readNumber(obj, 'stallTolerance', path, r.stallTolerance, d.stallTolerance),
     pruneAfter: readNumber(obj, 'pruneAfter', path, r.pruneAfter, d.pruneAfter),
     keepStarts: readNumber(obj, 'keepStarts', path, r.keepStarts, d.keepStarts),
+    ...arithmetic,
   };
 }

@@ -58,6 +58,12 @@ export interface OptimizerSettings {
   pruneAfter: number;
   /** Starts that go on after pruneAfter iterations: the lowest objectives there. */
   keepStarts: number;
+  /**
+   * The core's build a design runs on (src/core/wasm.ts CoreBuild): 'portable' (absent: the
+   * default, the same bits on every engine) or 'fused' (relaxed SIMD, faster, another last
+   * bit; where the engine cannot run it, the portable build runs). The pulse records which ran.
+   */
+  arithmetic?: 'portable' | 'fused';
 }
 
 /** The response of the line between the instrument and the qubit (docs/physics.md section 5). */
@@ -115,6 +121,8 @@ export interface PulseMetadata {
   spec?: unknown;
   /** Figures reached, as reported when the pulse was made. */
   figures?: Record<string, number | string>;
+  /** A designed pulse: the core's build that made it ('portable' or 'fused'; absent in files written before it was recorded). */
+  arithmetic?: 'portable' | 'fused';
   [key: string]: unknown;
 }
 
