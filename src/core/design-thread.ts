@@ -1,8 +1,11 @@
 // One design thread of designInThreads (threads.ts): runs design() on its start indices one
 // start at a time, posting each start's result as it ends (so that a stop keeps every
-// finished start whole) and streaming progress; stops when the parent says so.
+// finished start whole) and streaming progress; stops when the parent says so. With
+// memberThreads > 1 it evaluates a large problem's member shares with helper threads.
 import { parentPort, workerData } from 'node:worker_threads';
 import { design } from './api.ts';
+import { memberShares, type SharePool } from './member-split.ts';
+import { startSharePool } from './share-threads.ts';
 import type { Problem } from './types.ts';
 import type { ThreadMessage } from './threads.ts';
 
@@ -12,8 +15,11 @@ port.on('message', (message) => {
   if (message === 'stop') controller.abort();
 });
 const post = (message: ThreadMessage): void => port.postMessage(message);
+let pool: SharePool | undefined;
 try {
   const problem = workerData.problem as Problem;
+  // A large problem's member shares on this thread and `memberThreads - 1` helpers (share-threads.ts).
+  if (workerData.memberThreads > 1) pool = await startSharePool(problem, memberShares(problem), workerData.memberThreads);
   const t0 = performance.now();
   let ran = 0;
   for (const start of workerData.startIndices as number[]) {
@@ -28,6 +34,7 @@ try {
       // pruning point, or on to its end.
       stage: workerData.stage,
       initialPulse: workerData.initialPulse,
+      sharePool: pool,
       onProgress: (progress) => post({ kind: 'progress', progress }),
     });
     post({ kind: 'start', result: result.starts[0] });
@@ -38,4 +45,5 @@ try {
   const e = error instanceof Error ? error : new Error(String(error));
   post({ kind: 'error', name: e.name, message: e.message, stack: e.stack });
 }
+pool?.close();
 port.close();

@@ -1,0 +1,192 @@
+// A large design's figure and gradient in member shares: the ensemble cut into a few
+// contiguous shares, each evaluated as a problem of its own (its own block, with the
+// ensemble's normalised weights), and the shares' means and drive gradients summed in share
+// order. The shares depend only on the problem (memberShares), never on the threads that
+// run them: a design gives the same bits whether one thread evaluates every share in turn
+// (ShareEvaluator alone) or several threads share them out (a SharePool, threads.ts).
+// Against the same design evaluated whole, only the order of the sums differs (a last-bit
+// difference, which the optimiser may carry elsewhere): small designs are never split.
+import { BUFFER, createBlock, freeBlock, readBuffer } from './block.ts';
+import type { EncodedMembers } from './encode.ts';
+import { blockSystem, encodeSystem, type SystemEncoding } from './system.ts';
+import type { Problem } from './types.ts';
+import type { Core } from './wasm.ts';
+
+/** One share: members [start, end) of the problem's ensemble. */
+export interface MemberShare {
+  start: number;
+  end: number;
+}
+
+/**
+ * Estimated cost of one figure-and-gradient evaluation per drive sample and member (s): the
+ * qubit's kernels and the ladder's, which grow as the square of the levels (npm run bench:
+ * about 8 ns for the qubit, 490 ns on 3 levels and 1230 ns on 5).
+ */
+function secondsPerSampleMember(problem: Problem): number {
+  const levels = problem.system?.levels ?? 2;
+  return levels > 2 || (problem.target.kind === 'gate' && problem.target.freePhaseAfter) ? 55e-9 * levels * levels : 8e-9;
+}
+
+/**
+ * The least estimated work of one share (s). Handing a share to another thread costs a
+ * wake-up and two copies of the drive (15-20 us here); `npm run bench` measures one thread
+ * against two: two win from about 100 us per evaluation, 50 us per share.
+ */
+export const MIN_SHARE_SECONDS = 50e-6;
+/** At most this many shares (a design spreads them over at most as many threads). */
+export const MAX_SHARES = 4;
+
+/** The estimated time of one figure-and-gradient evaluation of the problem on one thread (s). */
+export function evaluationSeconds(problem: Problem): number {
+  const drive = problem.segments * (problem.line?.oversample ?? 1);
+  return drive * problem.members.length * secondsPerSampleMember(problem);
+}
+
+/**
+ * The shares of a problem's members: one (the whole ensemble, not split) unless each of
+ * two or more shares would cost at least MIN_SHARE_SECONDS; then 2 or 4, contiguous, cut
+ * at multiples of 4 members (the qubit kernels' groups). A function of the problem alone
+ * (the benchmark lowers `minShareSeconds` to time splits of smaller problems).
+ */
+export function memberShares(problem: Problem, minShareSeconds = MIN_SHARE_SECONDS): MemberShare[] {
+  const m = problem.members.length;
+  const groups = Math.ceil(m / 4);
+  let count = 1;
+  while (count * 2 <= MAX_SHARES && count * 2 <= groups && evaluationSeconds(problem) / (count * 2) >= minShareSeconds) count *= 2;
+  const shares: MemberShare[] = [];
+  for (let s = 0; s < count; s++) {
+    const start = Math.min(m, 4 * Math.round((s * groups) / count));
+    const end = s === count - 1 ? m : Math.min(m, 4 * Math.round(((s + 1) * groups) / count));
+    shares.push({ start, end });
+  }
+  return shares;
+}
+
+/** The encoding of members [start, end) of a whole encoding: its normalised weights kept, padded with zero-weight copies. */
+export function shareEncoding(whole: SystemEncoding, share: MemberShare): SystemEncoding {
+  const count = share.end - share.start;
+  const multiple = whole.ladder ? 1 : 2;
+  const padded = Math.ceil(count / multiple) * multiple;
+  const slice = (values: Float64Array, pad: 'first' | 'zero'): Float64Array => {
+    const out = new Float64Array(padded);
+    out.set(values.subarray(share.start, share.end));
+    for (let j = count; j < padded; j++) out[j] = pad === 'zero' ? 0 : values[share.start];
+    return out;
+  };
+  const members: EncodedMembers = {
+    count, padded, scale: slice(whole.members.scale, 'first'), detuning: slice(whole.members.detuning, 'first'), weight: slice(whole.members.weight, 'zero'),
+  };
+  const memberParams = whole.memberParams?.map((values, k) => (k < 2 ? [members.scale, members.detuning][k] : slice(values, 'first')));
+  return { ...whole, members, ...(memberParams ? { memberParams } : {}) };
+}
+
+/** The figure and drive gradient of one share. */
+export interface ShareResult {
+  mean: number;
+  gradI: Float64Array;
+  gradQ: Float64Array;
+}
+
+/** Shares evaluated by other threads: handed the drive, then waited for (threads.ts). */
+export interface SharePool {
+  /** Share indices this thread evaluates itself; the pool's threads take the others. */
+  readonly local: readonly number[];
+  /** Hand the drive to the pool's threads; they start at once. */
+  post(driveI: Float64Array, driveQ: Float64Array): void;
+  /** Wait for the pool's threads: the result of each of their shares, by share index. */
+  collect(): ReadonlyMap<number, ShareResult>;
+  /** End the pool's threads. */
+  close(): void;
+}
+
+/**
+ * Blocks of some shares of a problem in one core, each a problem of its own on the drive
+ * grid (nDrive samples of driveDt, the identity map: the drive is given).
+ */
+export class ShareBlocks {
+  private readonly blocks = new Map<number, number>();
+  constructor(
+    private readonly core: Core, problem: Problem, shares: readonly MemberShare[], indices: readonly number[], readonly nDrive: number, driveDt: number,
+  ) {
+    const whole = encodeSystem(problem.target, problem.members, problem.system);
+    try {
+      for (const s of indices) {
+        const enc = shareEncoding(whole, shares[s]);
+        this.blocks.set(s, createBlock(core, { ...blockSystem(enc), target: problem.target, segments: nDrive, dt: driveDt, held: true }));
+      }
+    } catch (error) {
+      this.dispose();
+      throw error;
+    }
+  }
+
+  /** Share s on the drive (I, Q): its weighted mean, and its gradient as live views of the core's memory. */
+  evaluate(s: number, driveI: ArrayLike<number>, driveQ: ArrayLike<number>): ShareResult {
+    const core = this.core, p = this.blocks.get(s)!;
+    core.view(core.exports.problemBuffer(p, BUFFER.samplesI), this.nDrive).set(driveI);
+    core.view(core.exports.problemBuffer(p, BUFFER.samplesQ), this.nDrive).set(driveQ);
+    const mean = core.exports.problemGradient(p);
+    return { mean, gradI: core.view(core.exports.problemBuffer(p, BUFFER.gradI), this.nDrive), gradQ: core.view(core.exports.problemBuffer(p, BUFFER.gradQ), this.nDrive) };
+  }
+
+  /** A copy of share s's last per-member figures (tests). */
+  perMember(s: number, count: number): Float64Array {
+    return readBuffer(this.core, this.blocks.get(s)!, BUFFER.perMember, count);
+  }
+
+  /** Free the blocks (idempotent). */
+  dispose(): void {
+    for (const p of this.blocks.values()) freeBlock(this.core, p);
+    this.blocks.clear();
+  }
+}
+
+/**
+ * Split the design objective of block `p` into the member shares `shares` (memberShares): this core evaluates its own shares (every share without a pool) on blocks of its
+ * own, the pool's threads the others; the sums run in share order. Returns what frees it.
+ */
+export function splitObjective(
+  core: Core, p: number, problem: Problem, shares: readonly MemberShare[], nDrive: number, driveDt: number, pool?: SharePool,
+): () => void {
+  const count = shares.length;
+  const local = pool ? pool.local : Array.from({ length: count }, (_, s) => s);
+  const blocks = new ShareBlocks(core, problem, shares, local, nDrive, driveDt);
+  const ex = core.exports;
+  core.shareEvaluators.set(p, () => {
+    const driveI = core.view(ex.problemBuffer(p, BUFFER.driveI), nDrive);
+    const driveQ = core.view(ex.problemBuffer(p, BUFFER.driveQ), nDrive);
+    pool?.post(driveI, driveQ);
+    const results = new Map<number, ShareResult>();
+    // Views of each share's own block: nothing allocates until the sum has read them.
+    for (const s of local) results.set(s, blocks.evaluate(s, driveI, driveQ));
+    if (pool) for (const [s, r] of pool.collect()) results.set(s, r);
+    return sumShares(results, count, core.view(ex.problemBuffer(p, BUFFER.gradDriveI), nDrive), core.view(ex.problemBuffer(p, BUFFER.gradDriveQ), nDrive));
+  });
+  ex.problemSetShares(p, 1);
+  return () => {
+    core.shareEvaluators.delete(p);
+    blocks.dispose();
+  };
+}
+
+/** The shares' sum, in share order (the one order every split of a problem uses): gradient into gradI/Q, the mean returned. */
+export function sumShares(results: ReadonlyMap<number, ShareResult>, count: number, gradI: Float64Array, gradQ: Float64Array): number {
+  let mean = 0;
+  for (let s = 0; s < count; s++) {
+    const r = results.get(s);
+    if (!r) throw new Error(`member share ${s} of ${count} was not evaluated`);
+    if (s === 0) {
+      gradI.set(r.gradI);
+      gradQ.set(r.gradQ);
+      mean = r.mean;
+      continue;
+    }
+    for (let k = 0; k < gradI.length; k++) {
+      gradI[k] += r.gradI[k];
+      gradQ[k] += r.gradQ[k];
+    }
+    mean += r.mean;
+  }
+  return mean;
+}
