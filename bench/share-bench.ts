@@ -6,6 +6,7 @@
 import { prepareGradientJob } from '../src/core/gradient.ts';
 import { evaluationSeconds, memberShares, MIN_SHARE_SECONDS, ShareBlocks, sumShares, type MemberShare, type ShareResult } from '../src/core/member-split.ts';
 import { startSharePool } from '../src/core/share-threads.ts';
+import { designInThreads } from '../src/core/threads.ts';
 import { parseSpec } from '../src/core/spec.ts';
 import type { Pulse } from '../src/core/types.ts';
 import { getCore } from '../src/core/wasm.ts';
@@ -95,8 +96,47 @@ async function measure(segments: number, points: number, rounds: number): Promis
   }
 }
 
+/** A design of one start on one thread and on two (its shares routed by measured time): seconds from its first to its last iteration. */
+export interface ShareDesignFigures {
+  segments: number;
+  members: number;
+  iterations: number;
+  oneThreadS: number;
+  twoThreadsS: number;
+  speedup: number;
+  samePulse: boolean;
+}
+
+async function designFigures(segments: number, points: number, iterations: number, rounds: number): Promise<ShareDesignFigures> {
+  const spec = {
+    target: { gate: { axis: [1, 0, 0], angleDeg: 90 } }, duration: segments * 2e-9, segments, rabiMax: 1e7,
+    ensemble: { detuning: { min: -2e6, max: 2e6, points }, amplitudeError: { min: -0.1, max: 0.1, points } },
+    optimizer: { starts: 1, maxIterations: iterations, stallIterations: 0 },
+  };
+  // Thread start-up (tsx compiles the sources in each thread here) is left out: from the first iteration's report to the last's.
+  const run = async (threads: number): Promise<{ s: number; i: Float64Array }> => {
+    let first = NaN, last = NaN;
+    const r = await designInThreads(spec, {
+      threads, onProgress: (p) => {
+        if (p.iteration === 0) first = p.elapsedS;
+        last = p.elapsedS;
+      },
+    });
+    return { s: last - first, i: r.pulse.i };
+  };
+  const one: number[] = [], two: number[] = [];
+  let samePulse = true;
+  for (let r = 0; r < rounds; r++) {
+    const a = await run(1), b = await run(2);
+    one.push(a.s);
+    two.push(b.s);
+    samePulse &&= a.i.every((x, k) => Object.is(x, b.i[k]));
+  }
+  return { segments, members: points * points, iterations, oneThreadS: medianOf(one), twoThreadsS: medianOf(two), speedup: medianOf(one.map((x, k) => x / two[k])), samePulse };
+}
+
 /** The figures over the sizes, printed through `log`. */
-export async function shareBenchmark(log: (text: string) => void): Promise<ShareFigures[]> {
+export async function shareBenchmark(log: (text: string) => void): Promise<{ evaluations: ShareFigures[]; designs: ShareDesignFigures[] }> {
   log('member shares on threads: one figure-and-gradient evaluation, two shares on one thread against two threads (medians of 5 alternated rounds)');
   log(`segments  members  estimated us   whole us   1 thread us   2 threads us   1/2 threads   library's shares (threshold ${MIN_SHARE_SECONDS * 1e6} us per share)`);
   const out: ShareFigures[] = [];
@@ -105,5 +145,13 @@ export async function shareBenchmark(log: (text: string) => void): Promise<Share
     out.push(f);
     log(`${String(segments).padStart(8)}  ${String(f.members).padStart(7)}  ${f.estimatedUs.toFixed(0).padStart(12)}  ${f.wholeUs.toFixed(0).padStart(9)}  ${f.oneThreadUs.toFixed(0).padStart(12)}  ${f.twoThreadsUs.toFixed(0).padStart(13)}  ${f.speedup.toFixed(2).padStart(12)}   ${f.shares}`);
   }
-  return out;
+  log('one start designed with --threads 1 and 2 (designInThreads; shares on a helper thread when measured faster), first to last iteration, medians of 3 alternated rounds');
+  log('segments  members  iterations  1 thread s  2 threads s  1/2 threads  same pulse');
+  const designs: ShareDesignFigures[] = [];
+  for (const [segments, points, iterations] of [[1000, 11, 150], [10000, 5, 60]] as const) {
+    const d = await designFigures(segments, points, iterations, 3);
+    designs.push(d);
+    log(`${String(segments).padStart(8)}  ${String(d.members).padStart(7)}  ${String(iterations).padStart(10)}  ${d.oneThreadS.toFixed(3).padStart(10)}  ${d.twoThreadsS.toFixed(3).padStart(11)}  ${d.speedup.toFixed(2).padStart(11)}  ${d.samePulse ? 'yes' : 'NO'}`);
+  }
+  return { evaluations: out, designs };
 }

@@ -143,31 +143,69 @@ export class ShareBlocks {
 }
 
 /**
- * Split the design objective of block `p` into the member shares `shares` (memberShares): this core evaluates its own shares (every share without a pool) on blocks of its
- * own, the pool's threads the others; the sums run in share order. Returns what frees it.
+ * Split the design objective of block `p` into the member shares `shares` (memberShares):
+ * this core evaluates them on blocks of its own, or, with a pool, its own part while the
+ * pool's threads evaluate the rest; the sums run in share order either way, so the choice
+ * never changes a bit (chooseShareRoute picks by measured time). Returns what frees it.
  */
 export function splitObjective(
   core: Core, p: number, problem: Problem, shares: readonly MemberShare[], nDrive: number, driveDt: number, pool?: SharePool,
 ): () => void {
   const count = shares.length;
-  const local = pool ? pool.local : Array.from({ length: count }, (_, s) => s);
-  const blocks = new ShareBlocks(core, problem, shares, local, nDrive, driveDt);
+  const all = Array.from({ length: count }, (_, s) => s);
+  const blocks = new ShareBlocks(core, problem, shares, all, nDrive, driveDt);
   const ex = core.exports;
+  const route = new ShareRoute();
   core.shareEvaluators.set(p, () => {
     const driveI = core.view(ex.problemBuffer(p, BUFFER.driveI), nDrive);
     const driveQ = core.view(ex.problemBuffer(p, BUFFER.driveQ), nDrive);
-    pool?.post(driveI, driveQ);
+    const usePool = pool !== undefined && route.next();
+    const t0 = performance.now();
+    if (usePool) pool.post(driveI, driveQ);
     const results = new Map<number, ShareResult>();
     // Views of each share's own block: nothing allocates until the sum has read them.
-    for (const s of local) results.set(s, blocks.evaluate(s, driveI, driveQ));
-    if (pool) for (const [s, r] of pool.collect()) results.set(s, r);
-    return sumShares(results, count, core.view(ex.problemBuffer(p, BUFFER.gradDriveI), nDrive), core.view(ex.problemBuffer(p, BUFFER.gradDriveQ), nDrive));
+    for (const s of usePool ? pool.local : all) results.set(s, blocks.evaluate(s, driveI, driveQ));
+    if (usePool) for (const [s, r] of pool.collect()) results.set(s, r);
+    const mean = sumShares(results, count, core.view(ex.problemBuffer(p, BUFFER.gradDriveI), nDrive), core.view(ex.problemBuffer(p, BUFFER.gradDriveQ), nDrive));
+    if (pool) route.took(usePool, performance.now() - t0);
+    return mean;
   });
   ex.problemSetShares(p, 1);
   return () => {
     core.shareEvaluators.delete(p);
     blocks.dispose();
   };
+}
+
+/**
+ * Whether the next evaluation hands shares to the pool's threads or runs them all here:
+ * both routes give the same bits, so the faster one is taken, from running means of each
+ * route's times. The first evaluations alternate; later every EXPLORE_EVERY-th takes the
+ * other route, since the machine's load changes (a busy machine can make the helper
+ * threads wait for a core and two threads slower than one).
+ */
+export class ShareRoute {
+  static readonly EXPLORE_EVERY = 32;
+  private count = 0;
+  private pooled = NaN;
+  private alone = NaN;
+  private last = true;
+  /** True: use the pool for the next evaluation. */
+  next(): boolean {
+    const k = this.count++;
+    if (k < 6) this.last = k % 2 === 0;
+    else {
+      const faster = this.pooled < this.alone;
+      this.last = k % ShareRoute.EXPLORE_EVERY === 0 ? !faster : faster;
+    }
+    return this.last;
+  }
+  /** The time (ms) an evaluation took on its route. */
+  took(pooled: boolean, ms: number): void {
+    const mean = (old: number): number => (Number.isNaN(old) ? ms : 0.7 * old + 0.3 * ms);
+    if (pooled) this.pooled = mean(this.pooled);
+    else this.alone = mean(this.alone);
+  }
 }
 
 /** The shares' sum, in share order (the one order every split of a problem uses): gradient into gradI/Q, the mean returned. */

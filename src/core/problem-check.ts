@@ -6,7 +6,7 @@ import { checkLine } from './line-spec.ts';
 import { MAX_MEMBERS } from './spec-ensemble.ts';
 import { checkNumber, describeRule } from './spec-fields.ts';
 import { ARITHMETIC, MAX_SEGMENTS, OPTIMIZER_RULES } from './spec.ts';
-import type { OptimizerSettings, Problem, Target, Vec3 } from './types.ts';
+import type { Problem, Target, Vec3 } from './types.ts';
 
 function checkVector(value: unknown, field: string): void {
   const v = value as Vec3;

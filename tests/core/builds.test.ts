@@ -3,8 +3,10 @@
 // (tests/reference/oracle.ts) in a Node started with --experimental-wasm-relaxed-simd
 // (where Node 20 runs the fused build) and in one without it (where the portable build
 // stands in), so that both paths run whatever flags run this file.
-import { execFileSync } from 'node:child_process';
-import { readFileSync } from 'node:fs';
+import { execFileSync, spawnSync } from 'node:child_process';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { design } from '../../src/core/api.ts';
 import { parseSpec } from '../../src/core/spec.ts';
@@ -12,7 +14,7 @@ import { SpecError } from '../../src/core/errors.ts';
 import { CORE_FILES, buildFor, fusedAvailable } from '../../src/core/wasm.ts';
 import { readPulse, writePulse } from '../../src/io/pulse.ts';
 import { normwiseRelativeError, relativeError } from '../reference/tolerance.ts';
-import { CASES, DESIGN_SPEC } from './builds-cases.ts';
+import { DESIGN_SPEC } from './builds-cases.ts';
 
 const ROOT = new URL('../../', import.meta.url).pathname;
 
@@ -106,5 +108,32 @@ describe('the pulse file records the build', () => {
     const old = readPulse(JSON.stringify({ format: 'gatesmith.pulse', version: 1, dt: 1e-9, i: [1, 2], q: [0, 0], metadata: { origin: 'design' } }));
     expect(old.metadata.arithmetic).toBeUndefined();
     expect(Array.from(old.i)).toEqual([1, 2]);
+  });
+});
+
+describe('design --fused on the command line', () => {
+  it('records the build that ran in the pulse file, and says when the engine cannot run the fused one', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'gatesmith-builds-'));
+    try {
+      const spec = join(dir, 'spec.json');
+      writeFileSync(spec, JSON.stringify(DESIGN_SPEC));
+      const design = (flags: string[], out: string, fused = true) =>
+        spawnSync(process.execPath, [...flags, 'bin/gatesmith.js', 'design', spec, '--out', join(dir, out), ...(fused ? ['--fused'] : [])], { cwd: ROOT, encoding: 'utf8', timeout: 120_000 });
+      const on = design(['--experimental-wasm-relaxed-simd'], 'on.json');
+      expect(on.status, on.stderr).toBe(0);
+      expect(on.stderr).not.toMatch(/relaxed SIMD/);
+      expect(readPulse(readFileSync(join(dir, 'on.json'), 'utf8')).metadata.arithmetic).toBe('fused');
+      const off = design([], 'off.json');
+      expect(off.status, off.stderr).toBe(0);
+      expect(off.stderr).toMatch(/warning: --fused: this engine does not run relaxed SIMD \(Node 20 needs --experimental-wasm-relaxed-simd\); designing on the portable build/);
+      expect(readPulse(readFileSync(join(dir, 'off.json'), 'utf8')).metadata.arithmetic).toBe('portable');
+      const plain = design(['--experimental-wasm-relaxed-simd'], 'plain.json', false);
+      expect(plain.status, plain.stderr).toBe(0);
+      const a = readPulse(readFileSync(join(dir, 'plain.json'), 'utf8')), b = readPulse(readFileSync(join(dir, 'off.json'), 'utf8'));
+      expect(a.metadata.arithmetic).toBe('portable');
+      expect(Array.from(a.i)).toEqual(Array.from(b.i));
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
   });
 });
