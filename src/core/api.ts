@@ -8,14 +8,13 @@ import { blockSystem, encodeSystem, MAX_CHECK_LEVELS, type SystemEncoding } from
 import { qubitDrive } from './line.ts';
 import { lineJson } from './line-spec.ts';
 import { StartRun } from './run.ts';
-import type { SharePool } from './member-split.ts';
 import { checkProblemAngles, checkPulseAngles } from './limits.ts';
 import { checkProblem, checkTarget } from './problem-check.ts';
 import { bestStart, prunes, startsToContinue } from './best-start.ts';
 import { axisValues, checkRegion } from './grid.ts';
 import { parseSpec } from './spec.ts';
 import type {
-  DesignResult, Evaluation, GridAxis, LadderSystem, Line, Member, MemberFigure, Problem, Progress, Pulse, StartResult, StopReason, Target,
+  DesignResult, Evaluation, GridAxis, LadderSystem, Line, Member, MemberFigure, Problem, Progress, Pulse, SharePool, StartResult, StopReason, Target,
   TruncationCheck,
 } from './types.ts';
 import { buildFor, getCore, loadCore } from './wasm.ts';

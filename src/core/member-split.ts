@@ -9,7 +9,9 @@
 import { BUFFER, createBlock, freeBlock, readBuffer } from './block.ts';
 import type { EncodedMembers } from './encode.ts';
 import { blockSystem, encodeSystem, type SystemEncoding } from './system.ts';
-import type { Problem } from './types.ts';
+import type { Problem, SharePool, ShareResult } from './types.ts';
+
+export type { SharePool, ShareResult } from './types.ts';
 import type { Core } from './wasm.ts';
 
 /** One share: members [start, end) of the problem's ensemble. */
@@ -79,25 +81,6 @@ export function shareEncoding(whole: SystemEncoding, share: MemberShare): System
   };
   const memberParams = whole.memberParams?.map((values, k) => (k < 2 ? [members.scale, members.detuning][k] : slice(values, 'first')));
   return { ...whole, members, ...(memberParams ? { memberParams } : {}) };
-}
-
-/** The figure and drive gradient of one share. */
-export interface ShareResult {
-  mean: number;
-  gradI: Float64Array;
-  gradQ: Float64Array;
-}
-
-/** Shares evaluated by other threads: handed the drive, then waited for (threads.ts). */
-export interface SharePool {
-  /** Share indices this thread evaluates itself; the pool's threads take the others. */
-  readonly local: readonly number[];
-  /** Hand the drive to the pool's threads; they start at once. */
-  post(driveI: Float64Array, driveQ: Float64Array): void;
-  /** Wait for the pool's threads: the result of each of their shares, by share index. */
-  collect(): ReadonlyMap<number, ShareResult>;
-  /** End the pool's threads. */
-  close(): void;
 }
 
 /**

@@ -225,3 +225,22 @@ export interface GridAxis {
   max: number;
   points: number;
 }
+
+/** The figure and drive gradient of one share. */
+export interface ShareResult {
+  mean: number;
+  gradI: Float64Array;
+  gradQ: Float64Array;
+}
+
+/** Member shares evaluated by other threads (src/core/member-split.ts): handed the drive, then waited for (share-threads.ts). */
+export interface SharePool {
+  /** Share indices this thread evaluates itself; the pool's threads take the others. */
+  readonly local: readonly number[];
+  /** Hand the drive to the pool's threads; they start at once. */
+  post(driveI: Float64Array, driveQ: Float64Array): void;
+  /** Wait for the pool's threads: the result of each of their shares, by share index. */
+  collect(): ReadonlyMap<number, ShareResult>;
+  /** End the pool's threads. */
+  close(): void;
+}

@@ -94,6 +94,30 @@ describe('the split objective', () => {
     }
   });
 
+  it('splits a transmon ladder the same way: the shares sum to the whole objective and gradient', () => {
+    // 3 levels cost about 60 times a qubit per sample-member: 40 samples x 9 members are enough.
+    const problem = parseSpec({ ...LARGE, segments: 40, duration: 4e-8, rabiMax: 5e7, system: { levels: 3, anharmonicity: -2e8 },
+      ensemble: { detuning: { min: -1e6, max: 1e6, points: 3 }, amplitudeError: { min: -0.05, max: 0.05, points: 3 } } });
+    expect(memberShares(problem).length).toBe(2);
+    const run = new StartRun(problem, 0);
+    const core = getCore(), ex = core.exports;
+    try {
+      const nVar = ex.problemVariables(run.block);
+      const x = core.read(ex.optVariables(run.block), nVar);
+      const at = () => core.job(() => {
+        const xp = core.put(x), gp = core.alloc(nVar);
+        return { f: ex.objective(run.block, xp, gp), g: core.read(gp, nVar) };
+      });
+      const split = at();
+      ex.problemSetShares(run.block, 0);
+      const whole = at();
+      expect(relativeError(split.f, whole.f)).toBeLessThan(1e-15);
+      expect(normwiseRelativeError(split.g, whole.g)).toBeLessThan(1e-14);
+    } finally {
+      run.dispose();
+    }
+  });
+
   it('a design gives the same pulse, bit for bit, in one loop, on one thread and with its shares on two threads', async () => {
     const inProcess = await design(LARGE);
     const one = await designInThreads(LARGE, { threads: 1 });
