@@ -6,7 +6,7 @@
 // (ShareEvaluator alone) or several threads share them out (a SharePool, threads.ts).
 // Against the same design evaluated whole, only the order of the sums differs (a last-bit
 // difference, which the optimiser may carry elsewhere): small designs are never split.
-import { BUFFER, createBlock, freeBlock, readBuffer } from './block.ts';
+import { BUFFER, createBlock, freeBlock } from './block.ts';
 import type { EncodedMembers } from './encode.ts';
 import { blockSystem, encodeSystem, type SystemEncoding } from './system.ts';
 import type { Problem, SharePool, ShareResult } from './types.ts';
@@ -111,11 +111,6 @@ export class ShareBlocks {
     core.view(core.exports.problemBuffer(p, BUFFER.samplesQ), this.nDrive).set(driveQ);
     const mean = core.exports.problemGradient(p);
     return { mean, gradI: core.view(core.exports.problemBuffer(p, BUFFER.gradI), this.nDrive), gradQ: core.view(core.exports.problemBuffer(p, BUFFER.gradQ), this.nDrive) };
-  }
-
-  /** A copy of share s's last per-member figures (tests). */
-  perMember(s: number, count: number): Float64Array {
-    return readBuffer(this.core, this.blocks.get(s)!, BUFFER.perMember, count);
   }
 
   /** Free the blocks (idempotent). */

@@ -133,10 +133,6 @@ export function fusedAvailable(): boolean {
 
 const loaded: Record<CoreBuild, Core | null> = { portable: null, fused: null };
 
-function instantiate(module: WebAssembly.Module): Core {
-  return new Core(module);
-}
-
 async function compile(source: BufferSource | WebAssembly.Module | URL | string): Promise<WebAssembly.Module> {
   if (source instanceof WebAssembly.Module) return source;
   if (typeof source === 'string' || source instanceof URL) {
@@ -154,8 +150,8 @@ async function compile(source: BufferSource | WebAssembly.Module | URL | string)
 export async function loadCore(
   source: BufferSource | WebAssembly.Module | URL | string, fused?: BufferSource | WebAssembly.Module | URL | string,
 ): Promise<Core> {
-  loaded.portable = instantiate(await compile(source));
-  if (fused !== undefined && fusedAvailable()) loaded.fused = instantiate(await compile(fused));
+  loaded.portable = new Core(await compile(source));
+  if (fused !== undefined && fusedAvailable()) loaded.fused = new Core(await compile(fused));
   return loaded.portable;
 }
 
@@ -189,7 +185,7 @@ export function getCore(build: CoreBuild = 'portable'): Core {
   } catch {
     throw new Error(`the wasm core ${url.pathname} is missing: run "npm run build:wasm" (npm install runs it)`);
   }
-  loaded[which] = instantiate(new WebAssembly.Module(bytes as BufferSource));
+  loaded[which] = new Core(new WebAssembly.Module(bytes as BufferSource));
   return loaded[which];
 }
 
