@@ -13,4 +13,4 @@ export {
   optInit, optStep, optObjective, optGradientNorm, optVariables, optGradient, optEvaluations, optIterations, optStoredPairs, optMoveTo,
 } from './lbfgs';
 export { ladderPropagator } from './ladder';
-export { ladderFigure, ladderGradient, ladderPopulations, ladderWorkspaceSize } from './ladder-sweep';
+export { ladderPopulations, ladderWorkspaceSize } from './ladder-sweep';

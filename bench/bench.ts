@@ -14,7 +14,7 @@ import { prepareGradientJob } from '../src/core/gradient.ts';
 import { heldSpectrum } from '../src/core/spectrum.ts';
 import { calibrateDrag } from '../src/core/drag.ts';
 import { asLadderMembers } from '../src/core/ladder.ts';
-import { parseLadderSpec } from '../src/core/spec-system.ts';
+import { parseSpec } from '../src/core/spec.ts';
 import { FFT_CROSSOVER, lineLayout } from '../src/core/line.ts';
 import type { Line, Member, Pulse, Target } from '../src/core/types.ts';
 import { getCore } from '../src/core/wasm.ts';
@@ -136,7 +136,7 @@ for (const levels of [3, 5]) {
 }
 
 // 1c. Calibration of the DRAG family on an invented lab's 15 ns transmon X(180) (5 levels, 3 members).
-const dragSpec = parseLadderSpec({
+const dragSpec = parseSpec({
   target: { gate: { axis: [1, 0, 0], angleDeg: 180 } }, duration: 1.5e-8, segments: 36, rabiMax: 2.5e8,
   system: { levels: 5, anharmonicity: -2e8 }, ensemble: { amplitudeError: { min: -0.01, max: 0.01, points: 3 } },
 });
@@ -145,7 +145,7 @@ log('\nDRAG calibration (amplitude, beta, drive detuning by Nelder-Mead), 15 ns 
 for (const envelope of ['gaussian', 'cosine'] as const) {
   let last = calibrateDrag(dragSpec, { envelope });
   const ms = median(() => void (last = calibrateDrag(dragSpec, { envelope })), 9, 1);
-  const row = { envelope, ms, evaluations: last.evaluations, meanInfidelity: last.evaluation.meanInfidelity, meanLeakage: last.evaluation.meanLeakage };
+  const row = { envelope, ms, evaluations: last.evaluations, meanInfidelity: last.evaluation.meanInfidelity, meanLeakage: last.evaluation.meanLeakage ?? 0 };
   dragCalibration.push(row);
   log(`${envelope.padEnd(9)} ${ms.toFixed(1).padStart(7)} ms   ${row.evaluations} evaluations   mean infidelity ${row.meanInfidelity.toExponential(2)}   leakage ${row.meanLeakage.toExponential(2)}`);
 }

@@ -7,7 +7,7 @@ import { DEFAULT_REGION_POINTS, MAX_AXIS_POINTS, checkAxis, ensembleRegion, type
 import type { PulseJudgement } from '../core/compare.ts';
 import type { GridAxis, Problem, Pulse } from '../core/types.ts';
 import { flagValue, type FlagSpec, type ParsedArgs } from './args.ts';
-import { formatFrequency, formatInfidelity, formatRelative, formatTarget, formatTime } from './format.ts';
+import { formatFrequency, formatInfidelity, formatMemberAt, formatRelative, formatTarget, formatTime } from './format.ts';
 
 /** Points per axis of the default region. */
 export const DEFAULT_POINTS = DEFAULT_REGION_POINTS;
@@ -77,16 +77,15 @@ export function formatWidth(value: number, reachedLimit: boolean, kind: 'detunin
 export function summaryText(j: PulseJudgement, members: number): string {
   const f = j.figures;
   const { choice, region } = j;
-  const at = (detuning: number, amplitudeError: number) => `detuning ${formatFrequency(detuning)}, amplitude error ${formatRelative(amplitudeError)}`;
   const rows: [string, string][] = [
     ['target', formatTarget(choice.targetUsed)],
     ...(choice.targetNote ? [['note', choice.targetNote] as [string, string]] : []),
     ['mean infidelity', `${formatInfidelity(f.meanInfidelity)} (weighted mean over the spec's ensemble, ${members} member${members === 1 ? '' : 's'})`],
-    ['worst infidelity', `${formatInfidelity(f.worstInfidelity)} (worst member of the ensemble: ${at(f.worstMember.detuning, f.worstMember.amplitudeError)})`],
+    ['worst infidelity', `${formatInfidelity(f.worstInfidelity)} (worst member of the ensemble: ${formatMemberAt(f.worstMember)})`],
     ...leakageRows(j),
     ['region', `detuning ${formatGrid(region.detuning, 'detuning')}; amplitude error ${formatGrid(region.amplitudeError, 'amplitudeError')}`],
     ['region mean', `${formatInfidelity(f.regionMeanInfidelity)} (unweighted mean over the grid)`],
-    ['region worst', `${formatInfidelity(f.regionWorstInfidelity)} at ${at(f.regionWorstAt.detuning, f.regionWorstAt.amplitudeError)}`],
+    ['region worst', `${formatInfidelity(f.regionWorstInfidelity)} at ${formatMemberAt(f.regionWorstAt)}`],
     ['area below threshold', `${percent(f.areaFraction)} of the grid below ${formatInfidelity(j.threshold)}`],
     ['detuning half-width', `${formatWidth(f.detuningHalfWidth, f.detuningInterval.reachedLimit, 'detuning')} (below threshold from ${formatFrequency(f.detuningInterval.lower)} to ${formatFrequency(f.detuningInterval.upper)} at zero amplitude error)`],
     ['amplitude half-width', `${formatWidth(f.amplitudeHalfWidth, f.amplitudeInterval.reachedLimit, 'amplitudeError')} (below threshold from ${formatRelative(f.amplitudeInterval.lower)} to ${formatRelative(f.amplitudeInterval.upper)} at zero detuning)`],

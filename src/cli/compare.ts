@@ -20,7 +20,7 @@ const ARGS: ArgSpec = {
   command: 'compare',
   positionals: ['SPEC', 'PULSE...'],
   flags: [
-    { name: 'composites', value: 'LIST', help: "published sequences to add, e.g. bb1,sk1,corpse (built under the spec's rabiMax and dt)" },
+    { name: 'composites', value: 'LIST', help: "published sequences to add, e.g. bb1,sk1,corpse (built under the spec's rabiMax and dt), or drag-gaussian,drag-cosine (the DRAG family, calibrated on the spec)" },
     { name: 'sort', value: SORTS.join('|'), help: 'figure that orders the rows, best first (default mean)' },
     ...REGION_FLAGS,
     { name: 'json', help: 'print {target, region, threshold, sortBy, rows} as JSON instead of a table' },

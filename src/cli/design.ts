@@ -13,7 +13,7 @@ import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
 import { estimateDesign, longDesignNotice, measureSecondsPerMemberSample, type DesignEstimate } from './estimate.ts';
 import { checkOutputName, checkWritable, loadSpec, printWarnings, writeFilesTogether } from './files.ts';
-import { formatFrequency, formatInfidelity, formatRelative, formatStopReason, formatTarget, formatTime } from './format.ts';
+import { formatFrequency, formatInfidelity, formatMemberAt, formatStopReason, formatTarget, formatTime } from './format.ts';
 import { progressReporter } from './progress.ts';
 
 /** Designs estimated to run longer than this (s) are announced and wait for --yes or a time limit. */
@@ -178,7 +178,7 @@ function plan(
   // Starts over threads, and a start alone with a large ensemble over its member shares (threads.ts memberThreads).
   const useful = Math.max(problem.optimizer.starts, memberShares(problem).length);
   const threads = requested ?? (single.seconds > 2 ? Math.max(1, Math.min(availableParallelism(), useful)) : 1);
-  return { threads, estimate: estimateDesign(problem, threads, single.secondsPerMemberSample) };
+  return { threads, estimate: estimateDesign(problem, threads, single.qubitSecondsPerMemberSample) };
 }
 
 /** The lowest-objective report among each start's latest with samples. */
@@ -314,7 +314,7 @@ function designTable(result: DesignResult, problem: Problem, peak: number, out: 
     ['ensemble', `${ev.members.length} member${ev.members.length === 1 ? '' : 's'}`],
     ...(problem.line ? [['line', `${describeLine(problem.line)}: the figures are of the drive the qubit sees`] as [string, string]] : []),
     ['mean infidelity', formatInfidelity(ev.meanInfidelity)],
-    ['worst infidelity', `${formatInfidelity(ev.worstInfidelity)} at detuning ${formatFrequency(worst.detuning)}, amplitude error ${formatRelative(worst.amplitudeError)}`],
+    ['worst infidelity', `${formatInfidelity(ev.worstInfidelity)} at ${formatMemberAt(worst)}`],
     ...ladderRows(result, problem),
     ['best start', `${result.best.start + 1} of ${result.starts.length}: ${result.best.iterations} iterations, ended on ${formatStopReason(result.best.stopReason)}`],
     ['all starts', result.starts.map((s) => `${s.start + 1}: ${formatInfidelity(s.meanInfidelity)}`).join('  ')],

@@ -1,14 +1,18 @@
 // How long a design may take, before it starts: the problem's size times the speed of this
 // machine, measured on a small job of the same core. The figure is an upper bound (every
 // start running to its iteration limit); most designs stop earlier, at their target.
+import { systemCostFactor } from '../core/cost.ts';
+import { needsLadder } from '../core/system.ts';
 import type { Member, Problem, Pulse } from '../core/types.ts';
 import { formatTime } from './format.ts';
+
+export { systemCostFactor } from '../core/cost.ts';
 
 /** Optimiser iterations cost about this many figure-and-gradient evaluations (L-BFGS line searches). */
 const EVALUATIONS_PER_ITERATION = 1.2;
 /** A figure-and-gradient evaluation costs about this many figure-only evaluations (npm run bench). */
 const GRADIENT_OVER_FIGURE = 2.6;
-/** Cost per member-sample of a gradient evaluation assumed before measuring (s); a generous guess. */
+/** Cost per member-sample of a qubit gradient evaluation assumed before measuring (s); a generous guess. */
 export const ASSUMED_SECONDS_PER_MEMBER_SAMPLE = 2e-8;
 
 /** The time a design may take and what the figure rests on. */
@@ -17,28 +21,33 @@ export interface DesignEstimate {
   seconds: number;
   /** One optimiser iteration (s): the longest a stop inside the same thread can wait. */
   iterationSeconds: number;
-  /** Measured (or assumed) gradient cost per member-sample (s). */
+  /** Gradient cost per member-sample of this problem's system (s): the qubit's times systemCostFactor. */
   secondsPerMemberSample: number;
+  /** The qubit's gradient cost per member-sample it rests on (s), measured or assumed. */
+  qubitSecondsPerMemberSample: number;
   threads: number;
 }
 
-/** Members the core processes: padded to a multiple of 4, as the kernels do. */
+/** Members the core processes: padded to a multiple of 4 on the qubit kernels; the ladder kernels take one at a time. */
 function paddedMembers(problem: Problem): number {
-  return Math.ceil(problem.members.length / 4) * 4;
+  const multiple = needsLadder(problem.target, problem.system) ? 1 : 4;
+  return Math.ceil(problem.members.length / multiple) * multiple;
 }
 
-/** The estimate from a cost per member-sample (the time limit, when set, caps it). */
-export function estimateDesign(problem: Problem, threads: number, secondsPerMemberSample = ASSUMED_SECONDS_PER_MEMBER_SAMPLE): DesignEstimate {
+/** The estimate from the qubit's cost per member-sample, scaled to the problem's system (the time limit, when set, caps it). */
+export function estimateDesign(problem: Problem, threads: number, qubitSecondsPerMemberSample = ASSUMED_SECONDS_PER_MEMBER_SAMPLE): DesignEstimate {
   const { segments, optimizer } = problem;
+  const secondsPerMemberSample = qubitSecondsPerMemberSample * systemCostFactor(problem);
   const iterationSeconds = EVALUATIONS_PER_ITERATION * secondsPerMemberSample * segments * paddedMembers(problem);
   const startsPerThread = Math.ceil(optimizer.starts / Math.max(1, threads));
   const seconds = Math.min(iterationSeconds * optimizer.maxIterations * startsPerThread, optimizer.timeLimit);
-  return { seconds, iterationSeconds, secondsPerMemberSample, threads };
+  return { seconds, iterationSeconds, secondsPerMemberSample, qubitSecondsPerMemberSample, threads };
 }
 
 /**
- * The gradient cost per member-sample on this machine: a figure-only evaluation of a small
- * job timed for about 20 ms, scaled by the gradient's known cost ratio.
+ * The qubit's gradient cost per member-sample on this machine: a figure-only evaluation of a
+ * small qubit job timed for about 20 ms, scaled by the gradient's known cost ratio (another
+ * system's cost follows from it by systemCostFactor, without timing a slow job).
  */
 export function measureSecondsPerMemberSample(evaluateMembers: (target: Problem['target'], pulse: Pulse, members: Member[]) => unknown): number {
   const n = 256;

@@ -9,7 +9,7 @@ import type { ArgSpec } from './args.ts';
 import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
 import { loadSpec, loadWaveform, printWarnings } from './files.ts';
-import { formatFrequency, formatInfidelity, formatRelative, formatTarget, formatTime } from './format.ts';
+import { formatFrequency, formatInfidelity, formatMemberAt, formatRelative, formatTarget, formatTime } from './format.ts';
 
 const ARGS: ArgSpec = {
   command: 'evaluate',
@@ -126,7 +126,7 @@ function evaluationTable(ev: JudgedEvaluation, problem: Problem, pulse: Pulse, t
     ...rows.map(line),
     '',
     `mean infidelity   ${formatInfidelity(ev.meanInfidelity)} (weighted over ${ev.members.length} members)`,
-    `worst infidelity  ${formatInfidelity(ev.worstInfidelity)} at detuning ${formatFrequency(worst.detuning)}, amplitude error ${formatRelative(worst.amplitudeError)}`,
+    `worst infidelity  ${formatInfidelity(ev.worstInfidelity)} at ${formatMemberAt(worst)}`,
     ...(ladder ? [
       `mean leakage      ${formatInfidelity(ev.meanLeakage!)} (population that left levels 0 and 1, on ${ev.levels} levels, anharmonicity ${formatFrequency(problem.system?.anharmonicity ?? 0)})`,
       `worst leakage     ${formatInfidelity(ev.worstLeakage!)}`,

@@ -15,7 +15,7 @@ import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
 import { checkOutputName, checkWritable, loadSpec, loadWaveform, printWarnings, writeFilesTogether, type FileToWrite } from './files.ts';
 import { frequencyWarning } from './unit-warnings.ts';
-import { formatFrequency, formatInfidelity, formatRelative, formatTime } from './format.ts';
+import { formatFrequency, formatInfidelity, formatMemberAt, formatTime } from './format.ts';
 
 /** The file-name extensions that fit each format (an output named otherwise with a known extension is refused). */
 const FORMAT_EXTENSIONS: Record<WaveformFormat, string[]> = {
@@ -260,7 +260,7 @@ export function reportText(r: ExportReport, c: TextContext): string {
   if (r.gate && c.problem) {
     const row = (label: string, g: GateFigures) =>
       `  ${label.padEnd(22)}${formatInfidelity(g.meanInfidelity).padStart(10)}${formatInfidelity(g.worstInfidelity).padStart(12)}` +
-      `   at detuning ${formatFrequency(g.worstMember.detuning)}, amplitude error ${formatRelative(g.worstMember.amplitudeError)}`;
+      `   at ${formatMemberAt(g.worstMember)}`;
     lines.push(
       `gate (1 - F) on ${c.note}, ${c.problem.members.length} members:`,
       `  ${''.padEnd(22)}${'mean'.padStart(10)}${'worst'.padStart(12)}`,

@@ -37,6 +37,12 @@ export function formatRelative(x: number): string {
   return `${percent > 0 ? '+' : ''}${percent} %`;
 }
 
+/** Where a member sits: "detuning 0 Hz, amplitude error +5 %", with its anharmonicity error when it has one. */
+export function formatMemberAt(member: { detuning: number; amplitudeError: number; anharmonicityError?: number }): string {
+  const anharmonicity = member.anharmonicityError ? `, anharmonicity error ${formatFrequency(member.anharmonicityError)}` : '';
+  return `detuning ${formatFrequency(member.detuning)}, amplitude error ${formatRelative(member.amplitudeError)}${anharmonicity}`;
+}
+
 /** A vector as "[x, y, z]" with up to four significant digits. */
 export function formatVector(v: readonly number[]): string {
   return `[${v.map((c) => String(Number(c.toPrecision(4)))).join(', ')}]`;

@@ -17,7 +17,7 @@ const ARGS: ArgSpec = {
   positionals: ['SPEC', 'PULSE'],
   flags: [
     ...REGION_FLAGS,
-    { name: 'out', value: 'FILE.csv|FILE.json', help: 'write the map: CSV rows detuning_hz,amplitude_error,infidelity, or JSON with the summary' },
+    { name: 'out', value: 'FILE.csv|FILE.json', help: 'write the map: CSV rows detuning_hz,amplitude_error,infidelity (and leakage on a ladder), or JSON with the summary' },
     { name: 'json', help: 'print the summary figures as JSON instead of a table' },
   ],
 };
@@ -41,6 +41,10 @@ design minimises them); over the grid, the region mean and region worst and the 
 below the threshold, the half-widths around zero error (found on each axis through zero
 error to 1e-7 relative, not limited by the grid or the region), duration, peak amplitude,
 pulse area (turns) and energy (Hz^2 s). See docs/analysis.md.
+
+On a ladder (a spec with a system of more than two levels) every point has its leakage too:
+the map file gets a leakage column (CSV) or array (JSON). One point on an axis makes the
+file a cut along the other: --amplitude 0:0:1 gives the cut along detuning, with its leakage.
 
 Example:
   gatesmith map examples/transmon-x90.json x90.pulse.json --detuning -2e6:2e6:201 --out map.csv

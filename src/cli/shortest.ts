@@ -10,7 +10,7 @@ import { flagValue, optionsHelp, requiredFlag, usageLine } from './args.ts';
 import type { ArgSpec } from './args.ts';
 import { defineCommand } from './command.ts';
 import type { CliIO, Command } from './command.ts';
-import { checkPeak, withDesignMetadata } from './design.ts';
+import { checkPeak, truncationWarning, withDesignMetadata } from './design.ts';
 import { checkOutputName, checkWritable, loadSpec, printWarnings, writeFilesTogether } from './files.ts';
 import { formatInfidelity, formatTime } from './format.ts';
 import { progressReporter } from './progress.ts';
@@ -109,6 +109,9 @@ export const shortestCommand: Command = defineCommand({
       checkPeak(pulse, problem);
       if (out !== undefined) writeFilesTogether([{ path: out, data: writePulse(pulse) }], '--out');
       else if (!flags.json) io.stderr('note: the pulse is not saved; give --out PULSE to write it\n');
+      // On a ladder: the answer's design re-checked on two more levels, as design does.
+      const warning = truncationWarning(result.design, problem);
+      if (warning) io.stderr(`warning: the shortest pulse found: ${warning}\n`);
     }
     if (flags.json) {
       io.stdout(JSON.stringify(shortestJson(result), null, 2) + '\n');

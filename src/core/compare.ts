@@ -73,7 +73,7 @@ export function judgePulse(spec: unknown, pulse: Pulse, options: JudgeOptions = 
   const figures: CompareFigures = {
     meanInfidelity: ensemble.meanInfidelity,
     worstInfidelity: ensemble.worstInfidelity,
-    worstMember: { detuning: worst.detuning, amplitudeError: worst.amplitudeError, weight: worst.weight },
+    worstMember: { detuning: worst.detuning, amplitudeError: worst.amplitudeError, weight: worst.weight, ...(worst.anharmonicityError ? { anharmonicityError: worst.anharmonicityError } : {}) },
     regionMeanInfidelity: summary.regionMeanInfidelity,
     regionWorstInfidelity: summary.regionWorstInfidelity,
     regionWorstAt: summary.regionWorstAt,

@@ -4,7 +4,6 @@
 // compare() builds them beside the composite sequences; their calibrated values travel in
 // the pulse's metadata (`drag`) and in the row's name.
 import { calibrateDrag, type DragEnvelope } from './drag.ts';
-import type { LadderSpec } from './spec-system.ts';
 import type { Problem, Pulse } from './types.ts';
 
 /** A member of the DRAG family as listings show it (the same fields as a composite sequence's). */
@@ -46,25 +45,13 @@ export interface DragForSpec {
   error?: { name: string; message: string };
 }
 
-/** The spec's problem as the calibration reads it (the qubit: two levels, no anharmonicity). */
-function ladderSpecOf(problem: Problem): LadderSpec {
-  const target = problem.target;
-  return {
-    problem,
-    system: problem.system ?? { levels: 2, anharmonicity: 0 },
-    members: problem.members.map((m) => ({ ...m, anharmonicityError: m.anharmonicityError ?? 0 })),
-    freePhaseAfter: target.kind === 'gate' && target.freePhaseAfter === true,
-  };
-}
-
 /** Build and calibrate the named members of the family for a spec's problem, in the order asked. */
 export function dragFamilyFor(problem: Problem, names: readonly string[]): DragForSpec[] {
-  const spec = ladderSpecOf(problem);
   return names.map((name) => {
     const info = dragFamily.find((d) => d.name === name)!;
     const envelope: DragEnvelope = name === 'drag-gaussian' ? 'gaussian' : 'cosine';
     try {
-      const { pulse, parameters } = calibrateDrag(spec, { envelope });
+      const { pulse, parameters } = calibrateDrag(problem, { envelope });
       const values = `amplitude x${parameters.amplitudeScale.toFixed(4)}, beta ${parameters.beta.toFixed(3)}, ` +
         `drive detuning ${(parameters.driveDetuning / 1e6).toFixed(3)} MHz`;
       pulse.metadata.name = info.title;

@@ -13,12 +13,10 @@
 // (docs/physics.md section 1: phase and frequency of the drive go together), the phase
 // ramp centred so that the pulse's axis is the target axis at its middle.
 // Samples are the envelope at each sample's midpoint.
+import { evaluateMembers, toProblem } from './api.ts';
 import { ArgumentError, describeValue } from './errors.ts';
-import { evaluateLadder, type LadderEvaluation } from './ladder.ts';
-import { qubitDrive } from './line.ts';
 import { nelderMead } from './simplex.ts';
-import type { LadderSpec } from './spec-system.ts';
-import type { Pulse, Target } from './types.ts';
+import type { Evaluation, Pulse, Target } from './types.ts';
 
 /** Envelopes of the DRAG family. */
 export type DragEnvelope = 'gaussian' | 'cosine';
@@ -126,7 +124,8 @@ export interface DragCalibrationOptions {
 export interface DragCalibration {
   pulse: Pulse;
   parameters: DragParameters;
-  evaluation: LadderEvaluation;
+  /** The library's evaluation on the spec (through its line, on its system: with leakage on a ladder). */
+  evaluation: Evaluation;
   evaluations: number;
   /** True when the calibrated pulse sits at the peak limit (the limit, not the figure, set it). */
   atPeakLimit: boolean;
@@ -134,15 +133,17 @@ export interface DragCalibration {
 
 /**
  * Tune amplitude, beta and drive detuning (Nelder-Mead) for the lowest mean figure of the
- * spec (its target, ensemble, system and free phase), holding the peak limit.
+ * spec (a spec's JSON or a Problem: its target and free phase, ensemble, system and line),
+ * holding the peak limit. Every figure is the library's evaluate(), as for any other pulse.
  */
-export function calibrateDrag(spec: LadderSpec, options: DragCalibrationOptions): DragCalibration {
-  const { problem, system, members, freePhaseAfter } = spec;
+export function calibrateDrag(spec: unknown, options: DragCalibrationOptions): DragCalibration {
+  const problem = toProblem(spec);
+  const anharmonicity = problem.system?.anharmonicity ?? 0;
   // Without an anharmonicity there is no DRAG quadrature to tune.
-  const tune = (options.tune ?? ['amplitudeScale', 'beta', 'driveDetuning']).filter((knob) => knob !== 'beta' || system.anharmonicity !== 0);
+  const tune = (options.tune ?? ['amplitudeScale', 'beta', 'driveDetuning']).filter((knob) => knob !== 'beta' || anharmonicity !== 0);
   const limits: DragLimits = { duration: problem.duration, segments: problem.segments, rabiMax: problem.rabiMax };
   const base: DragParameters = {
-    envelope: options.envelope, amplitudeScale: 1, beta: system.anharmonicity === 0 ? 0 : 1, driveDetuning: 0, ...options.start,
+    envelope: options.envelope, amplitudeScale: 1, beta: anharmonicity === 0 ? 0 : 1, driveDetuning: 0, ...options.start,
   };
   // Variables scaled to order one: the detuning in cycles over the pulse.
   const scale: Record<DragKnob, number> = { amplitudeScale: 1, beta: 1, driveDetuning: 1 / problem.duration };
@@ -153,32 +154,34 @@ export function calibrateDrag(spec: LadderSpec, options: DragCalibrationOptions)
     return p;
   };
   // The envelope alone must reach the angle under the limit; the calibration then holds it.
-  const nominal = dragPulse(problem.target, limits, system.anharmonicity, { ...base, amplitudeScale: 1, beta: 0, driveDetuning: 0 });
+  const nominal = dragPulse(problem.target, limits, anharmonicity, { ...base, amplitudeScale: 1, beta: 0, driveDetuning: 0 });
   if (peakAmplitude(nominal) > problem.rabiMax) {
     throw new ArgumentError(`rabiMax: ${problem.rabiMax} Hz is too low for a ${options.envelope} pulse of this angle in ${problem.duration} s ` +
       `(its peak is ${peakAmplitude(nominal).toPrecision(3)} Hz); raise rabiMax or the duration`);
   }
-  const figureOptions = { freePhaseAfter };
-  // Calibrated as the qubit sees it: through the spec's line (docs/physics.md section 5).
+  // The spec's own evaluation: through its line (docs/physics.md section 5), on its system.
+  const evaluateOnSpec = (pulse: Pulse): Evaluation => evaluateMembers(problem.target, pulse, problem.members, problem.line, problem.system);
   const figure = (x: number[]): number => {
-    const pulse = dragPulse(problem.target, limits, system.anharmonicity, parametersOf(x));
+    const pulse = dragPulse(problem.target, limits, anharmonicity, parametersOf(x));
     const peak = peakAmplitude(pulse);
     // Above the limit: worse than any allowed pulse, and more so the further above.
     if (peak > problem.rabiMax) return 1 + peak / problem.rabiMax;
-    return evaluateLadder(problem.target, qubitDrive(pulse, problem.line), members, system, figureOptions).meanInfidelity;
+    return evaluateOnSpec(pulse).meanInfidelity;
   };
   const x0 = tune.map((knob) => base[knob] / scale[knob]);
   const result = nelderMead(figure, x0, {
     steps: tune.map((knob) => steps[knob]), maxEvaluations: options.maxEvaluations ?? 400, valueTolerance: 1e-14,
   });
   const parameters = parametersOf(result.x);
-  const pulse = dragPulse(problem.target, limits, system.anharmonicity, parameters);
+  const pulse = dragPulse(problem.target, limits, anharmonicity, parameters);
   // Every point under the limit scores below 1, every point above it above 1.
   if (peakAmplitude(pulse) > problem.rabiMax) {
     throw new ArgumentError(`rabiMax: ${problem.rabiMax} Hz is too low for the ${options.envelope} DRAG pulse in ${problem.duration} s ` +
       `(the search found no pulse under it); raise rabiMax or the duration`);
   }
-  const evaluation = evaluateLadder(problem.target, qubitDrive(pulse, problem.line), members, system, figureOptions);
-  pulse.metadata.figures = { meanInfidelity: evaluation.meanInfidelity, worstInfidelity: evaluation.worstInfidelity, meanLeakage: evaluation.meanLeakage };
+  const evaluation = evaluateOnSpec(pulse);
+  const figures: Record<string, number> = { meanInfidelity: evaluation.meanInfidelity, worstInfidelity: evaluation.worstInfidelity };
+  if (evaluation.meanLeakage !== undefined) figures.meanLeakage = evaluation.meanLeakage;
+  pulse.metadata.figures = figures;
   return { pulse, parameters, evaluation, evaluations: result.evaluations, atPeakLimit: peakAmplitude(pulse) > 0.999 * problem.rabiMax };
 }

@@ -7,6 +7,7 @@
 // Against the same design evaluated whole, only the order of the sums differs (a last-bit
 // difference, which the optimiser may carry elsewhere): small designs are never split.
 import { BUFFER, createBlock, freeBlock } from './block.ts';
+import { QUBIT_NS, systemCostFactor } from './cost.ts';
 import type { EncodedMembers } from './encode.ts';
 import { blockSystem, encodeSystem, type SystemEncoding } from './system.ts';
 import type { Problem, SharePool, ShareResult } from './types.ts';
@@ -21,16 +22,6 @@ export interface MemberShare {
 }
 
 /**
- * Estimated cost of one figure-and-gradient evaluation per drive sample and member (s): the
- * qubit's kernels and the ladder's, which grow as the square of the levels (npm run bench:
- * about 8 ns for the qubit, 490 ns on 3 levels and 1230 ns on 5).
- */
-function secondsPerSampleMember(problem: Problem): number {
-  const levels = problem.system?.levels ?? 2;
-  return levels > 2 || (problem.target.kind === 'gate' && problem.target.freePhaseAfter) ? 55e-9 * levels * levels : 8e-9;
-}
-
-/**
  * The least estimated work of one share (s). Handing a share to another thread costs a
  * wake-up and two copies of the drive (15-20 us here); `npm run bench` measures one thread
  * against two: two win from about 100 us per evaluation, 50 us per share.
@@ -42,7 +33,8 @@ export const MAX_SHARES = 4;
 /** The estimated time of one figure-and-gradient evaluation of the problem on one thread (s). */
 export function evaluationSeconds(problem: Problem): number {
   const drive = problem.segments * (problem.line?.oversample ?? 1);
-  return drive * problem.members.length * secondsPerSampleMember(problem);
+  // The qubit kernels' cost per member-sample (cost.ts), scaled to the problem's system.
+  return drive * problem.members.length * QUBIT_NS * 1e-9 * systemCostFactor(problem);
 }
 
 /**

@@ -58,11 +58,13 @@ export interface SummaryOptions {
   system?: LadderSystem;
 }
 
-/** The infidelity along one error axis with the other error at zero. */
+/** The infidelity along one error axis with the other error at zero (on a ladder, with the leakage). */
 export interface Cut extends TargetChoice {
   axis: ErrorAxis;
   values: Float64Array;
   infidelity: Float64Array;
+  /** On a ladder: the leakage at the same points. */
+  leakage?: Float64Array;
 }
 
 /** Duration, peak amplitude, pulse area (turns) and energy (Hz^2 s) of a pulse. */
@@ -140,27 +142,38 @@ export function cut(target: Target, pulse: Pulse, axis: ErrorAxis, grid: GridAxi
   const map = axis === 'detuning'
     ? robustnessMap(choice.targetUsed, pulse, grid, zero, line, system)
     : robustnessMap(choice.targetUsed, pulse, zero, grid, line, system);
-  return { ...choice, axis, values: axisValues(grid), infidelity: map.infidelity };
+  const result: Cut = { ...choice, axis, values: axisValues(grid), infidelity: map.infidelity };
+  if (map.leakage) result.leakage = map.leakage;
+  return result;
 }
 
-/** Both cuts through zero error over a region's ranges and point counts. */
+/** Both cuts through zero error over a region's ranges and point counts (on a ladder, with the leakage along each). */
 export interface Cuts {
   detuning: Float64Array;
   detuningInfidelity: Float64Array;
   amplitudeError: Float64Array;
   amplitudeErrorInfidelity: Float64Array;
+  /** On a ladder: the leakage along detuning. */
+  detuningLeakage?: Float64Array;
+  /** On a ladder: the leakage along amplitude error. */
+  amplitudeErrorLeakage?: Float64Array;
 }
 
 /** The cut along detuning (no amplitude error) and along amplitude error (no detuning). */
 export function cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line, system?: LadderSystem): Cuts {
   const alongDetuning = cut(target, pulse, 'detuning', detuning, line, system);
   const alongAmplitude = cut(target, pulse, 'amplitudeError', amplitudeError, line, system);
-  return {
+  const result: Cuts = {
     detuning: alongDetuning.values,
     detuningInfidelity: alongDetuning.infidelity,
     amplitudeError: alongAmplitude.values,
     amplitudeErrorInfidelity: alongAmplitude.infidelity,
   };
+  if (alongDetuning.leakage && alongAmplitude.leakage) {
+    result.detuningLeakage = alongDetuning.leakage;
+    result.amplitudeErrorLeakage = alongAmplitude.leakage;
+  }
+  return result;
 }
 
 /** The threshold if it is an infidelity strictly between 0 and 1, else an ArgumentError naming it. */

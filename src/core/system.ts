@@ -36,6 +36,11 @@ export function encodeSystem(target: Target, members: readonly Member[], system?
   if (!needsLadder(target, system)) {
     return { ladder: false, levels: 2, system: SYSTEM_QUBIT, dim: 2, mode: target.kind === 'gate' ? 0 : 1, members: encodeMembers(members, 2, true) };
   }
+  return encodeLadder(target, members, system, maxLevels);
+}
+
+/** The ladder kernels' encoding, also on two levels (where they compute the qubit exactly). */
+export function encodeLadder(target: Target, members: readonly Member[], system?: LadderSystem, maxLevels = MAX_LEVELS): SystemEncoding {
   const levels = system?.levels ?? 2;
   const anharmonicity = system?.anharmonicity ?? 0;
   if (!Number.isInteger(levels) || levels < 2 || levels > maxLevels) {

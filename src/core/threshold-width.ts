@@ -1,17 +1,23 @@
 // The largest interval around zero error, along one error axis, where a pulse's
-// infidelity stays below a threshold. Found without a grid: sqrt(infidelity) is the
-// length |w| of the error quaternion (docs/physics.md section 2), and it cannot change faster
-// than the propagator does, so
-//   |d sqrt(1 - F) / d Delta| <= pi T          (dH/dDelta = -pi sz, over the duration T)
-//   |d sqrt(1 - F) / d eps|   <= pi A          (dH/deps = pi (I sx + Q sy), A = sum |Omega| dt)
+// infidelity stays below a threshold. Found without a grid: sqrt(infidelity) is the sine of
+// the Fubini-Study angle between the target's and the pulse's (qubit subspace) states, and
+// it cannot change faster than the propagator does (docs/transmon.md, "Half-widths on a
+// ladder"), so with T the duration and A = sum |Omega| dt the pulse area (turns):
+//   |d sqrt(1 - F) / d Delta|     <= pi (d - 1) T            (dH/dDelta = 2 pi n; pi T on the qubit)
+//   |d sqrt(1 - F) / d eps|       <= pi A x_d                (x_d: largest root of the Hermite He_d; 1 on the qubit)
+//   |d sqrt(1 - F) / d alphaErr|  <= pi (d - 1)(d - 2) T / 2 (dH/dalpha = pi n (n - 1))
 // With that bound an interval [a, b] whose ends lie below the threshold is proven free of
 // any crossing when (g(a) + g(b) + L (b - a)) / 2 < sqrt(threshold); intervals that are
 // not proven are halved, leftmost first, until the first crossing is bracketed tightly.
 import { evaluateMembers } from './api.ts';
+import { ArgumentError } from './errors.ts';
 import type { Member, Pulse, Target, LadderSystem } from './types.ts';
 
 /** Which error axis a cut or a width runs along (the other error is held at zero). */
 export type ErrorAxis = 'detuning' | 'amplitudeError';
+
+/** An axis a half-width can be found along: a cut's axes, and on a ladder the anharmonicity error (Hz). */
+export type WidthAxis = ErrorAxis | 'anharmonicityError';
 
 /** The interval [lower, upper] around zero error on one axis where infidelity < threshold. */
 export interface ThresholdInterval {
@@ -39,18 +45,49 @@ const MAX_REFINEMENTS = 20000;
 // The drive vanishes at amplitude error -1; the search stops just short of it.
 const AMPLITUDE_FLOOR = -1 + 1e-9;
 
-/** Bounds of sqrt(infidelity)'s slope along each axis (per Hz of detuning, per unit of relative error). */
-export function slopeBounds(pulse: Pulse): Record<ErrorAxis, number> {
+/**
+ * The largest root of the probabilists' Hermite polynomial He_d: the norm of the truncated
+ * a + a^dag on d levels, whose characteristic polynomial He_d is (He_{k+1} = x He_k - k He_{k-1}).
+ * Newton's method from above every root (2 sqrt(d)) falls monotonically onto the largest.
+ */
+export function ladderDriveNorm(levels: number): number {
+  if (levels <= 2) return 1; // sigma_x: the qubit's bound exactly
+  const he = (x: number): [number, number] => {
+    let previous = 1, current = x;
+    for (let k = 1; k < levels; k++) [previous, current] = [current, x * current - k * previous];
+    return [current, previous]; // He_d(x), He_{d-1}(x); He_d' = d He_{d-1}
+  };
+  let x = 2 * Math.sqrt(levels);
+  for (let step = 0; step < 200; step++) {
+    const [value, below] = he(x);
+    const next = x - value / (levels * below);
+    if (!(next < x)) break;
+    x = next;
+  }
+  return x;
+}
+
+/**
+ * Bounds of sqrt(infidelity)'s slope along each axis (per Hz of detuning or anharmonicity
+ * error, per unit of relative amplitude error), on the qubit or the ladder `system`.
+ */
+export function slopeBounds(pulse: Pulse, system?: LadderSystem): Record<WidthAxis, number> {
   let area = 0;
   for (let k = 0; k < pulse.i.length; k++) area += Math.hypot(pulse.i[k], pulse.q[k]) * pulse.dt;
-  return { detuning: Math.PI * pulse.i.length * pulse.dt, amplitudeError: Math.PI * area };
+  const duration = pulse.i.length * pulse.dt;
+  const d = system?.levels ?? 2;
+  return {
+    detuning: Math.PI * (d - 1) * duration,
+    amplitudeError: Math.PI * area * ladderDriveNorm(d),
+    anharmonicityError: (Math.PI * (d - 1) * (d - 2) * duration) / 2,
+  };
 }
 
 /** The search limits of each side of an axis: where the width stops being a useful figure. */
-function searchLimits(pulse: Pulse, axis: ErrorAxis): { below: number; above: number } {
+function searchLimits(pulse: Pulse, axis: WidthAxis): { below: number; above: number } {
   if (axis === 'amplitudeError') return { below: -AMPLITUDE_FLOOR, above: 10 };
-  // Far beyond the drive's reach: detuning 1000 times the larger of the peak Rabi
-  // frequency and the inverse duration leaves a pulse doing next to nothing.
+  // Far beyond the drive's reach: a detuning (or anharmonicity error) 1000 times the larger
+  // of the peak Rabi frequency and the inverse duration leaves a pulse doing next to nothing.
   let peak = 0;
   for (let k = 0; k < pulse.i.length; k++) peak = Math.max(peak, Math.hypot(pulse.i[k], pulse.q[k]));
   const limit = 1000 * Math.max(peak, 1 / (pulse.i.length * pulse.dt));
@@ -58,18 +95,17 @@ function searchLimits(pulse: Pulse, axis: ErrorAxis): { below: number; above: nu
 }
 
 /** The interval around zero error on `axis` where infidelity against `target` stays below `threshold`. */
-export function thresholdInterval(target: Target, pulse: Pulse, axis: ErrorAxis, threshold: number, system?: LadderSystem): ThresholdInterval {
-  const bound = slopeBounds(pulse)[axis];
+export function thresholdInterval(target: Target, pulse: Pulse, axis: WidthAxis, threshold: number, system?: LadderSystem): ThresholdInterval {
+  if (axis === 'anharmonicityError' && !(system && system.levels > 2)) {
+    throw new ArgumentError(`axis: "anharmonicityError" is not allowed without a ladder; give a system of 3 or more levels`);
+  }
+  const bound = slopeBounds(pulse, system)[axis];
   const limits = searchLimits(pulse, axis);
   const rootThreshold = Math.sqrt(threshold);
   const sideOf = (sign: 1 | -1, limit: number) => {
     // g(x): sqrt(infidelity) at signed distance sign * x from zero error.
     const g = (xs: number[]): Float64Array => {
-      const members: Member[] = xs.map((x) =>
-        axis === 'detuning'
-          ? { detuning: sign * x, amplitudeError: 0, weight: 1 }
-          : { detuning: 0, amplitudeError: sign * x, weight: 1 },
-      );
+      const members: Member[] = xs.map((x) => ({ detuning: 0, amplitudeError: 0, weight: 1, [axis]: sign * x }));
       const figures = evaluateMembers(target, pulse, members, undefined, system).members;
       return Float64Array.from(figures, (m) => Math.sqrt(m.infidelity));
     };

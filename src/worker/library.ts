@@ -3,7 +3,7 @@ import { blochTrajectory, design, evaluateMembers, robustnessMap } from '../core
 import { compare, evaluateJudged } from '../core/compare.ts';
 import { compositeNames } from '../core/composites.ts';
 import { dragFamily } from '../core/drag-family.ts';
-import { ladderPopulations } from '../core/ladder.ts';
+import { ladderPopulations, ladderSubspaceLeakage } from '../core/ladder.ts';
 import { qubitDrive } from '../core/line.ts';
 import { cuts } from '../core/robustness.ts';
 import { heldSpectrum } from '../core/spectrum.ts';
@@ -25,8 +25,9 @@ export const library: CoreLibrary = {
   blochTrajectory,
   populations: (pulse, member, system, from, line) => {
     const drive = qubitDrive(pulse, line);
-    const values = ladderPopulations(drive, { ...member, anharmonicityError: member.anharmonicityError ?? 0 }, system, from);
-    return { levels: system.levels, dt: drive.dt, startS: drive.startS, values };
+    const ladderMember = { ...member, anharmonicityError: member.anharmonicityError ?? 0 };
+    const values = ladderPopulations(drive, ladderMember, system, from);
+    return { levels: system.levels, dt: drive.dt, startS: drive.startS, values, averageLeakage: ladderSubspaceLeakage(drive, ladderMember, system) };
   },
   heldSpectrum,
   qubitDrive: (pulse, line) => qubitDrive(pulse, line),

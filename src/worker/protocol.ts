@@ -79,6 +79,8 @@ export interface Populations {
   /** When the drive starts relative to the programmed pulse (s). */
   startS: number;
   values: Float64Array;
+  /** The member's leakage averaged over the qubit subspace, L = 1 - Tr(M^dag M)/2 (a gate target's leakage map at that member). */
+  averageLeakage: number;
 }
 
 /** One-dimensional cuts through zero error: along detuning (no amplitude error) and along amplitude error (no detuning). */

@@ -66,6 +66,32 @@ describe('the command line on a ladder spec', () => {
     expect(json.meanLeakage).toBe(evaluate(SPEC, readPulse(readFileSync(pulse, 'utf8'))).meanLeakage);
   });
 
+  // Source: the library's evaluate names the worst member; with an anharmonicity-error axis
+  // (docs/transmon.md) the text must say which anharmonicity error it has.
+  it('names the worst member with its anharmonicity error when the ensemble varies it', async () => {
+    const varied = { ...SPEC, ensemble: { anharmonicityError: { values: [-2e7, 0, 2e7] } } };
+    const file = join(dir, 'varied.json');
+    writeFileSync(file, JSON.stringify(varied));
+    const ev = evaluate(varied, readPulse(readFileSync(pulse, 'utf8')));
+    const worst = ev.members[ev.worstIndex];
+    expect(worst.anharmonicityError).not.toBe(0); // the check has content
+    const text = `anharmonicity error ${worst.anharmonicityError! > 0 ? '' : '-'}20 MHz`;
+    const table = await run(['evaluate', file, pulse]);
+    expect(table.stdout).toMatch(new RegExp(`worst infidelity +\\S+ at detuning 0 Hz, amplitude error 0 %, ${text}`));
+    expect((await run(['map', file, pulse])).stdout).toContain(`(worst member of the ensemble: detuning 0 Hz, amplitude error 0 %, ${text})`);
+  });
+
+  // Source: the truncation check (docs/transmon.md): a fast X(180) made on 3 levels misses the
+  // shift of |2> by |3>; shortest's answer gets the same check and warning as design's.
+  it('shortest warns when its answer, designed on too few levels, reads otherwise on two more', async () => {
+    const three = { ...SPEC, system: { levels: 3, anharmonicity: -2.12e8 }, ensemble: undefined, optimizer: { starts: 1, seed: 1, maxIterations: 150 } };
+    const file = join(dir, 'three.json');
+    writeFileSync(file, JSON.stringify(three));
+    const r = await run(['shortest', file, '--goal-mean', '1e-3', '--min', '4e-9']);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stderr).toMatch(/warning: the shortest pulse found: on 5 levels the mean infidelity is \S+ and the mean leakage \S+, more than a factor two from .* on 3 levels/);
+  });
+
   it('compare builds the DRAG family under the spec limits, calibrated, with the values in the name', async () => {
     const out = await run(['compare', spec, pulse, '--composites', 'drag-gaussian,drag-cosine', '--json']);
     expect(out.code).toBe(0);

@@ -9,7 +9,7 @@ import { blochTrajectory, design, evaluate, evaluateMembers, robustnessMap } fro
 import { buildComposite } from '../../src/core/composites.ts';
 import { ArgumentError, PulseFormatError } from '../../src/core/errors.ts';
 import { SORT_FIGURES, sortRows, type CompareFigures } from '../../src/core/compare.ts';
-import { cut, pulseFigures, summarise } from '../../src/core/robustness.ts';
+import { cut, cuts, pulseFigures, summarise } from '../../src/core/robustness.ts';
 import { chooseTarget } from '../../src/core/target-choice.ts';
 import { firstCrossing, slopeBounds, thresholdInterval } from '../../src/core/threshold-width.ts';
 import type { Member, Pulse, Target, Vec3 } from '../../src/core/types.ts';
@@ -75,6 +75,23 @@ describe('robustness map', () => {
     const d = cut(X90, pulse, 'detuning', { min: 0, max: 1e6, points: 3 });
     expectClose(d.infidelity[2], memberInfidelity(X90, pulse, member(1e6, 0)), { abs: 1e-13 }, 'detuning cut');
     expect(() => cut(X90, pulse, 'phase' as 'detuning', grid)).toThrow(ArgumentError);
+    expect(c.leakage).toBeUndefined(); // the qubit has no level to leak to
+  });
+
+  // Source: the cut is the map through zero error (issue 3), leakage included on a ladder
+  // (docs/transmon.md), and each point is evaluateMembers' leakage of that member.
+  it('cuts on a ladder carry the leakage of the map through zero error', () => {
+    const system = { levels: 4, anharmonicity: -2e8 };
+    const pulse = irregularPulse(20, 1e-9, 6e7);
+    const grid = { min: -3e7, max: 3e7, points: 7 };
+    const both = cuts(X90, pulse, grid, { min: -0.2, max: 0.2, points: 5 }, undefined, system);
+    const map = robustnessMap(X90, pulse, grid, { min: 0, max: 0, points: 1 }, undefined, system);
+    expect(Array.from(both.detuningLeakage!)).toEqual(Array.from(map.leakage!));
+    expect(both.amplitudeErrorLeakage).toHaveLength(5);
+    const point = evaluateMembers(X90, pulse, [member(grid.max, 0)], undefined, system).members[0];
+    expectClose(both.detuningLeakage![6], point.leakage!, { abs: 1e-15 }, 'leakage at the last point');
+    expect(Math.max(...both.detuningLeakage!)).toBeGreaterThan(1e-4); // the pulse leaks: the check has content
+    expect(cuts(X90, pulse, grid, { min: -0.2, max: 0.2, points: 5 }).detuningLeakage).toBeUndefined();
   });
 });
 

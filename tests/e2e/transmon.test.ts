@@ -1,6 +1,8 @@
 // A transmon spec in the app, in Debian's Chromium: the robustness map and its leakage map
-// read the library's values on the spec's ladder, and the populations of every level
-// against time keep their sum. Screenshots (light and dark, 1440 and 800 px) in test-results/.
+// (beside it at 1440 px) read the library's values on the spec's ladder, the cuts carry the
+// leakage too, the populations of every level against time keep their sum, and the panel's
+// subspace-average leakage is the map's value at the member. Screenshots (light and dark,
+// 1440 and 800 px) in test-results/.
 import { readFileSync } from 'node:fs';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
@@ -40,7 +42,7 @@ describe.skipIf(reason !== null)('a transmon spec in the app', () => {
     await harness?.close();
   });
 
-  for (const [scheme, width] of [['light', 1440], ['dark', 800]] as const) {
+  for (const [scheme, width] of [['light', 1440], ['dark', 800], ['dark', 1440], ['light', 800]] as const) {
     it(`maps infidelity and leakage on the ladder and plots the populations (${scheme}, ${width} px)`, async () => {
       const context = await harness.browser.newContext({ viewport: { width, height: 1000 }, colorScheme: scheme });
       const { page, consoleErrors } = await visit(harness, `#spec=${encodeURIComponent(JSON.stringify(spec))}`, context);
@@ -68,8 +70,25 @@ describe.skipIf(reason !== null)('a transmon spec in the app', () => {
       const leakageText = await readCentre(page, 'leakage-heatmap');
       expect(leakageText).toContain(`L = ${formatFigure(direct.leakage![0])}`);
       expect(direct.leakage![0]).toBeGreaterThan(1e-5);
+      // Beside the infidelity map at 1440 px: same row, to its right.
+      const mapBox = (await page.getByTestId('heatmap').boundingBox())!;
+      const leakBox = (await page.getByTestId('leakage-heatmap').boundingBox())!;
+      if (width === 1440) {
+        expect(Math.abs(leakBox.y - mapBox.y)).toBeLessThan(2);
+        expect(leakBox.x).toBeGreaterThanOrEqual(mapBox.x + mapBox.width);
+      }
+      // The cuts show the leakage along each axis on a ladder.
+      for (const id of ['cut-detuning', 'cut-amplitude']) {
+        expect(await page.getByTestId(id).locator('xpath=..').getAttribute('aria-label')).toMatch(/^Infidelity and leakage along /);
+      }
+      // The last field's help bubble would cover the maps' titles in the screenshot.
+      await page.evaluate(() => (document.activeElement as HTMLElement | null)?.blur());
+      await page.getByTestId('heatmap').scrollIntoViewIfNeeded();
       await page.waitForTimeout(300);
       await screenshot(page, `e2e-transmon-01-maps-${scheme}-${width}`);
+      await page.getByTestId('cut-detuning').scrollIntoViewIfNeeded();
+      await page.waitForTimeout(300);
+      await screenshot(page, `e2e-transmon-04-cuts-${scheme}-${width}`);
 
       // Populations of every level for the chosen member (no error), from |0>.
       await page.keyboard.press('Alt+5');
@@ -78,7 +97,11 @@ describe.skipIf(reason !== null)('a transmon spec in the app', () => {
       // Conservation: a unitary keeps the norm, so the plotted populations sum to 1 at every point.
       expect(Number(await chart.getAttribute('data-norm-deviation'))).toBeLessThan(1e-9);
       expect(Number(await chart.getAttribute('data-points'))).toBe(problem.segments + 1);
-      expect(await page.getByTestId('populations-final').textContent()).toMatch(/\|5⟩ .* leakage \(levels 2 and up\)/);
+      expect(await page.getByTestId('populations-final').textContent()).toMatch(/\|5⟩ .* leakage of this initial state \(levels 2 and up\)/);
+      // The member without error: its subspace average is the leakage map's value there (Δ = 0, ε = 0).
+      await page.selectOption('#b-member', '-1');
+      await page.waitForFunction((text) => document.querySelector('[data-testid=populations-average]')?.textContent?.includes(text), `L = 1 − Tr(M†M)/2: ${formatFigure(direct.leakage![0])}`);
+      expect(await page.getByTestId('populations-average').textContent()).toContain('(the leakage map shows L)');
       await page.waitForTimeout(300);
       await screenshot(page, `e2e-transmon-02-populations-${scheme}-${width}`);
       // The linear axis too: the same points, the same sums.

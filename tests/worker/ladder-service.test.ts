@@ -85,4 +85,22 @@ describe('worker service on a ladder spec', () => {
     // Starts in |0>.
     expect(pops[0]).toBe(1);
   });
+
+  // Source: L = 1 - Tr(M^dag M)/2 = (1/2) sum_{i>=2, c=0,1} |U_ic|^2 (docs/transmon.md): the
+  // mean of what leaves from |0> and from |1>, here from the populations kernel, must equal
+  // the leakage map's value at that member (the gate figures' kernel), whatever the panel's
+  // initial state; the chosen state's own leakage differs from it.
+  it("reports the member's subspace-average leakage, equal to the leakage map's value at that member", async () => {
+    for (const member of [{ detuning: 0, amplitudeError: 0, weight: 1 }, { detuning: 5e6, amplitudeError: -0.05, weight: 1 }]) {
+      const from: [number, number, number] = [0.6, 0, 0.8];
+      const result = await core.populations(pulse, member, system, from);
+      const point = (x: number): GridAxis => ({ min: x, max: x, points: 1 });
+      const map = await core.map(X180, pulse, point(member.detuning), point(member.amplitudeError), undefined, system);
+      expect(Math.abs(result.averageLeakage - map.leakage![0])).toBeLessThan(1e-14);
+      expect(result.averageLeakage).toBeGreaterThan(1e-5); // the cosine pulse leaks: the check has content
+      const d = system.levels;
+      const ownLeakage = Array.from(result.values.subarray(result.values.length - d + 2)).reduce((a, b) => a + b, 0);
+      expect(Math.abs(ownLeakage - result.averageLeakage)).toBeGreaterThan(1e-3 * result.averageLeakage);
+    }
+  });
 });

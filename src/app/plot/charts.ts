@@ -204,6 +204,15 @@ export interface CutSeries {
   colour: string;
   x: ArrayLike<number>;
   y: ArrayLike<number>;
+  /** Dashed (a ladder's leakage beside the infidelity of the same pulse). */
+  dashed?: boolean;
+}
+
+/** A pulse's cut along one axis as chart series: its infidelity and, on a ladder, its leakage dashed in the same colour. */
+export function cutSeriesOf(label: string, colour: string, x: ArrayLike<number>, infidelity: ArrayLike<number>, leakage?: ArrayLike<number>): CutSeries[] {
+  const series: CutSeries[] = [{ label: leakage ? `${label}: 1 − F` : label, colour, x, y: infidelity }];
+  if (leakage) series.push({ label: `${label}: leakage L`, colour, x, y: leakage, dashed: true });
+  return series;
 }
 
 export { Chart };

@@ -133,7 +133,7 @@ function figures(e: Evaluation): GateFigures {
   const out: GateFigures = {
     meanInfidelity: e.meanInfidelity,
     worstInfidelity: e.worstInfidelity,
-    worstMember: { detuning: worst.detuning, amplitudeError: worst.amplitudeError, weight: worst.weight },
+    worstMember: { detuning: worst.detuning, amplitudeError: worst.amplitudeError, weight: worst.weight, ...(worst.anharmonicityError ? { anharmonicityError: worst.anharmonicityError } : {}) },
   };
   if (e.meanLeakage !== undefined) Object.assign(out, { meanLeakage: e.meanLeakage, worstLeakage: e.worstLeakage });
   return out;
