@@ -18,7 +18,8 @@ export default defineConfig({
   preview: { host: '127.0.0.1' },
   // Every asset, the wasm included, is served from the page's origin: nothing inlined as
   // data: URLs (the CSP allows only 'self') and nothing fetched from elsewhere.
-  build: { outDir: 'build/app', assetsInlineLimit: 0, target: 'es2022', chunkSizeWarningLimit: 1024 },
+  // GATESMITH_READABLE_BUILD=1 (the app benchmark's --attribute): unminified, so that traces name functions.
+  build: { outDir: 'build/app', assetsInlineLimit: 0, target: 'es2022', chunkSizeWarningLimit: 1024, ...(process.env.GATESMITH_READABLE_BUILD ? { minify: false } : {}) },
   worker: { format: 'es' },
   test: {
     include: ['tests/**/*.test.ts'],

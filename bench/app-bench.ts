@@ -8,17 +8,24 @@
 //   opening a 62 MB pulse file.
 // Every browser step has a time limit: a step that fails or runs out of time is reported
 // as a figure (NaN, with its reason), and the benchmark goes on.
-// Usage: npm run bench:app [-- --large-only] (needs /usr/bin/chromium); `npm run bench` runs it too and
-// puts its figures under the key "app".
+// Usage: npm run bench:app [-- --large-only] [-- --attribute] (needs /usr/bin/chromium); `npm run bench`
+// runs it too and puts its figures under the key "app". With --attribute, each 100 000-sample
+// phase is traced (Chromium tracing, with the V8 sampling profiler) and every long task is
+// printed with its main-thread CPU time, the events it ran and its busiest functions.
 import type { Page } from 'playwright-core';
 import { existsSync } from 'node:fs';
 import { mkdtemp, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { basename, join } from 'node:path';
-import { CHROMIUM, skipReason, startHarness, visit, type Harness } from '../tests/e2e/harness.ts';
+import { CHROMIUM, SCREENSHOTS, skipReason, startHarness, visit, type Harness } from '../tests/e2e/harness.ts';
+import { longTasksOfTrace, TASK_CATEGORIES, TRACE_CATEGORIES, type LongTask } from './long-tasks.ts';
 
 // `--large-only`: only the 100 000-sample figures, in one page (a quick look while working on them).
 const LARGE_ONLY = process.argv.includes('--large-only');
+// `--attribute`: trace the 100 000-sample phases and say what each long task ran.
+const ATTRIBUTE = process.argv.includes('--attribute');
+// Traces of an unminified build name the app's own functions.
+if (ATTRIBUTE) process.env.GATESMITH_READABLE_BUILD = '1';
 const REPEATS = LARGE_ONLY ? 0 : 5;
 /** Fresh pages for the 100 000-sample figures. */
 const LARGE_REPEATS = LARGE_ONLY ? 1 : 3;
@@ -103,13 +110,16 @@ async function timedStop(page: Page): Promise<number> {
   );
 }
 
-/** Starts recording the page's long tasks (kept in the page until `longTasks` reads them). */
-async function recordLongTasks(page: Page): Promise<void> {
-  await page.evaluate(() => {
-    const w = window as unknown as { __longTasks: number[] };
+/** Starts recording the page's long tasks (kept in the page until `longTasks` reads them); `buffered` takes those since the page loaded too. */
+async function recordLongTasks(page: Page, buffered = false): Promise<void> {
+  await page.evaluate((buffered) => {
+    const w = window as unknown as { __longTasks: number[]; __longTaskObserver?: PerformanceObserver };
+    // One observer at a time: each earlier one still running would file every task again.
+    w.__longTaskObserver?.disconnect();
     w.__longTasks = [];
-    new PerformanceObserver((list) => list.getEntries().forEach((e) => w.__longTasks.push(e.duration))).observe({ type: 'longtask', buffered: false });
-  });
+    w.__longTaskObserver = new PerformanceObserver((list) => list.getEntries().forEach((e) => w.__longTasks.push(e.duration)));
+    w.__longTaskObserver.observe({ type: 'longtask', buffered });
+  }, buffered);
 }
 
 /** The long tasks recorded since `recordLongTasks` (ms), after a pause for the last ones to be reported. */
@@ -136,59 +146,91 @@ async function largePulseFile(bytes: number, dir: string): Promise<string> {
   return path;
 }
 
-/** Figures at 100 000 samples in one fresh page: Stop latency and every long task of a run, the views and a large file. */
-async function largeFigures(harness: Harness, file: string): Promise<{ stopMs: number; tasks: Array<[string, number[]]>; fileMs: number; progressShown: boolean }> {
+/** The long tasks of one phase: their durations, and what ran in them when traced. */
+interface Phase {
+  name: string;
+  tasks: number[];
+  attributed: LongTask[];
+}
+
+/** Figures at 100 000 samples in one fresh page: Stop latency and every long task of a run, the views, a reload and a large file. */
+async function largeFigures(harness: Harness, file: string): Promise<{ stopMs: number; phases: Phase[]; fileMs: number; progressShown: boolean }> {
   const { page, context } = await visit(harness);
-  const out = { stopMs: NaN, tasks: [] as Array<[string, number[]]>, fileMs: NaN, progressShown: false };
-  /** Runs a step and files the long tasks seen during it under its name. */
+  const out = { stopMs: NaN, phases: [] as Phase[], fileMs: NaN, progressShown: false };
+  /** Runs a step and files the long tasks seen during it under its name (traced with --attribute). */
   const measured = async (name: string, timeoutMs: number, body: () => Promise<void>) => {
+    // Every phase is traced: the trace gives each task's main-thread CPU time, which a busy
+    // machine does not stretch as it stretches wall time. --attribute adds the JS profiler.
+    await harness.browser.startTracing(page, { categories: ATTRIBUTE ? TRACE_CATEGORIES : TASK_CATEGORIES });
+    // Starting the trace is itself a task of the page: left out of the phase.
+    await page.waitForTimeout(500);
     await recordLongTasks(page);
+    await page.evaluate(() => performance.mark('gatesmith-phase'));
     await step(name, timeoutMs, undefined, body);
-    out.tasks.push([name, await longTasks(page)]);
+    const tasks = await longTasks(page);
+    const trace = await harness.browser.stopTracing();
+    // Kept for a closer look (Chromium's performance panel opens it).
+    if (ATTRIBUTE) await writeFile(join(SCREENSHOTS, `trace-${name.replace(/[^\w]+/g, '-')}.json`), trace);
+    const attributed = longTasksOfTrace(trace, 50, 'gatesmith-phase');
+    out.phases.push({ name, tasks, attributed });
+  };
+  const view = async (key: string, ready: () => Promise<unknown>) => {
+    await page.keyboard.press(key);
+    await ready();
   };
   try {
-    await step('100k: form', 60_000, undefined, async () => {
+    await measured('form to 100 000 samples', 60_000, async () => {
       await runEnabled(page);
       await setField(page, '#f-duration', '200 us');
       await setField(page, '#f-segments', String(LARGE_SAMPLES));
       await setField(page, '#f-iterations', '100000');
       await runEnabled(page);
     });
-    await recordLongTasks(page);
-    const started = await step('100k: run', 90_000, false, async () => {
+    let started = false;
+    await measured('run (design view, live)', 90_000, async () => {
       await page.getByTestId('run').click();
       await page.waitForFunction(() => document.querySelector('[data-testid=run-status]')?.textContent === 'running', undefined, { timeout: 30_000 });
       await page.waitForFunction(() => Number(document.querySelector('[data-testid=run-iteration]')?.textContent) >= 3, undefined, { timeout: 80_000 });
       await page.waitForTimeout(1500);
-      return true;
+      started = true;
     });
-    if (started) out.stopMs = await step('100k: stop', 30_000, NaN, () => timedStop(page));
-    await page.waitForTimeout(1000);
-    out.tasks.push(['run and stop', await longTasks(page)]);
-
-    await measured('waveform view', 30_000, async () => {
-      await page.keyboard.press('Alt+2');
-      await page.getByTestId('waveform-chart').waitFor({ timeout: 20_000 });
+    await measured('stop and keep the pulse', 30_000, async () => {
+      if (started) out.stopMs = await timedStop(page);
       await page.waitForTimeout(1000);
     });
-    await measured('robustness view', 120_000, async () => {
-      await page.keyboard.press('Alt+3');
-      await page.waitForFunction(() => /points in/.test(document.querySelector('[data-testid=map-status]')?.textContent ?? ''), undefined, { timeout: 110_000 });
-    });
-    await measured('Bloch view', 30_000, async () => {
-      await page.keyboard.press('Alt+5');
-      await page.getByTestId('bloch').waitFor({ timeout: 20_000 });
-      await page.waitForTimeout(1500);
-    });
-    await measured('export view', 90_000, async () => {
-      await page.keyboard.press('Alt+6');
-      await page.waitForFunction(() => ['ready', 'refused', 'invalid'].includes(document.querySelector('[data-testid=export-panel]')?.getAttribute('data-state') ?? ''), undefined, { timeout: 80_000 });
+    await measured('waveform view, amplitude, table', 30_000, async () => {
+      await view('Alt+2', () => page.getByTestId('waveform-chart').waitFor({ timeout: 20_000 }));
+      await page.waitForTimeout(800);
+      await page.locator('input[name=wf-mode][value=polar]').check();
+      await page.waitForTimeout(800);
+      await page.getByTestId('samples').locator('summary').click();
+      await page.getByTestId('samples').getByRole('button', { name: 'Last' }).click();
+      await page.waitForFunction(() => /page 1000 of 1000/.test(document.querySelector('[data-testid=samples-page]')?.textContent ?? ''), undefined, { timeout: 20_000 });
       await page.waitForTimeout(500);
     });
-    await measured('compare view', 90_000, async () => {
-      await page.keyboard.press('Alt+4');
-      await page.waitForFunction(() => document.querySelectorAll('[data-testid=compare-table] tbody tr').length > 1, undefined, { timeout: 80_000 });
+    await measured('robustness view (map)', 120_000, () =>
+      view('Alt+3', () => page.waitForFunction(() => /points in/.test(document.querySelector('[data-testid=map-status]')?.textContent ?? ''), undefined, { timeout: 110_000 })),
+    );
+    await measured('Bloch view, one member then all', 60_000, async () => {
+      await view('Alt+5', () => page.getByTestId('bloch').waitFor({ timeout: 20_000 }));
+      await page.waitForTimeout(1500);
+      await page.locator('input[name=b-show][value=all]').check();
+      await page.waitForFunction(() => Number(document.querySelector('[data-testid=bloch-facts]')?.getAttribute('data-members')) > 1, undefined, { timeout: 50_000 });
+      await page.waitForTimeout(500);
     });
+    await measured('spectrum view', 90_000, async () => {
+      await view('Alt+7', () => page.waitForFunction(() => /0 dB =/.test(document.querySelector('[data-testid=spectrum-status]')?.textContent ?? ''), undefined, { timeout: 80_000 }));
+      await page.waitForTimeout(500);
+    });
+    await measured('export view', 90_000, async () => {
+      await view('Alt+6', () =>
+        page.waitForFunction(() => ['ready', 'refused', 'invalid'].includes(document.querySelector('[data-testid=export-panel]')?.getAttribute('data-state') ?? ''), undefined, { timeout: 80_000 }),
+      );
+      await page.waitForTimeout(500);
+    });
+    await measured('compare view', 90_000, () =>
+      view('Alt+4', () => page.waitForFunction(() => document.querySelectorAll('[data-testid=compare-table] tbody tr').length > 1, undefined, { timeout: 80_000 })),
+    );
     await measured(`${LARGE_FILE_BYTES / 1e6} MB pulse file`, 120_000, async () => {
       const t0 = await page.evaluate(() => performance.now());
       await page.getByTestId('open-pulse').setInputFiles(file);
@@ -198,6 +240,14 @@ async function largeFigures(harness: Harness, file: string): Promise<{ stopMs: n
       out.fileMs = (await page.evaluate(() => performance.now())) - t0;
       await Promise.race([progress, page.waitForTimeout(100)]);
       await page.waitForTimeout(1000);
+    });
+    await measured('reload (session restored)', 60_000, async () => {
+      // Autosaved before the reload, as on leaving the page.
+      await page.waitForTimeout(1000);
+      await page.reload();
+      await runEnabled(page);
+      await recordLongTasks(page, true);
+      await page.waitForTimeout(1500);
     });
   } finally {
     await context.close();
@@ -219,6 +269,8 @@ export interface AppFigures {
   stopLargeMs: number;
   /** Main-thread tasks over 50 ms at 100 000 samples: a run and its Stop, every view, a 62 MB file. */
   largeLongTasksMs: number[];
+  /** Main-thread CPU time of each of those tasks over 50 ms of CPU (from the trace: a busy machine stretches wall time, not this). */
+  largeCpuLongTasksMs: number[];
   largeFileOpenMs: number;
   largeFileProgressShown: boolean;
   /** Steps that failed or ran out of time. */
@@ -289,15 +341,17 @@ export async function appBenchmark(log: (line: string) => void = console.log): P
     let largeTasks: number[] = [];
     const fileTimes: number[] = [];
     let progressShown = true;
-    const taskRows: Array<[string, number[]]> = [];
+    const phases = new Map<string, number[][]>();
+    const attributed: Array<[string, LongTask]> = [];
     for (let r = 0; r < LARGE_REPEATS; r++) {
       const large = await largeFigures(harness, file);
       largeStops.push(large.stopMs);
       fileTimes.push(large.fileMs);
       progressShown &&= large.progressShown;
-      for (const [name, values] of large.tasks) {
-        largeTasks = largeTasks.concat(values);
-        taskRows.push([`${name} (page ${r + 1})`, values]);
+      for (const phase of large.phases) {
+        largeTasks = largeTasks.concat(phase.tasks);
+        phases.set(phase.name, [...(phases.get(phase.name) ?? []), phase.tasks]);
+        for (const task of phase.attributed) attributed.push([`${phase.name} (page ${r + 1})`, task]);
       }
     }
     await rm(dir, { recursive: true, force: true });
@@ -318,13 +372,31 @@ export async function appBenchmark(log: (line: string) => void = console.log): P
     row(`open a ${LARGE_FILE_BYTES / 1e6} MB pulse file, to "Opened"`, fileTimes);
     log(`${'progress shown while the file is read'.padEnd(48)} ${progressShown ? 'yes' : 'no'}`);
     tasks(`main-thread tasks over 50 ms at ${LARGE_SAMPLES} samples`, largeTasks);
-    for (const [name, values] of taskRows) tasks(`  ${name}`, values);
+    const cpuOver = attributed.filter(([, t]) => t.cpuMs > 50);
+    log(`${`tasks over 50 ms of main-thread CPU at ${LARGE_SAMPLES} samples`.padEnd(48)} ${String(cpuOver.length).padStart(9)}      (longest ${Math.max(0, ...attributed.map(([, t]) => t.cpuMs)).toFixed(0)} ms)`);
+    log(`  per phase: wall-clock long tasks (over 50 ms; longest) | the same tasks' main-thread CPU (over 50 ms; longest)`);
+    for (const [name, pages] of phases) {
+      const all = pages.flat();
+      const cpu = attributed.filter(([n]) => n.startsWith(`${name} (page`)).map(([, t]) => t.cpuMs);
+      log(
+        `  ${name.padEnd(34)} wall ${String(all.filter((t) => t > 50).length).padStart(3)}; ${(all.length ? Math.max(...all) : 0).toFixed(0).padStart(4)} ms` +
+          ` | CPU ${String(cpu.filter((t) => t > 50).length).padStart(3)}; ${(cpu.length ? Math.max(...cpu) : 0).toFixed(0).padStart(4)} ms`,
+      );
+    }
+    if (ATTRIBUTE) {
+      log(`long tasks at ${LARGE_SAMPLES} samples (wall / main-thread CPU ms; events; functions by samples):`);
+      for (const [name, t] of attributed) {
+        log(`  ${name}: ${t.wallMs.toFixed(0)} / ${t.cpuMs.toFixed(0)} ms at ${(t.atMs / 1000).toFixed(2)} s`);
+        log(`    events: ${t.events.map(([e, ms]) => `${e} ${ms}`).join('; ')}`);
+        log(`    functions: ${t.functions.map(([f, ms]) => `${f} ${ms.toFixed(1)}`).join('; ')}`);
+      }
+    }
     log(`steps that failed or ran out of time: ${failures.length ? failures.join('; ') : 'none'}`);
     const over = longTasksMs.filter((t) => t > 50);
     return {
       loadToInteractiveMs: median(loads), firstConvergencePointMs: median(firstPoints), demoDesignMs: median(designs),
       stopMs: median(stops), map201CoarseMs: median(coarse), map201FullMs: median(full), longTasksMs, longTasksOver50: over.length,
-      stopLargeMs: median(largeStops), largeLongTasksMs: largeTasks.filter((t) => t > 50), largeFileOpenMs: median(fileTimes),
+      stopLargeMs: median(largeStops), largeLongTasksMs: largeTasks.filter((t) => t > 50), largeCpuLongTasksMs: cpuOver.map(([, t]) => t.cpuMs), largeFileOpenMs: median(fileTimes),
       largeFileProgressShown: progressShown, failures: [...failures],
     };
   } finally {

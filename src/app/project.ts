@@ -44,6 +44,12 @@ export interface ViewSettings {
   export?: ExportForm;
 }
 
+/** The spec's undo history: earlier specs and undone ones, newest last each. */
+export interface SpecHistory {
+  past: Record<string, unknown>[];
+  future: Record<string, unknown>[];
+}
+
 /** Everything a project file holds. */
 export interface Project {
   format: typeof PROJECT_FORMAT;
@@ -52,6 +58,8 @@ export interface Project {
   spec: Record<string, unknown>;
   pulses: StoredPulse[];
   settings: ViewSettings;
+  /** The spec's undo history (kept by the autosave, so that Ctrl+Z still works after a reload). */
+  specHistory?: SpecHistory;
 }
 
 /** View settings of a new session. */
@@ -123,7 +131,7 @@ function readPulseEntry(value: unknown, k: number): StoredPulse {
 }
 
 /** Every reason a start can end with (StopReason of src/core/types.ts; the check below keeps the two lists equal). */
-const STOP_REASONS = ['target-reached', 'gradient-tolerance', 'max-iterations', 'time-limit', 'stopped', 'line-search-failed', 'stalled', 'pruned'] as const satisfies readonly StopReason[];
+const STOP_REASONS = ['target-reached', 'gradient-tolerance', 'max-iterations', 'time-limit', 'stopped', 'line-search-failed', 'stalled', 'pruned', 'outpaced'] as const satisfies readonly StopReason[];
 // A reason added to StopReason and not here fails to compile.
 type MissingStopReason = Exclude<StopReason, (typeof STOP_REASONS)[number]>;
 const noMissingStopReason: [MissingStopReason] extends [never] ? true : never = true;
@@ -259,6 +267,7 @@ export function parseProject(input: string | unknown): Project {
   }
   const settings = readSettings(obj.settings);
   if (settings.selectedPulse !== null && !ids.has(settings.selectedPulse)) settings.selectedPulse = pulses[0]?.id ?? null;
+  const specHistory = obj.specHistory === undefined ? undefined : readSpecHistory(obj.specHistory);
   return {
     format: PROJECT_FORMAT,
     version: PROJECT_VERSION,
@@ -266,7 +275,17 @@ export function parseProject(input: string | unknown): Project {
     spec,
     pulses,
     settings,
+    ...(specHistory ? { specHistory } : {}),
   };
+}
+
+function readSpecHistory(value: unknown): SpecHistory {
+  const obj = record(value, 'specHistory');
+  const specs = (list: unknown, where: string) => {
+    if (!Array.isArray(list)) fail(where, list, 'expected a list of specs');
+    return list.map((spec, k) => record(spec, `${where}[${k}]`));
+  };
+  return { past: specs(obj.past, 'specHistory.past'), future: specs(obj.future, 'specHistory.future') };
 }
 
 /** A project as written to a file (pretty JSON; numbers print as the shortest exact text). */

@@ -66,6 +66,7 @@ const STOP_WORDS: Record<StopReason, string> = {
   'line-search-failed': 'line search found no better point',
   stalled: 'progress stalled',
   pruned: 'pruned after the first iterations',
+  outpaced: 'could not overtake the best start',
 };
 
 /** Why a start ended, in words, with the machine name beside it: "iteration limit (max-iterations)". */

@@ -10,7 +10,7 @@ import { lineJson } from './line-spec.ts';
 import { StartRun } from './run.ts';
 import { checkProblemAngles, checkPulseAngles } from './limits.ts';
 import { checkProblem, checkTarget } from './problem-check.ts';
-import { bestStart, prunes, startsToContinue } from './best-start.ts';
+import { bestStart, outpacedStarts, prunes, startsToContinue, type Checkpoint } from './best-start.ts';
 import { axisValues, checkRegion } from './grid.ts';
 import { parseSpec } from './spec.ts';
 import type {
@@ -43,6 +43,15 @@ export interface DesignOptions {
    * so the result stays deterministic.
    */
   initialPulse?: { i: ArrayLike<number>; q: ArrayLike<number> };
+  /**
+   * Compares the starts every `outpaceEvery` iterations (best-start.ts outpacedStarts): given
+   * this share's starts there, resolves with the starts to stop as outpaced. Default: the
+   * design's own starts compared among themselves; a design split over threads or workers
+   * passes a Referee's report, so that every share is compared with every start.
+   */
+  judge?: (checkpoint: Checkpoint) => number[] | Promise<number[]>;
+  /** Called with each start's result as the start ends. */
+  onStartEnd?: (result: StartResult) => void;
   /**
    * Threads that evaluate some member shares of a large problem (member-split.ts; Node's
    * designInThreads starts them). The shares and their sum do not depend on it: with or
@@ -265,27 +274,35 @@ async function designNow(problem: Problem, options: DesignOptions): Promise<Desi
   const until = pruning ? Math.min(pruneAfter, maxIterations) : maxIterations;
   const starts: StartResult[] = [];
   const open: { run: StartRun; elapsedS: number }[] = [];
+  const ended = (result: StartResult): void => {
+    starts.push(result);
+    options.onStartEnd?.(result);
+  };
   try {
-    for (const s of indices) {
-      if (starts.length + open.length > 0 && (options.signal?.aborted || performance.now() >= deadline)) break;
-      const tStart = performance.now();
-      const run = new StartRun(problem, s, undefined, s === 0 ? options.initialPulse : undefined, options.sharePool);
-      const reason = await advance(problem, run, options, t0, deadline, until);
-      const elapsedS = (performance.now() - tStart) / 1000;
-      if (reason) {
-        starts.push(startResult(problem, run, reason, elapsedS));
-        run.dispose();
-      } else open.push({ run, elapsedS });
-    }
-    // The probe stage hands its open starts back as 'pruned'; a whole design continues the best.
-    const probes = [...starts, ...open.map(({ run, elapsedS }) => startResult(problem, run, 'pruned', elapsedS))];
-    const going = options.stage === 'probe' ? [] : startsToContinue(probes, keepStarts);
-    for (const { run, elapsedS } of open) {
-      if (going.includes(run.start)) {
+    if (o.outpaceEvery > 0 && !pruning && options.stage !== 'finish') {
+      await designInStep(problem, indices, options, t0, deadline, starts, open, ended);
+    } else {
+      for (const s of indices) {
+        if (starts.length + open.length > 0 && (options.signal?.aborted || performance.now() >= deadline)) break;
         const tStart = performance.now();
-        const reason = (await advance(problem, run, options, t0, deadline, maxIterations)) ?? 'max-iterations';
-        starts.push(startResult(problem, run, reason, elapsedS + (performance.now() - tStart) / 1000));
-      } else starts.push(probes.find((r) => r.start === run.start)!);
+        const run = new StartRun(problem, s, undefined, s === 0 ? options.initialPulse : undefined, options.sharePool);
+        const reason = await advance(problem, run, options, t0, deadline, until);
+        const elapsedS = (performance.now() - tStart) / 1000;
+        if (reason) {
+          ended(startResult(problem, run, reason, elapsedS));
+          run.dispose();
+        } else open.push({ run, elapsedS });
+      }
+      // The probe stage hands its open starts back as 'pruned'; a whole design continues the best.
+      const probes = [...starts, ...open.map(({ run, elapsedS }) => startResult(problem, run, 'pruned', elapsedS))];
+      const going = options.stage === 'probe' ? [] : startsToContinue(probes, keepStarts);
+      for (const { run, elapsedS } of open) {
+        if (going.includes(run.start)) {
+          const tStart = performance.now();
+          const reason = (await advance(problem, run, options, t0, deadline, maxIterations)) ?? 'max-iterations';
+          ended(startResult(problem, run, reason, elapsedS + (performance.now() - tStart) / 1000));
+        } else ended(probes.find((r) => r.start === run.start)!);
+      }
     }
   } finally {
     for (const { run } of open) run.dispose();
@@ -294,6 +311,55 @@ async function designNow(problem: Problem, options: DesignOptions): Promise<Desi
   const result = bestOfStarts(problem, starts, t0);
   if (options.stage === 'probe' && pruning) result.keepStarts = keepStarts;
   return result;
+}
+
+/**
+ * The starts in step, outpaceEvery iterations at a time: after each round every start has
+ * the same iteration count (or has ended), and the judge (options.judge, else these starts
+ * among themselves) names the ones outpaced. A start's path never depends on the others,
+ * so each start stops at the same iteration whatever the order, the threads or the workers.
+ * Ended starts go to `ended`; the open ones stay in `open` for the caller to free.
+ */
+async function designInStep(
+  problem: Problem, indices: number[], options: DesignOptions, t0: number, deadline: number,
+  starts: StartResult[], open: { run: StartRun; elapsedS: number }[], ended: (result: StartResult) => void,
+): Promise<void> {
+  const { outpaceEvery, maxIterations } = problem.optimizer;
+  const judge = options.judge ?? ((c: Checkpoint) => outpacedStarts(c.standings, c.iteration, problem.optimizer));
+  for (let iteration = outpaceEvery; ; iteration += outpaceEvery) {
+    const until = Math.min(iteration, maxIterations);
+    // The first round creates each start as it comes to it, and none once the run is
+    // stopped or out of time (as starts run one at a time would).
+    const round = iteration === outpaceEvery ? indices : [...open];
+    for (const item of round) {
+      let entry: { run: StartRun; elapsedS: number };
+      if (typeof item === 'number') {
+        if (starts.length + open.length > 0 && (options.signal?.aborted || performance.now() >= deadline)) break;
+        entry = { run: new StartRun(problem, item, undefined, item === 0 ? options.initialPulse : undefined, options.sharePool), elapsedS: 0 };
+        open.push(entry);
+      } else entry = item;
+      const tStart = performance.now();
+      const reason = await advance(problem, entry.run, options, t0, deadline, until);
+      entry.elapsedS += (performance.now() - tStart) / 1000;
+      if (reason) {
+        ended(startResult(problem, entry.run, reason, entry.elapsedS));
+        entry.run.dispose();
+        open.splice(open.indexOf(entry), 1);
+      }
+    }
+    if (open.length === 0) return;
+    const standings = [
+      ...starts.map((r) => ({ start: r.start, objective: r.objective })),
+      ...open.map(({ run }) => ({ start: run.start, objective: run.objective, before: run.objectiveAt(iteration - outpaceEvery) })),
+    ];
+    const stop = new Set(await judge({ iteration, standings }));
+    for (const entry of [...open]) {
+      if (!stop.has(entry.run.start)) continue;
+      ended(startResult(problem, entry.run, 'outpaced', entry.elapsedS));
+      entry.run.dispose();
+      open.splice(open.indexOf(entry), 1);
+    }
+  }
 }
 
 function checkInitialPulse(pulse: { i: ArrayLike<number>; q: ArrayLike<number> }, segments: number): void {
@@ -369,7 +435,8 @@ async function advance(problem: Problem, run: StartRun, options: DesignOptions, 
     }
     options.onProgress(progress);
   };
-  report();
+  // Iteration 0 once; a start advanced again (in step, or after the pruning point) goes on from where it was reported.
+  if (run.iterations === 0) report();
   for (;;) {
     if (run.infidelity <= optimizer.targetInfidelity) return 'target-reached';
     if (options.signal?.aborted) return 'stopped';

@@ -49,3 +49,89 @@ export function mergePruned(probeShares: readonly DesignResult[], finishShares: 
   const starts = [...probeShares.flatMap((s) => s.starts).filter((r) => !going.has(r.start)), ...finishShares.flatMap((s) => s.starts)];
   return { ...merged, starts: starts.sort((a, b) => a.start - b.start) };
 }
+
+/** A start's standing at a comparison of the starts (outpacedStarts). */
+export interface Standing {
+  start: number;
+  /** Its objective now (at the comparison's iteration), or where it ended. */
+  objective: number;
+  /** Its objective outpaceEvery iterations before now; absent when the start has ended. */
+  before?: number;
+}
+
+/** The starts of one share (a thread's or a worker's) at a comparison after `iteration` iterations. */
+export interface Checkpoint {
+  iteration: number;
+  standings: Standing[];
+}
+
+/**
+ * The running starts that stop as outpaced after `iteration` iterations: the leader is the
+ * lowest objective of every start (ended ones by where they ended; ties to the lower
+ * index); a running start other than the leader stops when, descending from now to
+ * maxIterations at `factor` times its rate over the last `window` iterations (in
+ * log(objective), the rate of a linearly converging start), it would still end above
+ * the leader's objective now. The leader only descends further, so the rule is
+ * optimistic for the stopped start twice over. Plain data, so one loop, threads and the
+ * page's workers stop the same starts. Returned in index order.
+ */
+export function outpacedStarts(standings: readonly Standing[], iteration: number, optimizer: { outpaceEvery: number; outpaceFactor: number; maxIterations: number }): number[] {
+  if (standings.length < 2) return [];
+  const leader = bestStart(standings);
+  const window = optimizer.outpaceEvery;
+  const left = optimizer.maxIterations - iteration;
+  const out: number[] = [];
+  for (const s of standings) {
+    if (s === leader || s.before === undefined || !(s.objective > 0)) continue;
+    const rate = s.before > s.objective ? Math.log(s.before / s.objective) / window : 0;
+    const reachable = s.objective * Math.exp(-optimizer.outpaceFactor * rate * left);
+    if (reachable > leader.objective) out.push(s.start);
+  }
+  return out.sort((a, b) => a - b);
+}
+
+/**
+ * Compares the starts of a design split into shares (threads or workers) at each
+ * checkpoint: every share that still runs reports its starts there and waits; when every
+ * share has reported or ended, each gets the outpaced starts (outpacedStarts over all of
+ * them). A share that has ended counts by its starts' final objectives.
+ */
+export class Referee {
+  private readonly optimizer: { outpaceEvery: number; outpaceFactor: number; maxIterations: number };
+  private readonly ended = new Map<number, Standing[]>();
+  private readonly waiting = new Map<number, { checkpoint: Checkpoint; resolve: (stop: number[]) => void }>();
+  private readonly shares: number;
+
+  constructor(shares: number, optimizer: { outpaceEvery: number; outpaceFactor: number; maxIterations: number }) {
+    this.shares = shares;
+    this.optimizer = optimizer;
+  }
+
+  /** Share `share` is at a checkpoint; resolves with the starts (of every share) that stop there. */
+  report(share: number, checkpoint: Checkpoint): Promise<number[]> {
+    return new Promise((resolve) => {
+      this.waiting.set(share, { checkpoint, resolve });
+      this.settle();
+    });
+  }
+
+  /** Share `share` has ended (or failed): its starts' final objectives. */
+  end(share: number, starts: readonly { start: number; objective: number }[]): void {
+    this.ended.set(share, starts.map((s) => ({ start: s.start, objective: s.objective })));
+    this.waiting.delete(share);
+    this.settle();
+  }
+
+  private settle(): void {
+    if (this.waiting.size === 0 || this.waiting.size + this.ended.size < this.shares) return;
+    const reports = [...this.waiting.values()];
+    const iteration = reports[0].checkpoint.iteration;
+    if (reports.some((r) => r.checkpoint.iteration !== iteration)) {
+      throw new RangeError(`checkpoints: shares reported at different iterations (${reports.map((r) => r.checkpoint.iteration).join(', ')})`);
+    }
+    const standings = [...reports.flatMap((r) => r.checkpoint.standings), ...[...this.ended.values()].flat()];
+    const stop = outpacedStarts(standings, iteration, this.optimizer);
+    this.waiting.clear();
+    for (const r of reports) r.resolve(stop);
+  }
+}

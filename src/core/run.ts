@@ -39,14 +39,10 @@ export class StartRun {
   private lastRecentreObjective = Infinity;
   /** Ends the split of the objective into member shares, when it is split. */
   private unsplit: (() => void) | undefined;
-  /** Objectives after the last stallIterations + 1 iterations, a ring indexed by iteration. */
+  /** Objectives after the last max(stallIterations, outpaceEvery) + 1 iterations, a ring indexed by iteration. */
   private readonly history: Float64Array;
 
-  /**
-   * `samples` (Hz, the problem's segments), when given, are where the start begins instead of
-   * its seeded pulse. The core is the build the problem asks for (optimizer.arithmetic).
-   * `pool`: threads that evaluate some of a large problem's member shares (threads.ts).
-   */
+  /** `samples` (Hz, the problem's segments), when given, are where the start begins instead of its seeded pulse. */
   constructor(
     problem: Problem, start: number, core: Core = getCore(problem.optimizer.arithmetic), samples?: { i: ArrayLike<number>; q: ArrayLike<number> }, pool?: SharePool,
   ) {
@@ -55,7 +51,7 @@ export class StartRun {
     this.start = start;
     const enc = encodeSystem(problem.target, problem.members, problem.system);
     const { segments: n, dt, rabiMax, constraints, optimizer } = problem;
-    this.history = new Float64Array(optimizer.stallIterations + 1);
+    this.history = new Float64Array(Math.max(optimizer.stallIterations, optimizer.outpaceEvery) + 1);
     const drive = problem.line ? lineLayout(problem.line, n, dt) : undefined;
     this.ptr = createBlock(core, {
       ...blockSystem(enc), target: problem.target, segments: n, dt, bound: constraints.bound, zeroEdges: constraints.zeroEdges,
@@ -107,6 +103,14 @@ export class StartRun {
     if (k === 0 || this.iterationCount < k) return false;
     const before = this.history[(this.iterationCount - k) % this.history.length];
     return before - this.objective <= tau * before;
+  }
+
+  /** The objective after `iteration` iterations, one of the last max(stallIterations, outpaceEvery) + 1 (else a RangeError). */
+  objectiveAt(iteration: number): number {
+    if (!Number.isInteger(iteration) || iteration < 0 || iteration > this.iterationCount || this.iterationCount - iteration >= this.history.length) {
+      throw new RangeError(`iteration: ${iteration} is not kept; the start keeps iterations ${Math.max(0, this.iterationCount - this.history.length + 1)} to ${this.iterationCount}`);
+    }
+    return this.history[iteration % this.history.length];
   }
 
   /**

@@ -8,7 +8,7 @@
 import { availableParallelism } from 'node:os';
 import { Worker } from 'node:worker_threads';
 import { bestOfStarts, toProblem } from './api.ts';
-import { prunes, startsToContinue } from './best-start.ts';
+import { prunes, Referee, startsToContinue, type Checkpoint } from './best-start.ts';
 import type { DesignOptions } from './api.ts';
 import { checkProblemAngles } from './limits.ts';
 import { memberShares } from './member-split.ts';
@@ -19,6 +19,7 @@ import type { DesignResult, Problem, Progress, Pulse, StartResult } from './type
 export type ThreadMessage =
   | { kind: 'progress'; progress: Progress }
   | { kind: 'start'; result: StartResult }
+  | { kind: 'checkpoint'; checkpoint: Checkpoint }
   | { kind: 'done' }
   | { kind: 'error'; name: string; message: string; stack?: string };
 
@@ -82,8 +83,8 @@ async function runStage(
   stage?: 'probe' | 'finish', reached?: Map<number, StartResult>,
 ): Promise<{ starts: StartResult[]; stopped: boolean }> {
   const threads = Math.min(threadCount, indices.length);
-  const shares = Array.from({ length: threads }, (_, t) => indices.filter((_, k) => k % threads === t));
   const perStart = memberThreads(problem, indices.length, threadCount);
+  const shares = Array.from({ length: threads }, (_, t) => indices.filter((_, k) => k % threads === t));
   const latest = new Map<number, Progress>();
   const finished: StartResult[] = [];
   const onProgress = (p: Progress): void => {
@@ -97,7 +98,9 @@ async function runStage(
     }
   };
   const workers: Worker[] = [];
-  const runs = shares.map((share) => runThread(problem, share, { ...options, stage }, perStart, workers, onProgress, finished));
+  // A design that is not staged compares its starts across the threads (best-start.ts Referee).
+  const referee = stage === undefined && problem.optimizer.outpaceEvery > 0 ? new Referee(threads, problem.optimizer) : undefined;
+  const runs = shares.map((share, t) => runThread(problem, share, { ...options, stage }, perStart, workers, onProgress, finished, referee && { referee, share: t }));
   // The threads end inside the abort itself, before whatever the caller does next.
   const stopped = new Promise<'stopped'>((resolve) => {
     const stop = (): void => {
@@ -147,25 +150,41 @@ function runThread(
   workers: Worker[],
   onProgress: (p: Progress) => void,
   finished: StartResult[],
+  refereed?: { referee: Referee; share: number },
 ): Promise<void> {
   return new Promise((resolve, reject) => {
     const entry = threadEntry('design-thread');
     const keepEvery = Math.min(options.progressPulseEveryMs ?? KEEP_PULSE_EVERY_MS, KEEP_PULSE_EVERY_MS);
     const initialPulse = options.initialPulse ? { i: Array.from(options.initialPulse.i), q: Array.from(options.initialPulse.q) } : undefined;
-    const worker = new Worker(entry.url, { eval: entry.eval, workerData: { problem, startIndices, progressPulseEveryMs: keepEvery, initialPulse, stage: options.stage, memberThreads: perStart } });
+    const workerData = { problem, startIndices, progressPulseEveryMs: keepEvery, initialPulse, stage: options.stage, refereed: refereed !== undefined, memberThreads: perStart };
+    const worker = new Worker(entry.url, { eval: entry.eval, workerData });
     workers.push(worker);
+    const mine = new Set(startIndices);
+    // The thread's ended starts, for the referee once it has ended (or failed).
+    const end = (): void => refereed?.referee.end(refereed.share, finished.filter((r) => mine.has(r.start)));
     worker.on('message', (message: ThreadMessage) => {
       if (message.kind === 'progress') onProgress(message.progress);
       else if (message.kind === 'start') finished.push(message.result);
-      else if (message.kind === 'done') resolve();
-      else {
+      else if (message.kind === 'checkpoint') {
+        void refereed?.referee.report(refereed.share, message.checkpoint).then((stop) => worker.postMessage({ kind: 'judged', stop }));
+      } else if (message.kind === 'done') {
+        end();
+        resolve();
+      } else {
+        end();
         const error = new Error(message.message);
         error.name = message.name;
         error.stack = message.stack;
         reject(error);
       }
     });
-    worker.on('error', reject);
-    worker.on('exit', () => resolve());
+    worker.on('error', (error) => {
+      end();
+      reject(error);
+    });
+    worker.on('exit', () => {
+      end();
+      resolve();
+    });
   });
 }

@@ -59,6 +59,14 @@ export interface OptimizerSettings {
   /** Starts that go on after pruneAfter iterations: the lowest objectives there. */
   keepStarts: number;
   /**
+   * Iterations between comparisons of the starts, and the window of a start's recent rate
+   * (0 = never): a start that could not overtake the leading start even descending at
+   * outpaceFactor times that rate until maxIterations stops (best-start.ts outpacedStarts).
+   */
+  outpaceEvery: number;
+  /** How much faster than its recent rate a start is assumed to keep descending when judged. */
+  outpaceFactor: number;
+  /**
    * The core's build a design runs on (src/core/wasm.ts CoreBuild): 'portable' (absent: the
    * default, the same bits on every engine) or 'fused' (relaxed SIMD, faster, another last
    * bit; where the engine cannot run it, the portable build runs). The pulse records which ran.
@@ -178,7 +186,8 @@ export type StopReason =
   | 'stopped'
   | 'line-search-failed'
   | 'stalled'
-  | 'pruned';
+  | 'pruned'
+  | 'outpaced';
 
 /** One progress report of a running design. */
 export interface Progress {

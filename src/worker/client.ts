@@ -2,11 +2,12 @@
 // Designs spread their starts over the pool and keep the best pulse; maps come back coarse
 // first, then at full resolution in bands computed in parallel. The only `wrap`.
 import { proxy, releaseProxy, wrap, type Endpoint, type Remote } from 'comlink';
-import { mergeDesigns, mergePruned, startsToContinue } from '../core/best-start.ts';
+import { mergeDesigns, mergePruned, prunes, Referee, startsToContinue, type Checkpoint } from '../core/best-start.ts';
 import { axisValue } from '../core/grid.ts';
 import type { QubitDrive } from '../core/line.ts';
 import type { DesignResult, Evaluation, GridAxis, LadderSystem, Line, Member, Problem, Pulse, StartResult, Target, Vec3 } from '../core/types.ts';
 import type { EncodedWaveform } from '../io/export/index.ts';
+import { sendable } from './transfer.ts';
 import type {
   CompareRequest,
   CompareRow,
@@ -211,7 +212,19 @@ export class CoreClient {
       const work = (async (): Promise<DesignOutcome> => {
         // Every start to the pruning point (the whole run when the spec does not prune), then the
         // best again from their start on, as one loop and the command line's threads do.
-        const probes = await Promise.all(groups.map((group, w) => designers[w].design(spec, group, sink, livePulseEveryMs, 'probe')));
+        // A design that does not prune compares its starts across the workers (best-start.ts Referee).
+        const o = check.ok ? check.problem.optimizer : undefined;
+        const referee = o && o.outpaceEvery > 0 && !prunes(o, o.starts) ? new Referee(groups.length, o) : undefined;
+        const probes = await Promise.all(groups.map((group, w) => {
+          const judge = referee && proxy((checkpoint: Checkpoint) => referee.report(w, checkpoint));
+          return designers[w].design(spec, group, sink, livePulseEveryMs, 'probe', judge).then((share) => {
+            referee?.end(w, share.starts);
+            return share;
+          }, (error: unknown) => {
+            referee?.end(w, []);
+            throw error;
+          });
+        }));
         const keep = probes[0].keepStarts;
         const going = keep === undefined || this.stopRequested ? [] : startsToContinue(probes.flatMap((r) => r.starts), keep);
         if (going.length === 0) return { ...mergeDesigns(probes, (performance.now() - t0) / 1000), stopped: this.stopRequested };
@@ -321,7 +334,7 @@ export class CoreClient {
     // The analysis worker may be busy with a long map: Stop does not wait for it. Then the
     // worst member is left unknown (NaN) for the page to ask for later.
     const late = new Promise<null>((resolve) => setTimeout(() => resolve(null), STOP_EVALUATION_WAIT_MS));
-    const evaluated = await Promise.race([this.analysis.evaluate(running.spec, pulse).catch(() => null), late]);
+    const evaluated = await Promise.race([sendable(pulse).then((sent) => this.analysis.evaluate(running.spec, sent)).catch(() => null), late]);
     const evaluation: Evaluation = evaluated ?? { members: [], meanInfidelity: best.point.meanInfidelity, worstInfidelity: NaN, worstIndex: -1 };
     pulse.metadata.figures = {
       meanInfidelity: evaluation.meanInfidelity,
@@ -335,14 +348,16 @@ export class CoreClient {
     return { pulse, evaluation, best: kept, starts, elapsedS: (performance.now() - running.t0) / 1000, stopped: true };
   }
 
+  // Every pulse goes to a worker as a copy made in slices and transferred (transfer.ts `sendable`).
+
   /** Figures of a pulse on the spec's ensemble. */
-  evaluate(spec: unknown, pulse: Pulse): Promise<Evaluation> {
-    return this.analysis.evaluate(spec, pulse);
+  async evaluate(spec: unknown, pulse: Pulse): Promise<Evaluation> {
+    return this.analysis.evaluate(spec, await sendable(pulse));
   }
 
   /** A map, coarse first, then full resolution in bands spread over the idle workers (on a ladder, with its leakage). */
   async map(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, onUpdate?: (update: MapUpdate) => void, line?: Line, system?: LadderSystem): Promise<MapUpdate> {
-    const coarse = await this.analysis.map(target, pulse, coarseAxis(detuning), coarseAxis(amplitudeError), line, system);
+    const coarse = await this.analysis.map(target, await sendable(pulse), coarseAxis(detuning), coarseAxis(amplitudeError), line, system);
     const update: MapUpdate = { coarse, complete: false };
     onUpdate?.({ ...update });
     const pool = this.designing ? [this.analysis] : [this.analysis, ...this.designers.filter((d) => d !== this.analysis)];
@@ -355,7 +370,7 @@ export class CoreClient {
       bands.map(async ([first, last], b) => {
         const rows: GridAxis = { min: axisValue(amplitudeError, first), max: axisValue(amplitudeError, last), points: last - first + 1 };
         if (amplitudeError.points === 1) Object.assign(rows, amplitudeError);
-        const part = await workers[b].map(target, pulse, detuning, rows, line, system);
+        const part = await workers[b].map(target, await sendable(pulse), detuning, rows, line, system);
         infidelity.set(part.infidelity, first * detuning.points);
         if (fine.leakage && part.leakage) fine.leakage.set(part.leakage, first * detuning.points);
         update.fine = fine;
@@ -368,38 +383,38 @@ export class CoreClient {
   }
 
   /** Cuts through zero error over the grid's ranges. */
-  cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line, system?: LadderSystem): Promise<Cuts> {
-    return this.analysis.cuts(target, pulse, detuning, amplitudeError, line, system);
+  async cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line, system?: LadderSystem): Promise<Cuts> {
+    return this.analysis.cuts(target, await sendable(pulse), detuning, amplitudeError, line, system);
   }
 
   /** The comparison table and cuts. */
-  compare(request: CompareRequest): Promise<CompareRow[]> {
-    return this.analysis.compare(request);
+  async compare(request: CompareRequest): Promise<CompareRow[]> {
+    return this.analysis.compare(await sendable(request));
   }
 
   /** Bloch vectors after each sample for one member. */
-  trajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line, system?: LadderSystem): Promise<Float64Array> {
-    return this.analysis.trajectory(pulse, member, from, line, system);
+  async trajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line, system?: LadderSystem): Promise<Float64Array> {
+    return this.analysis.trajectory(await sendable(pulse), member, from, line, system);
   }
 
   /** Population of every level against time for one member (the drive through the line). */
-  populations(pulse: Pulse, member: Member, system: LadderSystem, from: Vec3, line?: Line): Promise<Populations> {
-    return this.analysis.populations(pulse, member, system, from, line);
+  async populations(pulse: Pulse, member: Member, system: LadderSystem, from: Vec3, line?: Line): Promise<Populations> {
+    return this.analysis.populations(await sendable(pulse), member, system, from, line);
   }
 
   /** The drive the qubit sees through the line. */
-  drive(pulse: Pulse, line?: Line): Promise<QubitDrive> {
-    return this.analysis.drive(pulse, line);
+  async drive(pulse: Pulse, line?: Line): Promise<QubitDrive> {
+    return this.analysis.drive(await sendable(pulse), line);
   }
 
   /** Bloch paths of several members, each thinned to at most `maxPoints` points. */
-  ensembleTrajectories(pulse: Pulse, members: Member[], from: Vec3, maxPoints = 600, line?: Line): Promise<EnsemblePaths> {
-    return this.analysis.ensembleTrajectories(pulse, members, from, maxPoints, line);
+  async ensembleTrajectories(pulse: Pulse, members: Member[], from: Vec3, maxPoints = 600, line?: Line): Promise<EnsemblePaths> {
+    return this.analysis.ensembleTrajectories(await sendable(pulse), members, from, maxPoints, line);
   }
 
   /** The held pulse's spectrum over a span of detunings, computed in the analysis worker. */
-  spectrum(pulse: Pulse, request: SpectrumRequest): Promise<Spectrum> {
-    return this.analysis.spectrum(pulse, request);
+  async spectrum(pulse: Pulse, request: SpectrumRequest): Promise<Spectrum> {
+    return this.analysis.spectrum(await sendable(pulse), request);
   }
 
   /** Reads a pulse file (rejects with a PulseFormatError named error when malformed). */
@@ -413,18 +428,18 @@ export class CoreClient {
   }
 
   /** Pulse file text of a pulse. */
-  writePulse(pulse: Pulse): Promise<string> {
-    return this.analysis.writePulse(pulse);
+  async writePulse(pulse: Pulse): Promise<string> {
+    return this.analysis.writePulse(await sendable(pulse));
   }
 
   /** The instrument waveform of a pulse as played, and its report on the judge's members (rejects with ExportError when refused). */
-  exportPreview(pulse: Pulse, settings: unknown, judge: ExportJudge | null): Promise<ExportPreview> {
-    return this.analysis.exportPreview(pulse, settings, judge);
+  async exportPreview(pulse: Pulse, settings: unknown, judge: ExportJudge | null): Promise<ExportPreview> {
+    return this.analysis.exportPreview(await sendable(pulse), settings, judge);
   }
 
   /** The exported waveform's file bytes (and description), exactly as the command line writes them. */
-  exportFile(pulse: Pulse, settings: unknown, options: ExportFileOptions): Promise<EncodedWaveform> {
-    return this.analysis.exportFile(pulse, settings, options);
+  async exportFile(pulse: Pulse, settings: unknown, options: ExportFileOptions): Promise<EncodedWaveform> {
+    return this.analysis.exportFile(await sendable(pulse), settings, options);
   }
 
   /** Releases the workers. */

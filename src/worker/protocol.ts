@@ -3,6 +3,7 @@
 // only through the client (client.ts).
 import type { QubitDrive } from '../core/line.ts';
 import type { DesignResult, Evaluation, GridAxis, LadderSystem, Line, Member, Problem, Progress, Pulse, Target, Vec3 } from '../core/types.ts';
+import type { Checkpoint } from '../core/best-start.ts';
 import type { CompareRow, NamedPulse } from '../core/compare.ts';
 import type { DurationTrial, ShortestResult } from '../core/shortest.ts';
 import type { Cuts } from '../core/robustness.ts';
@@ -152,14 +153,20 @@ export interface EnsemblePaths {
   sampleIndex: Int32Array;
 }
 
+/** Names the starts outpaced at a comparison of the starts (best-start.ts Referee.report). */
+export type StartJudge = (checkpoint: Checkpoint) => Promise<number[]>;
+
 /** The API the worker exposes; every method is one job. */
 export interface CoreService {
   /** Loads the core (once) and lists what it can build. */
   ready(): Promise<CoreInfo>;
   /** Validates a spec with the library's own rules. */
   checkSpec(spec: unknown): SpecCheck;
-  /** Designs with the given starts (a stage of a pruned design: api.ts DesignOptions.stage); progress is batched; `stop` ends it early keeping the best pulse. */
-  design(spec: unknown, startIndices: number[], onProgress?: ProgressSink, livePulseEveryMs?: number, stage?: 'probe' | 'finish'): Promise<DesignShare>;
+  /**
+   * Designs with the given starts (a stage of a pruned design: api.ts DesignOptions.stage); progress is batched; `stop` ends it early keeping the best pulse.
+   * `judge` compares the starts with those of the other workers (api.ts DesignOptions.judge).
+   */
+  design(spec: unknown, startIndices: number[], onProgress?: ProgressSink, livePulseEveryMs?: number, stage?: 'probe' | 'finish', judge?: StartJudge): Promise<DesignShare>;
   /** The shortest duration whose design meets the goal (the library's shortestDuration); `stop` ends it keeping what was found. */
   shortest(spec: unknown, request: ShortestRequest, onTrial?: TrialSink): Promise<ShortestOutcome>;
   /** Ends every running design of this worker within one iteration. */

@@ -164,7 +164,7 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
       }
     },
 
-    design(spec, startIndices, onProgress, livePulseEveryMs = 200, stage) {
+    design(spec, startIndices, onProgress, livePulseEveryMs = 200, stage, judge) {
       // Registered before queueing, so that a stop sent while the job waits still ends it.
       const controller = new AbortController();
       running.add(controller);
@@ -174,6 +174,7 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
           signal: controller.signal,
           startIndices,
           stage,
+          ...(judge ? { judge } : {}),
           progressPulseEveryMs: onProgress ? livePulseEveryMs : undefined,
           onProgress: (progress) => batcher.add(progress),
         });
@@ -184,6 +185,7 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
         running.delete(controller);
         // A callback proxied from the page holds a message port open until released.
         (onProgress as { [releaseProxy]?: () => void } | undefined)?.[releaseProxy]?.();
+        (judge as { [releaseProxy]?: () => void } | undefined)?.[releaseProxy]?.();
       });
     },
 

@@ -4,7 +4,8 @@
 import { afterAll, describe, expect, it } from 'vitest';
 import { parseProject, specHash, type Project } from '../../src/app/project.ts';
 import { DesignRun } from '../../src/app/state/design-run.svelte.ts';
-import { Session, type SessionStorage } from '../../src/app/state/session.svelte.ts';
+import { demoSpec } from '../../src/app/demo.ts';
+import { SAVED_HISTORY_CHARS, Session, type SessionStorage } from '../../src/app/state/session.svelte.ts';
 import { closePorts, inRealmClient } from '../worker/in-realm.ts';
 
 const client = inRealmClient();
@@ -72,6 +73,58 @@ describe('Session', () => {
     expect(second.pulses).toHaveLength(1);
     expect(Array.from(second.selected!.pulse.q)).toEqual([0, -1e6]);
     expect(second.selected!.pulse.q).toBeInstanceOf(Float64Array);
+  });
+
+  it('keeps the spec\'s undo history with the autosave, bounded in size', async () => {
+    const storage = memoryStorage();
+    const first = new Session(client, storage);
+    await first.start();
+    first.setField('rabiMax', 1.25e7);
+    // A whole spec replaced (as "Apply JSON" with every key does), then reloaded.
+    first.replaceSpec({ ...first.spec, duration: 4e-7, rabiMax: 3e7 });
+    first.undo();
+    await first.saveNow();
+    const second = new Session(client, storage);
+    await second.start();
+    expect(second.spec.rabiMax).toBe(1.25e7);
+    expect(second.canRedo).toBe(true);
+    second.redo();
+    expect(second.spec.rabiMax).toBe(3e7);
+    second.undo();
+    second.undo();
+    expect(second.spec.rabiMax).toBe(demoSpec().rabiMax);
+    expect(second.canUndo).toBe(false);
+
+    // 100 steps of a spec carrying a long list: only the newest that fit SAVED_HISTORY_CHARS are kept.
+    const big = { ...demoSpec(), notes: 'x'.repeat(SAVED_HISTORY_CHARS / 10) };
+    for (let k = 0; k < 30; k++) second.replaceSpec({ ...big, rabiMax: 1e7 + k });
+    await second.saveNow();
+    const kept = parseProject(storage.saved).specHistory!.past;
+    expect(JSON.stringify(kept).length).toBeLessThanOrEqual(SAVED_HISTORY_CHARS);
+    expect(kept.length).toBeGreaterThanOrEqual(8);
+    expect(kept.at(-1)!.rabiMax).toBe(1e7 + 28);
+    // A project file carries no history.
+    expect(second.toProject().specHistory).toBeUndefined();
+  });
+
+  it('keeps a pulse opened while the saved session is still being restored', async () => {
+    const storage = memoryStorage();
+    const first = new Session(client, storage);
+    await first.start();
+    await first.openPulseText('saved.json', JSON.stringify({ dt: 1e-9, i: [1e6], q: [0] }));
+    await first.saveNow();
+    // A store that answers late, as IndexedDB does on a busy page reading many chunks.
+    let release = () => undefined as void;
+    const gate = new Promise<void>((resolve) => (release = resolve));
+    const slow: SessionStorage = { load: async () => (await gate, storage.load()), save: (p) => storage.save(p) };
+    const second = new Session(client, slow);
+    const starting = second.start();
+    const opening = second.openPulseText('early.json', JSON.stringify({ dt: 1e-9, i: [2e6], q: [0] }));
+    await new Promise((resolve) => setTimeout(resolve, 50));
+    release();
+    await Promise.all([starting, opening]);
+    expect(second.pulses.map((p) => p.label)).toEqual(['saved.json', 'early.json']);
+    expect(second.selected?.label).toBe('early.json');
   });
 
   it('lets a link\'s spec win over the autosave', async () => {

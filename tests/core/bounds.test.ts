@@ -44,8 +44,8 @@ function discResidual(spec: unknown, pulse: Pulse, rabiMax: number): number {
 
 describe('box bound: projected L-BFGS with the generalised Cauchy point', () => {
   const rabiMax = 5e6;
-  // Run to the optimiser's own end (no stall rule): the checks are of the end point.
-  const spec = { ...demo, rabiMax, constraints: { amplitudeBound: 'box' }, optimizer: { starts: 6, seed: 2, maxIterations: 5000, stallIterations: 0 } };
+  // Run to the optimiser's own end (no stall rule, no outpacing): the checks are of the end point.
+  const spec = { ...demo, rabiMax, constraints: { amplitudeBound: 'box' }, optimizer: { starts: 6, seed: 2, maxIterations: 5000, stallIterations: 0, outpaceEvery: 0 } };
 
   it('ends where the projected gradient vanishes, and no feasible finite-difference step lowers the figure', async () => {
     const r = await design(spec, { startIndices: [3] });
@@ -96,7 +96,8 @@ describe('disc bound: no stall where tanh saturates', () => {
     // a sample-space optimality residual of 2.2e-4 and 4.5e-5.
     // 5000 iterations: where a start ends depends on the last bits of the arithmetic, and
     // start 2 needs about 4500 with the current backward sweep.
-    const spec = { ...demo, rabiMax: 5e6, optimizer: { starts: 12, seed: 3, maxIterations: 5000, stallIterations: 0 } };
+    // Each start to the optimiser's own end (no stall rule, no outpacing).
+    const spec = { ...demo, rabiMax: 5e6, optimizer: { starts: 12, seed: 3, maxIterations: 5000, stallIterations: 0, outpaceEvery: 0 } };
     const r = await design(spec, { startIndices: [1, 2] });
     for (const s of r.starts) {
       for (let k = 0; k < s.pulse.i.length; k++) expect(Math.hypot(s.pulse.i[k], s.pulse.q[k])).toBeLessThanOrEqual(5e6);

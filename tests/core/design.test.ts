@@ -101,9 +101,10 @@ describe('design', () => {
       optimizer: { starts: 1, seed: 1, maxIterations: 1000, targetInfidelity: 1e-6 } });
     expect(easy.best.stopReason).toBe('target-reached');
     expect(easy.evaluation.meanInfidelity).toBeLessThanOrEqual(1e-6);
-    // A problem far from converging in 50 ms (about 70 gradient evaluations), so the clock decides.
+    // A problem far from converging in 50 ms (about 70 gradient evaluations), so the clock
+    // decides; starts one after another (no outpacing), so the first one meets the limit.
     const heavy = { ...baseSpec, duration: 8e-7, segments: 400, ensemble: { detuning: { min: -1e6, max: 1e6, points: 11 }, amplitudeError: { min: -0.1, max: 0.1, points: 11 } } };
-    const timed = await design({ ...heavy, optimizer: { starts: 4, seed: 1, maxIterations: 1e5, timeLimit: 0.05 } });
+    const timed = await design({ ...heavy, optimizer: { starts: 4, seed: 1, maxIterations: 1e5, timeLimit: 0.05, outpaceEvery: 0 } });
     expect(timed.best.stopReason).toBe('time-limit');
     expect(timed.starts.length).toBe(1);
   });

@@ -33,7 +33,7 @@ const STATE_SPEC = {
   rabiMax: 1e5,
   ensemble: { members: [{ detuning: 0, amplitudeError: 0.02, weight: 1 }, { detuning: 1000 }] },
   constraints: { zeroEdges: true, smoothness: 0.1, amplitudeBound: 'box' },
-  optimizer: { starts: 2, seed: 9, maxIterations: 10, targetInfidelity: 1e-6, gradientTolerance: 1e-9, timeLimit: 5, memory: 7, stallIterations: 30, stallTolerance: 1e-3, pruneAfter: 5, keepStarts: 1 },
+  optimizer: { starts: 2, seed: 9, maxIterations: 10, targetInfidelity: 1e-6, gradientTolerance: 1e-9, timeLimit: 5, memory: 7, stallIterations: 30, stallTolerance: 1e-3, pruneAfter: 5, keepStarts: 1, outpaceEvery: 50, outpaceFactor: 3 },
 };
 const QUADRATURE_SPEC = {
   target: { gate: { axis: [0, 1, 0], angleDeg: 180 } },
@@ -121,7 +121,7 @@ describe('valid specs', () => {
     expect(p.constraints).toEqual({ zeroEdges: false, smoothness: 0, bound: 'disc' });
     expect(p.optimizer).toEqual({
       starts: 5, seed: 1, maxIterations: 2000, targetInfidelity: 1e-10, gradientTolerance: 1e-12, timeLimit: Infinity, memory: 12,
-      stallIterations: 100, stallTolerance: 1e-4, pruneAfter: 0, keepStarts: 2,
+      stallIterations: 200, stallTolerance: 1e-4, pruneAfter: 0, keepStarts: 2, outpaceEvery: 100, outpaceFactor: 2,
     });
   });
 
@@ -144,7 +144,7 @@ describe('valid specs', () => {
       { detuning: 1000, amplitudeError: 0, weight: 0.5 },
     ]);
     expect(p.constraints).toEqual({ zeroEdges: true, smoothness: 0.1, bound: 'box' });
-    expect(p.optimizer).toEqual({ starts: 2, seed: 9, maxIterations: 10, targetInfidelity: 1e-6, gradientTolerance: 1e-9, timeLimit: 5, memory: 7, stallIterations: 30, stallTolerance: 1e-3, pruneAfter: 5, keepStarts: 1 });
+    expect(p.optimizer).toEqual({ starts: 2, seed: 9, maxIterations: 10, targetInfidelity: 1e-6, gradientTolerance: 1e-9, timeLimit: 5, memory: 7, stallIterations: 30, stallTolerance: 1e-3, pruneAfter: 5, keepStarts: 1, outpaceEvery: 50, outpaceFactor: 3 });
   });
 
   it('samples a Gaussian at Gauss-Hermite nodes and a range at Gauss-Legendre nodes, weights multiplied', () => {

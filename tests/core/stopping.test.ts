@@ -14,7 +14,7 @@ const spec = {
   segments: 60,
   rabiMax: 1e7,
   ensemble: { detuning: { min: -1e6, max: 1e6, points: 3 }, amplitudeError: { min: -0.1, max: 0.1, points: 3 } },
-  optimizer: { starts: 4, seed: 3, maxIterations: 600, stallIterations: 0 },
+  optimizer: { starts: 4, seed: 3, maxIterations: 600, stallIterations: 0, outpaceEvery: 0 },
 };
 const withOptimizer = (extra: object) => ({ ...spec, optimizer: { ...spec.optimizer, ...extra } });
 

@@ -78,6 +78,27 @@ describe.skipIf(reason !== null)('what the app lets slip, in Chromium', () => {
     await screenshot(page, 'safety-01-undo');
   }, 120_000);
 
+  it('keeps the undo history across a reload: a mistaken "Apply JSON" is still one Ctrl+Z away', async () => {
+    const { page } = await fresh();
+    await page.locator('summary', { hasText: 'Spec JSON' }).click();
+    await page.locator('#f-spec-json').fill('{"duration": 4e-7, "rabiMax": 3e7}');
+    await page.getByRole('button', { name: 'Apply JSON' }).click();
+    await page.waitForFunction(() => (document.querySelector('#f-duration') as HTMLInputElement).value === '400 ns');
+    // The autosave follows the edit within AUTOSAVE_DELAY_MS; reloading then keeps the history.
+    await page.waitForTimeout(1500);
+    await page.reload();
+    await page.getByTestId('run').waitFor();
+    await page.waitForFunction(() => (document.querySelector('#f-duration') as HTMLInputElement).value === '400 ns');
+    await page.waitForFunction(() => !(document.querySelector('[data-testid=undo]') as HTMLButtonElement).disabled);
+    await page.locator('h1').click();
+    await page.keyboard.press('Control+z');
+    await page.waitForFunction(() => (document.querySelector('#f-duration') as HTMLInputElement).value === '200 ns');
+    expect(await value(page, '#f-rabi')).toBe('10 MHz');
+    await page.keyboard.press('Control+Shift+z');
+    await page.waitForFunction(() => (document.querySelector('#f-rabi') as HTMLInputElement).value === '30 MHz');
+    await screenshot(page, 'safety-01b-undo-after-reload');
+  }, 120_000);
+
   it('refuses what the core cannot compute, in the field\'s own words, and warns on what is odd', async () => {
     const { page } = await fresh();
     // Peak Rabi 1e30 Hz: 2e21 turns within one 2 ns sample (the core's phase is lost beyond 1e6).

@@ -4,9 +4,11 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { design as libraryDesign, robustnessMap } from '../../src/core/api.ts';
 import type { Pulse, Target } from '../../src/core/types.ts';
 import { demoSpec } from '../../src/app/demo.ts';
-import { bandRows, coarseAxis, designWorkerCount, shareStarts, type MapUpdate } from '../../src/worker/client.ts';
+import { evaluateJudged } from '../../src/core/compare.ts';
+import { bandRows, coarseAxis, CoreClient, designWorkerCount, shareStarts, type MapUpdate } from '../../src/worker/client.ts';
+import { COPY_SLICE, sendable } from '../../src/worker/transfer.ts';
 import type { ProgressBatch } from '../../src/worker/protocol.ts';
-import { closePorts, inRealmClient } from './in-realm.ts';
+import { closePorts, inRealmClient, serviceEndpoint } from './in-realm.ts';
 
 const client = inRealmClient();
 afterAll(() => {
@@ -55,6 +57,18 @@ describe('CoreClient over MessageChannels', () => {
     for (const start of outcome.starts) expect(start.objective).toBeGreaterThanOrEqual(outcome.best.objective);
   });
 
+  it('compares the starts of both designers with each other: the starts outpaced and the pulse of one library call', async () => {
+    const spec = demoSpec();
+    spec.optimizer = { starts: 5, seed: 1, maxIterations: 800 };
+    const outcome = await client.design(spec, 5);
+    const direct = await libraryDesign(spec);
+    const shape = (starts: typeof direct.starts) => starts.map((s) => [s.start, s.stopReason, s.iterations, s.evaluations, s.objective]);
+    expect(direct.starts.some((s) => s.stopReason === 'outpaced')).toBe(true);
+    expect(shape(outcome.starts)).toEqual(shape(direct.starts));
+    expect(Array.from(outcome.pulse.i)).toEqual(Array.from(direct.pulse.i));
+    expect(Array.from(outcome.pulse.q)).toEqual(Array.from(direct.pulse.q));
+  }, 60_000);
+
   it('stops every worker and returns the best pulse so far', async () => {
     const spec = demoSpec();
     spec.segments = 1000;
@@ -89,5 +103,51 @@ describe('CoreClient over MessageChannels', () => {
     expect(fine.some(Number.isNaN)).toBe(false);
     // Bands place their rows by their own end points: equal to rounding of the axis values.
     for (let k = 0; k < fine.length; k++) expect(Math.abs(fine[k] - direct.infidelity[k])).toBeLessThanOrEqual(1e-13 + 1e-9 * direct.infidelity[k]);
+  });
+});
+
+describe('sending samples to a worker', () => {
+  it('transfers a copy of the samples (made in slices) instead of cloning them, and keeps the page\'s arrays whole', async () => {
+    const port = serviceEndpoint();
+    /** Byte lengths of the buffers each message transferred, taken as it was sent (transferred buffers are detached after). */
+    const transfers: number[][] = [];
+    const post = port.postMessage.bind(port) as (message: unknown, transfer?: Transferable[]) => void;
+    port.postMessage = ((message: unknown, transfer?: Transferable[]) => {
+      transfers.push((transfer ?? []).flatMap((t) => (t instanceof ArrayBuffer ? [t.byteLength] : [])));
+      post(message, transfer);
+    }) as typeof port.postMessage;
+    const own = new CoreClient(port, []);
+    const n = 100_000;
+    const spec = { ...demoSpec(), segments: n, duration: n * 1e-9 };
+    const pulse: Pulse = {
+      dt: 1e-9,
+      i: new Float64Array(n).map((_, k) => 5e6 * Math.sin(k / 1e4)),
+      q: new Float64Array(n).map((_, k) => 5e6 * Math.cos(k / 3e4)),
+      metadata: {},
+    };
+    const before = [pulse.i[n - 1], pulse.q[0]];
+    const evaluation = await own.evaluate(spec, pulse);
+    // The call's message carries the two sample buffers in its transfer list.
+    expect(transfers.flat()).toEqual([8 * n, 8 * n]);
+    // The page's own arrays are neither detached nor changed.
+    expect(pulse.i.length).toBe(n);
+    expect([pulse.i[n - 1], pulse.q[0]]).toEqual(before);
+    // Same figures as the library called directly (the copy is exact).
+    expect(evaluation.meanInfidelity).toBe(evaluateJudged(spec, pulse).meanInfidelity);
+    own.dispose();
+  }, 60_000);
+
+  it('copies arrays longer than a slice exactly, and lists each copy\'s buffer once', async () => {
+    const n = 2 * COPY_SLICE + 7;
+    const i = new Float64Array(n).map((_, k) => k * 0.5 - 3);
+    const value = { pulse: { dt: 1e-9, i, q: i, metadata: { name: 'x' } } };
+    const copy = await sendable(value);
+    expect(copy.pulse.i).not.toBe(i);
+    expect(copy.pulse.i.buffer).not.toBe(i.buffer);
+    expect(copy.pulse.i.length).toBe(n);
+    expect(copy.pulse.i.every((x, k) => x === i[k])).toBe(true);
+    // One array referred to twice is copied once (as a clone would keep it shared).
+    expect(copy.pulse.q).toBe(copy.pulse.i);
+    expect(copy.pulse.metadata).toEqual({ name: 'x' });
   });
 });

@@ -36,6 +36,7 @@ const STOP_WORDS: Record<StopReason, string> = {
   'line-search-failed': 'no further descent (line search)',
   stalled: 'progress stalled',
   pruned: 'set aside after the first iterations',
+  outpaced: 'could not overtake the best start',
 };
 
 /** How a failed run's notice begins (a later successful run clears it). */

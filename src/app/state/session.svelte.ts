@@ -17,6 +17,7 @@ import {
   specFromHash,
   specHash,
   type Project,
+  type SpecHistory,
   type StoredPulse,
   type ViewSettings,
 } from '../project.ts';
@@ -68,6 +69,9 @@ export const HISTORY_LENGTH = 100;
 /** Edits of one field closer together than this are one step of the history (typing "10 MHz" is one edit). */
 export const HISTORY_MERGE_MS = 1000;
 
+/** Most characters of spec JSON the autosave keeps of the undo history (the newest steps first). */
+export const SAVED_HISTORY_CHARS = 500_000;
+
 /** Milliseconds between the last edit and the autosave. */
 export const AUTOSAVE_DELAY_MS = 400;
 
@@ -75,6 +79,17 @@ let nextId = 1;
 /** A fresh pulse id, unique in this page. */
 export function newPulseId(prefix: string): string {
   return `${prefix}-${Date.now().toString(36)}-${(nextId++).toString(36)}`;
+}
+
+/** Characters of a spec's JSON, measured once per spec (a spec of the history never changes). */
+const specSizes = new WeakMap<SpecJson, number>();
+function specChars(spec: SpecJson): number {
+  let size = specSizes.get(spec);
+  if (size === undefined) {
+    size = JSON.stringify(spec).length;
+    specSizes.set(spec, size);
+  }
+  return size;
 }
 
 // The store keeps typed arrays (copied in one piece); a file needs plain arrays for its JSON.
@@ -215,18 +230,38 @@ export class Session {
 
   /** Loads the core, then restores the session: the link's spec first, else the autosave, else the demo. */
   async start(hash = ''): Promise<void> {
+    let restored = () => undefined as void;
+    this.restoring = new Promise<void>((resolve) => (restored = resolve));
     try {
-      this.composites = (await this.client.ready()).composites;
-    } catch (error) {
-      this.notice = { kind: 'error', text: `The core could not be loaded (${(error as Error).message}); reload the page, or rebuild with "npm start".` };
-      return;
+      try {
+        this.composites = (await this.client.ready()).composites;
+      } catch (error) {
+        this.notice = { kind: 'error', text: `The core could not be loaded (${(error as Error).message}); reload the page, or rebuild with "npm start".` };
+        return;
+      }
+      this.ready = true;
+      await this.restoreSaved(hash);
+    } finally {
+      restored();
     }
-    this.ready = true;
+    await this.validate();
+  }
+
+  /** Settles once the saved session and the link are applied: a pulse opened meanwhile waits for it, or the restore would drop it. */
+  private restoring: Promise<void> = Promise.resolve();
+
+  private async restoreSaved(hash: string): Promise<void> {
     if (this.storage) {
       try {
         const saved = await this.storage.load();
         if (saved !== undefined && saved !== null) {
-          await this.apply(parseProject(saved));
+          const project = parseProject(saved);
+          await this.apply(project);
+          // Ctrl+Z goes on where it was before the reload.
+          if (project.specHistory) {
+            this.past = project.specHistory.past.slice(-HISTORY_LENGTH);
+            this.future = project.specHistory.future.slice(-HISTORY_LENGTH);
+          }
         }
       } catch (error) {
         this.notice = { kind: 'error', text: `The saved session could not be restored (${(error as Error).message}); starting from the demo.` };
@@ -244,7 +279,6 @@ export class Session {
     } catch (error) {
       this.notice = { kind: 'error', text: `${(error as Error).message}; the link was ignored.` };
     }
-    await this.validate();
   }
 
   /** Replaces one spec value from the form (one undo step per field edit, keystrokes merged). */
@@ -446,6 +480,7 @@ export class Session {
       this.notice = { kind: 'error', text: `${fileName} was not opened: ${(error as Error).message}` };
       return false;
     }
+    await this.restoring;
     const entry: PulseEntry = { id: newPulseId('file'), label: fileName, pulse };
     if (evaluation) entry.evaluation = { meanInfidelity: evaluation.meanInfidelity, worstInfidelity: evaluation.worstInfidelity };
     this.addPulse(entry);
@@ -453,16 +488,36 @@ export class Session {
     return true;
   }
 
-  /** The session as a project; `typed` keeps the samples as typed arrays (for the browser's store, not for a file). */
-  toProject(typed = false): Project {
+  /**
+   * The session as a project; `forStore` keeps the samples as typed arrays and the spec's undo
+   * history (bounded by SAVED_HISTORY_CHARS): for the browser's store, not for a file.
+   */
+  toProject(forStore = false): Project {
     return {
       format: PROJECT_FORMAT,
       version: PROJECT_VERSION,
       savedAt: isoTimestamp(Date.now()),
       spec: $state.snapshot(this.spec) as Record<string, unknown>,
-      pulses: this.pulses.map((p) => storedPulse(p, typed)),
+      pulses: this.pulses.map((p) => storedPulse(p, forStore)),
       settings: { ...$state.snapshot(this.settings), view: this.view, selectedPulse: this.selectedId } as ViewSettings,
+      ...(forStore ? { specHistory: this.savedHistory() } : {}),
     };
+  }
+
+  /** The newest undo and redo steps whose JSON fits in SAVED_HISTORY_CHARS, the undo steps first. */
+  private savedHistory(): SpecHistory {
+    let budget = SAVED_HISTORY_CHARS;
+    const newest = (list: SpecJson[]): SpecJson[] => {
+      const out: SpecJson[] = [];
+      for (let k = list.length - 1; k >= 0; k--) {
+        budget -= specChars(list[k]);
+        if (budget < 0) break;
+        out.unshift(list[k]);
+      }
+      return out;
+    };
+    const past = newest(this.past);
+    return { past, future: newest(this.future) };
   }
 
   /** The project file's text. */
@@ -512,7 +567,8 @@ export class Session {
     this.pulses = project.pulses.map((p) => ({
       id: p.id,
       label: p.label,
-      pulse: { dt: p.dt, i: Float64Array.from(p.i), q: Float64Array.from(p.q), metadata: p.metadata },
+      // Typed arrays from the browser's store are kept as they are (copying them element by element held the page).
+      pulse: { dt: p.dt, i: p.i instanceof Float64Array ? p.i : Float64Array.from(p.i), q: p.q instanceof Float64Array ? p.q : Float64Array.from(p.q), metadata: p.metadata },
       ...(p.evaluation ? { evaluation: p.evaluation } : {}),
       ...(p.history ? { history: p.history } : {}),
     }));
