@@ -11,7 +11,7 @@
 // their Gram matrices up to date, so that W_Z'W_Z costs O(min(free, held) m^2) per
 // iteration, not O(n m^2).
 
-import { Lbfgs, at, dot, pairAt, forgetPairs, lineSearch, acceptStep, STEP_OK, STEP_GRADIENT_TOLERANCE, STEP_LINE_SEARCH_FAILED } from './lbfgs';
+import { Lbfgs, at, dot, axpy, pairAt, forgetPairs, lineSearch, acceptStep, STEP_OK, STEP_GRADIENT_TOLERANCE, STEP_LINE_SEARCH_FAILED } from './lbfgs';
 
 const LOWER: f64 = -1.0;
 const UPPER: f64 = 1.0;
@@ -43,6 +43,14 @@ export function lbfgsbBytes(nVar: i32, mem: i32): usize {
 export function lbfgsbPlace(o: Lbfgs, ptr: usize): void { o.b = ptr; }
 
 @inline function el(ptr: usize, stride: i32, i: i32, j: i32): usize { return ptr + (<usize>(i * stride + j) << 3); }
+
+/** y += a x over n values, two per v128 (the bits of lbfgs.ts axpy, inlined for the short rows here). */
+@inline function addScaled(y: usize, a: f64, x: usize, n: i32): void {
+  const va = f64x2.splat(a);
+  let k = 0;
+  for (; k + 2 <= n; k += 2) v128.store(at(y, k), f64x2.add(v128.load(at(y, k)), f64x2.mul(va, v128.load(at(x, k)))));
+  for (; k < n; k++) store<f64>(at(y, k), load<f64>(at(y, k)) + a * load<f64>(at(x, k)));
+}
 
 /** Keep the Gram matrices S'S, S'Y, Y'Y (by ring slot) up to date after a new pair in `slot`. */
 export function lbfgsbPairAdded(o: Lbfgs, slot: i32): void {
@@ -90,7 +98,8 @@ function factor(a: usize, stride: i32, k: i32, piv: usize): bool {
       const f = load<f64>(el(a, stride, r, col)) / d;
       store<f64>(el(a, stride, r, col), f);
       if (f == 0.0) continue;
-      for (let j = col + 1; j < k; j++) store<f64>(el(a, stride, r, j), load<f64>(el(a, stride, r, j)) - f * load<f64>(el(a, stride, col, j)));
+      // row r -= f row col, as y + (-f) x: the same bits as y - f x, two values per v128.
+      addScaled(el(a, stride, r, col + 1), -f, el(a, stride, col, col + 1), k - col - 1);
     }
   }
   return true;
@@ -106,14 +115,11 @@ function solveFactored(a: usize, stride: i32, k: i32, piv: usize, b: usize): voi
       store<f64>(at(b, pr), t);
     }
   }
-  for (let i = 1; i < k; i++) {
-    let v = load<f64>(at(b, i));
-    for (let j = 0; j < i; j++) v -= load<f64>(el(a, stride, i, j)) * load<f64>(at(b, j));
-    store<f64>(at(b, i), v);
-  }
+  // Each row's sum is a dot product of contiguous values (lbfgs.ts dot: two per v128, the
+  // even and odd terms summed apart, an order fixed by the code).
+  for (let i = 1; i < k; i++) store<f64>(at(b, i), load<f64>(at(b, i)) - dot(el(a, stride, i, 0), b, i));
   for (let i = k - 1; i >= 0; i--) {
-    let v = load<f64>(at(b, i));
-    for (let j = i + 1; j < k; j++) v -= load<f64>(el(a, stride, i, j)) * load<f64>(at(b, j));
+    const v = load<f64>(at(b, i)) - dot(el(a, stride, i, i + 1), at(b, i + 1), k - 1 - i);
     store<f64>(at(b, i), v / load<f64>(el(a, stride, i, i)));
   }
 }
@@ -140,7 +146,7 @@ function formMiddle(o: Lbfgs, theta: f64): bool {
       store<f64>(el(kk, st, k + a, k + b), theta * load<f64>(el(gramSS(o), mem, sa, sb)));
     }
   }
-  for (let a = 0; a < 2 * k; a++) for (let b = 0; b < 2 * k; b++) store<f64>(el(lu, st, a, b), load<f64>(el(kk, st, a, b)));
+  for (let a = 0; a < 2 * k; a++) memory.copy(el(lu, st, a, 0), el(kk, st, a, 0), <usize>(2 * k) << 3);
   return factor(lu, st, 2 * k, pivots(o));
 }
 
@@ -149,6 +155,14 @@ function middleTimes(o: Lbfgs, v: usize, out: usize): void {
   const k2 = 2 * o.stored;
   if (out != v) memory.copy(out, v, <usize>k2 << 3);
   solveFactored(scratch(o), 2 * o.mem, k2, pivots(o), out);
+}
+
+/** out = W a (n values) for a of 2k values: the columns y_c and theta s_c, summed in order. */
+function columnsTimes(o: Lbfgs, theta: f64, a: usize, out: usize): void {
+  const k = o.stored, n = o.nVar, cols = columns(o);
+  memory.fill(out, 0, <usize>n << 3);
+  for (let c = 0; c < k; c++) axpy(out, out, load<f64>(at(a, c)), load<usize>(cols + (<usize>c << 2)), n);
+  for (let c = 0; c < k; c++) axpy(out, out, theta * load<f64>(at(a, k + c)), load<usize>(cols + (<usize>(k + c) << 2)), n);
 }
 
 /** Row i of W = [Y, theta S] into out (2k), from the column pointers of formMiddle. */
@@ -180,8 +194,17 @@ function siftDown(h: usize, t: usize, size: i32, start: i32): void {
 
 /** Infinity norm of the projected gradient, P(x - g) - x, on the box [-1, 1]. */
 export function projectedGradientNorm(o: Lbfgs): f64 {
-  let s: f64 = 0.0;
-  for (let i = 0; i < o.nVar; i++) {
+  const n = o.nVar;
+  const up = f64x2.splat(UPPER), low = f64x2.splat(LOWER), zero = f64x2.splat(0.0);
+  let acc = zero;
+  let i = 0;
+  for (; i + 2 <= n; i += 2) {
+    const x = v128.load(at(o.x, i)), g = v128.load(at(o.g, i));
+    const pg = v128.bitselect(f64x2.max(f64x2.sub(x, up), g), f64x2.min(f64x2.sub(x, low), g), f64x2.lt(g, zero));
+    acc = f64x2.max(acc, f64x2.abs(pg));
+  }
+  let s = Math.max(f64x2.extract_lane(acc, 0), f64x2.extract_lane(acc, 1));
+  for (; i < n; i++) {
     const x = load<f64>(at(o.x, i)), g = load<f64>(at(o.g, i));
     const pg = g < 0.0 ? Math.max(x - UPPER, g) : Math.min(x - LOWER, g);
     s = Math.max(s, Math.abs(pg));
@@ -237,14 +260,14 @@ function cauchyPoint(o: Lbfgs, theta: f64): void {
     const xcb = db > 0.0 ? UPPER : LOWER;
     const zb = xcb - load<f64>(at(x, b));
     store<f64>(at(xc, b), xcb);
-    for (let a = 0; a < k2; a++) store<f64>(at(c, a), load<f64>(at(c, a)) + dtSeg * load<f64>(at(p, a)));
+    addScaled(c, dtSeg, p, k2);
     wRow(o, b, theta, wb);
     middleTimes(o, wb, mv);
     const wmc = dot(c, mv, k2), wmp = dot(p, mv, k2), wmw = dot(wb, mv, k2);
     fp = fp + dtSeg * fpp + gb * gb + theta * gb * zb - gb * wmc;
     fpp = fpp - theta * gb * gb - 2.0 * gb * wmp - gb * gb * wmw;
     fpp = Math.max(fpp, 2.2e-16 * fpp0);
-    for (let a = 0; a < k2; a++) store<f64>(at(p, a), load<f64>(at(p, a)) + gb * load<f64>(at(wb, a)));
+    addScaled(p, gb, wb, k2);
     store<f64>(at(d, b), 0.0);
     dtMin = -fp / fpp;
     tOld = tb;
@@ -256,7 +279,7 @@ function cauchyPoint(o: Lbfgs, theta: f64): void {
     const di = load<f64>(at(d, i));
     if (di != 0.0) store<f64>(at(xc, i), Math.max(LOWER, Math.min(UPPER, load<f64>(at(x, i)) + tOld * di)));
   }
-  for (let a = 0; a < k2; a++) store<f64>(at(c, a), load<f64>(at(c, a)) + dtMin * load<f64>(at(p, a)));
+  addScaled(c, dtMin, p, k2);
 }
 
 /**
@@ -266,22 +289,27 @@ function cauchyPoint(o: Lbfgs, theta: f64): void {
 function subspaceStep(o: Lbfgs, theta: f64): bool {
   const n = o.nVar, k = o.stored, k2 = 2 * k, mem = o.mem, st = 2 * mem;
   const x = o.x, g = o.g, xc = cauchy(o), r = o.d;
-  const c = vec(o, 1), wb = vec(o, 2), mc = vec(o, 3), v = vec(o, 4), nm = scratch2(o);
-  if (k > 0) middleTimes(o, c, mc);
+  const c = vec(o, 1), mc = vec(o, 3), v = vec(o, 4), nm = scratch2(o);
+  // W times a vector of 2k (u, n values) is a sum of W's columns, and W' times one of n a
+  // dot product per column: both run along the pairs' contiguous values, two per v128.
+  const u = breaks(o); // the breakpoints are spent once the Cauchy point is found
+  if (k > 0) {
+    middleTimes(o, c, mc);
+    columnsTimes(o, theta, mc, u);
+  }
   // r = Z'(g + theta (xc - x) - W M c) on free variables (0 on the others); v = W_Z' r.
-  for (let a = 0; a < k2; a++) store<f64>(at(v, a), 0.0);
   for (let i = 0; i < n; i++) {
     const xci = load<f64>(at(xc, i));
     if (xci <= LOWER || xci >= UPPER) { store<f64>(at(r, i), 0.0); continue; }
     let ri = load<f64>(at(g, i)) + theta * (xci - load<f64>(at(x, i)));
-    if (k > 0) {
-      wRow(o, i, theta, wb);
-      ri -= dot(wb, mc, k2);
-      for (let a = 0; a < k2; a++) store<f64>(at(v, a), load<f64>(at(v, a)) + load<f64>(at(wb, a)) * ri);
-    }
+    if (k > 0) ri -= load<f64>(at(u, i));
     store<f64>(at(r, i), ri);
   }
   if (k > 0) {
+    for (let a = 0; a < k; a++) {
+      store<f64>(at(v, a), dot(load<usize>(columns(o) + (<usize>a << 2)), r, n));
+      store<f64>(at(v, k + a), theta * dot(load<usize>(columns(o) + (<usize>(k + a) << 2)), r, n));
+    }
     // The paper's v = N^-1 M W_Z'r with N = I - (1/theta) M W_Z'W_Z is, multiplied
     // through by K = M^-1, the solution of (K - (1/theta) W_Z'W_Z) v = W_Z'r; W_Z'W_Z is
     // W'W from the Gram matrices less the rows of the variables held at a bound, or the
@@ -312,27 +340,29 @@ function subspaceStep(o: Lbfgs, theta: f64): bool {
       if (free != fromFree) continue;
       wRow(o, i, theta, wz);
       for (let a = 0; a < k2; a++) {
-        const wa = sign * load<f64>(at(wz, a));
-        for (let b = 0; b < k2; b++) store<f64>(el(nm, st, a, b), load<f64>(el(nm, st, a, b)) + wa * load<f64>(at(wz, b)));
+        addScaled(el(nm, st, a, 0), sign * load<f64>(at(wz, a)), wz, k2);
       }
     }
+    const vt = f64x2.splat(theta);
     for (let a = 0; a < k2; a++) {
-      for (let b = 0; b < k2; b++) store<f64>(el(nm, st, a, b), load<f64>(el(kk, st, a, b)) - load<f64>(el(nm, st, a, b)) / theta);
+      // k2 is even: whole v128s.
+      for (let b = 0; b < k2; b += 2) {
+        const e = el(nm, st, a, b);
+        v128.store(e, f64x2.sub(v128.load(el(kk, st, a, b)), f64x2.div(v128.load(e), vt)));
+      }
     }
     // (M c is no longer needed: its vector holds the pivots.)
     if (!factor(nm, st, k2, vec(o, 3))) return false;
     solveFactored(nm, st, k2, vec(o, 3), v);
   }
   // du = -(1/theta) r - (1/theta^2) Z'W v on free variables; cut to stay in the box.
+  if (k > 0) columnsTimes(o, theta, v, u);
   let alphaStar: f64 = 1.0;
   for (let i = 0; i < n; i++) {
     const xci = load<f64>(at(xc, i));
     if (xci <= LOWER || xci >= UPPER) continue;
     let du = -load<f64>(at(r, i)) / theta;
-    if (k > 0) {
-      wRow(o, i, theta, wb);
-      du -= dot(wb, v, k2) / (theta * theta);
-    }
+    if (k > 0) du -= load<f64>(at(u, i)) / (theta * theta);
     store<f64>(at(r, i), du);
     if (du > 0.0) alphaStar = Math.min(alphaStar, (UPPER - xci) / du);
     else if (du < 0.0) alphaStar = Math.min(alphaStar, (LOWER - xci) / du);
@@ -397,7 +427,11 @@ export function lbfgsbStep(p: usize, o: Lbfgs): i32 {
 
 /** Rounding in x + alpha d may leave the box by an ulp: hold the accepted point inside. */
 function clampTrial(o: Lbfgs): void {
-  for (let i = 0; i < o.nVar; i++) {
+  const n = o.nVar;
+  const up = f64x2.splat(UPPER), low = f64x2.splat(LOWER);
+  let i = 0;
+  for (; i + 2 <= n; i += 2) v128.store(at(o.xt, i), f64x2.max(low, f64x2.min(up, v128.load(at(o.xt, i)))));
+  for (; i < n; i++) {
     const v = load<f64>(at(o.xt, i));
     store<f64>(at(o.xt, i), Math.max(LOWER, Math.min(UPPER, v)));
   }

@@ -18,6 +18,79 @@ export const MODE_STATE: i32 = 1;
 
 @inline function ld(ptr: usize, j: i32): v128 { return v128.load(ptr + (<usize>j << 3)); }
 
+// Snippets (bin/unroll.js): text shared by the sweeps below, inserted where a line says
+// `//#insert name` and then expanded with the sweep that holds it.
+
+// cos a, S and T of the segment from full = a^2 (halved and recovered above 1).
+//#snippet segmentSeries
+    let x$ = full$;
+    if (halv > 0) x$ = vmul(x$, reduce);
+    let co$ = seriesCos(x$, terms);
+    let si$ = seriesSinc(x$, terms);
+    let tt$: v128;
+    if (halv == 0) {
+      tt$ = seriesT(x$, terms);
+    } else {
+      for (let step = 0; step < halv; step++) {
+        const nc$ = vsub(one, vmul(vmul(two, x$), vmul(si$, si$)));
+        si$ = vmul(si$, co$); co$ = nc$; x$ = vmul(x$, four);
+      }
+      // T = (cos a - S)/a^2; its rounding error is at most eps/a^2 and it only
+      // enters multiplied by components of b (of size a^2). a = 0 gives -1/3.
+      const pos$ = f64x2.gt(full$, zero);
+      tt$ = v128.bitselect(f64x2.div(vsub(co$, si$), v128.bitselect(full$, one, pos$)), third, pos$);
+    }
+//#end
+
+// One segment of the backward sweep for a gate: its gradient (gI, gQ) from m, then m
+// rotated by U_k^-1 (qubit.ts), from cos a, S, T (co, si, tt) and b (bx, by, bz).
+//#snippet backwardGate
+      const ss$ = vmul(si$, si$);
+      const csn$ = vmul(co$, si$);
+      const ex$ = vsub(vmul(my$, bz$), vmul(mz$, by$));
+      const ey$ = vsub(vmul(mz$, bx$), vmul(mx$, bz$));
+      const ez$ = vsub(vmul(mx$, by$), vmul(my$, bx$));
+      const bm$ = vmad(bx$, mx$, vmad(by$, my$, vmul(bz$, mz$)));
+      const kbm$ = vmul(vmad(co$, tt$, ss$), bm$);
+      const gI$ = vmad(bx$, kbm$, vmad(csn$, mx$, vmul(ss$, ex$)));
+      const gQ$ = vmad(by$, kbm$, vmad(csn$, my$, vmul(ss$, ey$)));
+      const c2a$ = vsub(vmul(vadd(co$, co$), co$), one);
+      const csn2$ = vadd(csn$, csn$);
+      const sbm2$ = vmul(ss$, vadd(bm$, bm$));
+      mx$ = vmad(c2a$, mx$, vmad(csn2$, ex$, vmul(sbm2$, bx$)));
+      my$ = vmad(c2a$, my$, vmad(csn2$, ey$, vmul(sbm2$, by$)));
+      mz$ = vmad(c2a$, mz$, vmad(csn2$, ez$, vmul(sbm2$, bz$)));
+//#end
+
+// The same for a state: m and m' (p) together.
+//#snippet backwardState
+    const ss$ = vmul(si$, si$);
+    const csn$ = vmul(co$, si$);
+    const kap$ = vmad(co$, tt$, ss$);
+    const c2a$ = vsub(vmul(vadd(co$, co$), co$), one);
+    const csn2$ = vadd(csn$, csn$);
+    const ex$ = vsub(vmul(my$, bz$), vmul(mz$, by$));
+    const ey$ = vsub(vmul(mz$, bx$), vmul(mx$, bz$));
+    const ez$ = vsub(vmul(mx$, by$), vmul(my$, bx$));
+    const bm$ = vmad(bx$, mx$, vmad(by$, my$, vmul(bz$, mz$)));
+    const kbm$ = vmul(kap$, bm$);
+    const fx$ = vsub(vmul(py$, bz$), vmul(pz$, by$));
+    const fy$ = vsub(vmul(pz$, bx$), vmul(px$, bz$));
+    const fz$ = vsub(vmul(px$, by$), vmul(py$, bx$));
+    const bp$ = vmad(bx$, px$, vmad(by$, py$, vmul(bz$, pz$)));
+    const kbp$ = vmul(kap$, bp$);
+    const gI$ = vadd(vmad(bx$, kbm$, vmad(csn$, mx$, vmul(ss$, ex$))), vmad(bx$, kbp$, vmad(csn$, px$, vmul(ss$, fx$))));
+    const gQ$ = vadd(vmad(by$, kbm$, vmad(csn$, my$, vmul(ss$, ey$))), vmad(by$, kbp$, vmad(csn$, py$, vmul(ss$, fy$))));
+    const sbm2$ = vmul(ss$, vadd(bm$, bm$));
+    mx$ = vmad(c2a$, mx$, vmad(csn2$, ex$, vmul(sbm2$, bx$)));
+    my$ = vmad(c2a$, my$, vmad(csn2$, ey$, vmul(sbm2$, by$)));
+    mz$ = vmad(c2a$, mz$, vmad(csn2$, ez$, vmul(sbm2$, bz$)));
+    const sbp2$ = vmul(ss$, vadd(bp$, bp$));
+    px$ = vmad(c2a$, px$, vmad(csn2$, fx$, vmul(sbp2$, bx$)));
+    py$ = vmad(c2a$, py$, vmad(csn2$, fy$, vmul(sbp2$, by$)));
+    pz$ = vmad(c2a$, pz$, vmad(csn2$, fz$, vmul(sbp2$, bz$)));
+//#end
+
 //#unroll figureQuad:2 figurePair:1
 /**
  * Infidelity of the members j.. of one group (written to out) added, weighted, to `mean`
@@ -123,23 +196,7 @@ export function __NAME__(
     const qS = load<f64>(qPtr + (<usize>k << 3));
     const vni = vsplat(-iS), vq = vsplat(qS);
     const full$ = vmad(s2$, vsplat(c2 * (iS * iS + qS * qS)), bz2$);
-    let x$ = full$;
-    if (halv > 0) x$ = vmul(x$, reduce);
-    let co$ = seriesCos(x$, terms);
-    let si$ = seriesSinc(x$, terms);
-    let tt$: v128;
-    if (halv == 0) {
-      tt$ = seriesT(x$, terms);
-    } else {
-      for (let h = 0; h < halv; h++) {
-        const nc$ = vsub(one, vmul(vmul(two, x$), vmul(si$, si$)));
-        si$ = vmul(si$, co$); co$ = nc$; x$ = vmul(x$, four);
-      }
-      // T = (cos a - S)/a^2; its rounding error is at most eps/a^2 and it only
-      // enters multiplied by components of b (of size a^2). a = 0 gives -1/3.
-      const pos$ = f64x2.gt(full$, zero);
-      tt$ = v128.bitselect(f64x2.div(vsub(co$, si$), v128.bitselect(full$, one, pos$)), third, pos$);
-    }
+    //#insert segmentSeries
     const slot$ = work$ + <usize>k * 48;
     v128.store(slot$, co$); v128.store(slot$, si$, 16); v128.store(slot$, tt$, 32);
     const sig$ = vmul(si$, cs$);
@@ -185,21 +242,7 @@ export function __NAME__(
       const vi = vsplat(iS), vq = vsplat(qS);
       const bx$ = vmul(cs$, vi);
       const by$ = vmul(cs$, vq);
-      const ss$ = vmul(si$, si$);
-      const csn$ = vmul(co$, si$);
-      const ex$ = vsub(vmul(my$, bz$), vmul(mz$, by$));
-      const ey$ = vsub(vmul(mz$, bx$), vmul(mx$, bz$));
-      const ez$ = vsub(vmul(mx$, by$), vmul(my$, bx$));
-      const bm$ = vmad(bx$, mx$, vmad(by$, my$, vmul(bz$, mz$)));
-      const kbm$ = vmul(vmad(co$, tt$, ss$), bm$);
-      const gI$ = vmad(bx$, kbm$, vmad(csn$, mx$, vmul(ss$, ex$)));
-      const gQ$ = vmad(by$, kbm$, vmad(csn$, my$, vmul(ss$, ey$)));
-      const c2a$ = vsub(vmul(vadd(co$, co$), co$), one);
-      const csn2$ = vadd(csn$, csn$);
-      const sbm2$ = vmul(ss$, vadd(bm$, bm$));
-      mx$ = vmad(c2a$, mx$, vmad(csn2$, ex$, vmul(sbm2$, bx$)));
-      my$ = vmad(c2a$, my$, vmad(csn2$, ey$, vmul(sbm2$, by$)));
-      mz$ = vmad(c2a$, mz$, vmad(csn2$, ez$, vmul(sbm2$, bz$)));
+      //#insert backwardGate
       const gIp = gradIPtr + (<usize>k << 3);
       const gQp = gradQPtr + (<usize>k << 3);
       store<f64>(gIp, load<f64>(gIp) + vsum(JOIN(vadd, gI$)));
@@ -219,36 +262,120 @@ export function __NAME__(
     const vi = vsplat(iS), vq = vsplat(qS);
     const bx$ = vmul(cs$, vi);
     const by$ = vmul(cs$, vq);
-    const ss$ = vmul(si$, si$);
-    const csn$ = vmul(co$, si$);
-    const kap$ = vmad(co$, tt$, ss$);
-    const c2a$ = vsub(vmul(vadd(co$, co$), co$), one);
-    const csn2$ = vadd(csn$, csn$);
-    const ex$ = vsub(vmul(my$, bz$), vmul(mz$, by$));
-    const ey$ = vsub(vmul(mz$, bx$), vmul(mx$, bz$));
-    const ez$ = vsub(vmul(mx$, by$), vmul(my$, bx$));
-    const bm$ = vmad(bx$, mx$, vmad(by$, my$, vmul(bz$, mz$)));
-    const kbm$ = vmul(kap$, bm$);
-    const fx$ = vsub(vmul(py$, bz$), vmul(pz$, by$));
-    const fy$ = vsub(vmul(pz$, bx$), vmul(px$, bz$));
-    const fz$ = vsub(vmul(px$, by$), vmul(py$, bx$));
-    const bp$ = vmad(bx$, px$, vmad(by$, py$, vmul(bz$, pz$)));
-    const kbp$ = vmul(kap$, bp$);
-    const gI$ = vadd(vmad(bx$, kbm$, vmad(csn$, mx$, vmul(ss$, ex$))), vmad(bx$, kbp$, vmad(csn$, px$, vmul(ss$, fx$))));
-    const gQ$ = vadd(vmad(by$, kbm$, vmad(csn$, my$, vmul(ss$, ey$))), vmad(by$, kbp$, vmad(csn$, py$, vmul(ss$, fy$))));
-    const sbm2$ = vmul(ss$, vadd(bm$, bm$));
-    mx$ = vmad(c2a$, mx$, vmad(csn2$, ex$, vmul(sbm2$, bx$)));
-    my$ = vmad(c2a$, my$, vmad(csn2$, ey$, vmul(sbm2$, by$)));
-    mz$ = vmad(c2a$, mz$, vmad(csn2$, ez$, vmul(sbm2$, bz$)));
-    const sbp2$ = vmul(ss$, vadd(bp$, bp$));
-    px$ = vmad(c2a$, px$, vmad(csn2$, fx$, vmul(sbp2$, bx$)));
-    py$ = vmad(c2a$, py$, vmad(csn2$, fy$, vmul(sbp2$, by$)));
-    pz$ = vmad(c2a$, pz$, vmad(csn2$, fz$, vmul(sbp2$, bz$)));
+    //#insert backwardState
     const gIp = gradIPtr + (<usize>k << 3);
     const gQp = gradQPtr + (<usize>k << 3);
     store<f64>(gIp, load<f64>(gIp) + vsum(JOIN(vadd, gI$)));
     store<f64>(gQp, load<f64>(gQp) + vsum(JOIN(vadd, gQ$)));
   }
   return mean;
+}
+//#end
+
+// Blocks of segments side by side (qubit-blocks.ts): for one member, each lane of the two
+// copies runs its own block of consecutive segments, so no lane holds a padding member.
+// Copy $ works on the sample region samples + $ step: slot t of a region holds the
+// segments of its two lanes ([I, Q, live] 48 bytes per slot, then h slots of [gI, gQ]
+// 32 bytes); a lane whose block has ended runs the identity (its `live` lane is 0). cst
+// holds cos a, S, T per slot per copy (48 bytes); ends per copy 160 bytes: the lanes'
+// products (ur, ui, vr, vi; the starting ones on entry) and the backward vectors m, m'
+// at each lane's last segment.
+
+//#unroll blocksForward:2
+/**
+ * Forward sweep of member j, two blocks per copy: cos a, S and T per slot into cst, and each lane's
+ * product U_last .. U_first P (P: the product in ends on entry) back into ends.
+ */
+export function __NAME__(
+  samples: usize, step: usize, h: i32, c: f64, j: i32,
+  scalePtr: usize, detPtr: usize, cst: usize, ends: usize, series: i32,
+): void {
+  const terms = series & 0xff;
+  const halv = series >> 8;
+  const reduce = vsplat(1.0 / <f64>(<i64>1 << (2 * halv)));
+  const one = vsplat(1.0);
+  const two = vsplat(2.0);
+  const four = vsplat(4.0);
+  const third = vsplat(-1.0 / 3.0);
+  const zero = vsplat(0.0);
+  const c2 = vsplat(c * c);
+  const region$ = samples + <usize>$index * step;
+  const cw$ = cst + <usize>($index * h) * 48;
+  const e$ = ends + <usize>$index * 160;
+  const s = vsplat(load<f64>(scalePtr + (<usize>j << 3)));
+  const s2 = vmul(s, s);
+  const cs = vmul(s, vsplat(c));
+  const bz = vmul(vsplat(load<f64>(detPtr + (<usize>j << 3))), vsplat(-c));
+  const bz2 = vmul(bz, bz);
+  const nbz = vneg(bz);
+  let aur$ = v128.load(e$), aui$ = v128.load(e$, 16), avr$ = v128.load(e$, 32), avi$ = v128.load(e$, 48);
+  for (let t = 0; t < h; t++) {
+    const sp$ = region$ + <usize>t * 48;
+    const vi$ = v128.load(sp$), vq$ = v128.load(sp$, 16), live$ = v128.load(sp$, 32);
+    const r2$ = vmul(c2, vmad(vi$, vi$, vmul(vq$, vq$)));
+    const full$ = vmad(s2, r2$, bz2);
+    //#insert segmentSeries
+    // A slot past the end of a block is the identity: cos a = 1, S = 0.
+    co$ = v128.bitselect(co$, one, live$);
+    si$ = v128.and(si$, live$);
+    const ws$ = cw$ + <usize>t * 48;
+    v128.store(ws$, co$); v128.store(ws$, si$, 16); v128.store(ws$, tt$, 32);
+    const sig$ = vmul(si$, cs);
+    const uur$ = co$, uui$ = vmul(si$, nbz), uvr$ = vmul(sig$, vq$), uvi$ = vmul(sig$, vneg(vi$));
+    const nur$ = qmulUr(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
+    const nui$ = qmulUi(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
+    const nvr$ = qmulVr(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
+    const nvi$ = qmulVi(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
+    aur$ = nur$; aui$ = nui$; avr$ = nvr$; avi$ = nvi$;
+  }
+  v128.store(e$, aur$); v128.store(e$, aui$, 16); v128.store(e$, avr$, 32); v128.store(e$, avi$, 48);
+}
+//#end
+
+//#unroll blocksBackward:2
+/**
+ * Backward sweep of member j, two blocks per copy, from the vectors m (and m' for states) that ends
+ * holds at each lane's last segment; each slot's gradient is added to its region's.
+ */
+export function __NAME__(
+  samples: usize, step: usize, h: i32, c: f64, j: i32,
+  scalePtr: usize, detPtr: usize, mode: i32, cst: usize, ends: usize,
+): void {
+  const one = vsplat(1.0);
+  const region$ = samples + <usize>$index * step;
+  const grads$ = region$ + <usize>h * 48;
+  const cw$ = cst + <usize>($index * h) * 48;
+  const e$ = ends + <usize>$index * 160;
+  const cs = vmul(vsplat(load<f64>(scalePtr + (<usize>j << 3))), vsplat(c));
+  const bz = vmul(vsplat(load<f64>(detPtr + (<usize>j << 3))), vsplat(-c));
+  // Both copies run the same member; the shared text names its detuning term per copy.
+  const bz$ = bz;
+  let mx$ = v128.load(e$, 64), my$ = v128.load(e$, 80), mz$ = v128.load(e$, 96);
+  if (mode == MODE_GATE) {
+    for (let t = h - 1; t >= 0; t--) {
+      const sp$ = region$ + <usize>t * 48;
+      const gp$ = grads$ + <usize>t * 32;
+      const ws$ = cw$ + <usize>t * 48;
+      const co$ = v128.load(ws$), si$ = v128.load(ws$, 16), tt$ = v128.load(ws$, 32);
+      const bx$ = vmul(cs, v128.load(sp$));
+      const by$ = vmul(cs, v128.load(sp$, 16));
+      //#insert backwardGate
+      v128.store(gp$, vadd(v128.load(gp$), gI$));
+      v128.store(gp$, vadd(v128.load(gp$, 16), gQ$), 16);
+    }
+    return;
+  }
+  let px$ = v128.load(e$, 112), py$ = v128.load(e$, 128), pz$ = v128.load(e$, 144);
+  for (let t = h - 1; t >= 0; t--) {
+    const sp$ = region$ + <usize>t * 48;
+    const gp$ = grads$ + <usize>t * 32;
+    const ws$ = cw$ + <usize>t * 48;
+    const co$ = v128.load(ws$), si$ = v128.load(ws$, 16), tt$ = v128.load(ws$, 32);
+    const bx$ = vmul(cs, v128.load(sp$));
+    const by$ = vmul(cs, v128.load(sp$, 16));
+    //#insert backwardState
+    v128.store(gp$, vadd(v128.load(gp$), gI$));
+    v128.store(gp$, vadd(v128.load(gp$, 16), gQ$), 16);
+  }
 }
 //#end

@@ -22,6 +22,7 @@
 import { seriesTerms, halvings } from './su2';
 import { figureQuad, figurePair, gradientQuad, gradientPair } from './generated/qubit-sweeps';
 import { Problem } from './problem';
+import { blocksGradient, blocksWorkBytes, distinctMembers } from './qubit-blocks';
 
 /** Member parameters per member: scale (1 + amplitude error) and detuning. */
 export const QUBIT_PARAMS: i32 = 2;
@@ -30,8 +31,11 @@ export const QUBIT_TARGET_VALUES: i32 = 8;
 /** Members are padded to a multiple of this (pairs per v128). */
 export const QUBIT_MEMBER_MULTIPLE: i32 = 2;
 
-/** Scratch of the gradient sweep: cos a, S, T per segment for two pairs (12 n f64). */
-export function qubitWorkValues(nDrive: i32): i32 { return 12 * nDrive; }
+/**
+ * Scratch of the gradient sweeps: cos a, S, T per segment for two pairs (12 n f64), or
+ * one member's blocks of segments (qubit-blocks.ts), whichever is larger.
+ */
+export function qubitWorkValues(nDrive: i32): i32 { return max(12 * nDrive, <i32>(blocksWorkBytes(nDrive) >> 3)); }
 
 /**
  * Series settings for the largest angle of a job, packed as terms | halvings << 8:
@@ -81,7 +85,8 @@ export function ensembleFigure(
 /**
  * Weighted mean infidelity (returned), each member's infidelity (out[m]) and the exact
  * gradient of the mean with respect to every sample (gradI[n], gradQ[n], per Hz).
- * m must be even; work holds 12 n f64.
+ * m must be even; work holds qubitWorkValues(n) f64. One member (not counting zero-weight
+ * copies of member 0, the padding) runs blocks of segments in the lanes (qubit-blocks.ts).
  */
 export function ensembleGradient(
   iPtr: usize, qPtr: usize, n: i32, dt: f64,
@@ -90,6 +95,10 @@ export function ensembleGradient(
   gradIPtr: usize, gradQPtr: usize, workPtr: usize, series: i32,
 ): f64 {
   const c = Math.PI * dt;
+  // One member: blocks of segments in the lanes (with two or three members, measured no faster).
+  if (distinctMembers(scalePtr, detPtr, wPtr, m) == 1) {
+    return blocksGradient(iPtr, qPtr, n, c, scalePtr, detPtr, wPtr, m, targetPtr, mode, outPtr, gradIPtr, gradQPtr, workPtr, series);
+  }
   memory.fill(gradIPtr, 0, <usize>n << 3);
   memory.fill(gradQPtr, 0, <usize>n << 3);
   let mean: f64 = 0.0;

@@ -1,7 +1,7 @@
 // The benchmark: speed figures measured in one run, printed as a table (or one JSON
 // object with --json). Never a test: figures vary 10-30 % with the machine's load.
 //   npm run bench            table for people
-//   npm run bench -- --json  {"objectiveGradient": [...], "ladder": [...], "dragCalibration": [...], "design": [...], "maps": [...], "line": {...}, "shares": {...}, "fused": [...], "batch": {...}, "app": {...}}
+//   npm run bench -- --json  {"objectiveGradient": [...], "oneMember": [...], "ladder": [...], "dragCalibration": [...], "design": [...], "maps": [...], "line": {...}, "shares": {...}, "fused": [...], "batch": {...}, "app": {...}}
 //   npm run bench -- --no-app  without the browser figures (bench/app-bench.ts)
 //   npm run bench -- --no-batch  without the batch figures (bench/batch-bench.ts)
 //   npm run bench -- --no-command  without the command's start-up and Ctrl-C figures (bench/command-bench.ts)
@@ -106,6 +106,36 @@ for (const segments of [100, 1000, 10000]) {
     objectiveGradient.push(row);
     log(`${String(segments).padStart(8)}  ${String(count).padStart(7)}   ${row.figureNsPerSegmentMember.toFixed(2).padStart(17)}   ${wasmMs.toFixed(4).padStart(11)}   ${row.nsPerSegmentMember.toFixed(2).padStart(10)}   ${tsMs === null ? '     -' : tsMs.toFixed(2).padStart(6)}   ${row.ratio === null ? '-' : row.ratio.toFixed(1)}`);
   }
+}
+
+// 1a. One member: blocks of segments side by side in the lanes (assembly/qubit-blocks.ts)
+// against the paired-member path it replaces (one zero-weight member that is not a copy of
+// member 0 sends the job down that path), alternating rounds in this process.
+log('\none member: blocks of segments in the lanes against paired members (objective + gradient, alternating rounds)');
+log('segments   blocks ns/seg   paired ns/seg   paired/blocks');
+const oneMember: { segments: number; blocksNs: number; pairedNs: number; ratio: number }[] = [];
+for (const segments of [100, 1000, 10000]) {
+  const pulse = smoothPulse(segments, 2e-7 * (segments / 100), 1e7);
+  const member = { detuning: 3e5, amplitudeError: 0.02, weight: 1 };
+  const blocks = prepareGradientJob(gate, pulse, [member]);
+  const paired = prepareGradientJob(gate, pulse, [member, { detuning: -4e5, amplitudeError: 0, weight: 0 }]);
+  const reps = Math.max(3, Math.round(2e5 / segments));
+  const timeOf = (job: typeof blocks): number => {
+    const t = performance.now();
+    for (let k = 0; k < reps; k++) job.run();
+    return (performance.now() - t) / reps;
+  };
+  for (let k = 0; k < 3; k++) { timeOf(blocks); timeOf(paired); }
+  const b: number[] = [], p: number[] = [], r: number[] = [];
+  for (let round = 0; round < 21; round++) {
+    const tb = timeOf(blocks), tp = timeOf(paired);
+    b.push(tb); p.push(tp); r.push(tp / tb);
+  }
+  blocks.dispose(); paired.dispose();
+  const mid = (a: number[]): number => [...a].sort((x, y) => x - y)[a.length >> 1];
+  const row = { segments, blocksNs: (mid(b) * 1e6) / segments, pairedNs: (mid(p) * 1e6) / segments, ratio: mid(r) };
+  oneMember.push(row);
+  log(`${String(segments).padStart(8)}   ${row.blocksNs.toFixed(2).padStart(13)}   ${row.pairedNs.toFixed(2).padStart(13)}   ${row.ratio.toFixed(2).padStart(13)}`);
 }
 
 // 1b. The transmon ladder through the system seam (a problem block of the ladder kind, as
@@ -296,5 +326,5 @@ if (!process.argv.includes('--no-app')) {
 }
 
 if (json) {
-  process.stdout.write(JSON.stringify({ objectiveGradient, ladder, dragCalibration, design: designs, maps, spectrum, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs }, line: { maps: lineMaps, crossover, designs: lineDesigns }, shares, fused, command, batch, app }) + '\n');
+  process.stdout.write(JSON.stringify({ objectiveGradient, oneMember, ladder, dragCalibration, design: designs, maps, spectrum, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs }, line: { maps: lineMaps, crossover, designs: lineDesigns }, shares, fused, command, batch, app }) + '\n');
 }

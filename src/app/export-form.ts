@@ -28,6 +28,8 @@ export type ExportForm = Omit<ExportSettings, 'maxLength'> & {
   maxLength: number | null;
   format: WaveformFormat;
   units: SampleUnits;
+  /** True once the user typed a sample rate; until then it follows the spec's sample period (defaultSampleRate). */
+  sampleRateByHand: boolean;
 };
 
 /** A common AWG sample rate (1 GS/s), used first when the design's dt is a whole number of its periods. */
@@ -41,18 +43,26 @@ export function peakAmplitude(pulse: Pick<Pulse, 'i' | 'q'>): number {
 }
 
 /**
- * A first form for a pulse: 1 GS/s when dt is a whole number of nanoseconds (else one sample
- * per design sample), 14 bits, full scale at the spec's peak Rabi frequency (or the pulse's
- * peak, rounded up, when that is higher), the library's defaults for the rest, CSV codes.
+ * The instrument a sample period describes: 1 GS/s when the period is a whole number of
+ * nanoseconds, else one instrument sample per design sample (416.67 ps: 2.4 GS/s).
  */
-export function defaultExportForm(pulse: Pick<Pulse, 'dt' | 'i' | 'q'> | null, rabiMax: number | null): ExportForm {
-  const dt = pulse?.dt ?? 1e-9;
-  const whole = samplesPerSegment(dt, DEFAULT_SAMPLE_RATE).whole !== null;
+export function defaultSampleRate(dt: number): number {
+  return samplesPerSegment(dt, DEFAULT_SAMPLE_RATE).whole !== null ? DEFAULT_SAMPLE_RATE : 1 / dt;
+}
+
+/**
+ * A first form for a pulse: the sample rate of the instrument the spec's sample period
+ * describes (`dt`; the pulse's own without a spec), 14 bits, full scale at the spec's peak
+ * Rabi frequency (or the pulse's peak, rounded up, when that is higher), the library's
+ * defaults for the rest, CSV codes.
+ */
+export function defaultExportForm(pulse: Pick<Pulse, 'dt' | 'i' | 'q'> | null, rabiMax: number | null, dt = pulse?.dt ?? 1e-9): ExportForm {
   const peak = pulse ? peakAmplitude(pulse) : 0;
   const limit = rabiMax !== null && rabiMax > 0 ? rabiMax : 0;
   const fullScale = peak > limit ? roundUpTwoDigits(peak) : limit || 1e7;
   return {
-    sampleRate: whole ? DEFAULT_SAMPLE_RATE : 1 / dt,
+    sampleRate: defaultSampleRate(dt),
+    sampleRateByHand: false,
     resample: EXPORT_DEFAULTS.resample,
     bits: 14,
     fullScale,
@@ -70,6 +80,20 @@ export function defaultExportForm(pulse: Pick<Pulse, 'dt' | 'i' | 'q'> | null, r
     format: 'csv',
     units: 'codes',
   };
+}
+
+/**
+ * The form the export uses: the one kept (once edited) or the first form, its sample rate
+ * following the spec's sample period `dt` until the user types one.
+ */
+export function currentExportForm(kept: ExportForm | undefined, first: () => ExportForm, dt: number | null): ExportForm {
+  if (!kept) return first();
+  return kept.sampleRateByHand || dt === null ? kept : { ...kept, sampleRate: defaultSampleRate(dt) };
+}
+
+/** The export's sample rate the spec form judges its sample period by: the user's, else the spec's own instrument. */
+export function exportSampleRate(kept: ExportForm | undefined, dt: number): number {
+  return kept?.sampleRateByHand ? kept.sampleRate : defaultSampleRate(dt);
 }
 
 /** The settings object the library takes (the SSB settings only for SSB, no maxLength for no limit). */

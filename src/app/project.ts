@@ -203,6 +203,8 @@ function readExportForm(value: unknown): ExportForm {
     marker: obj.marker as boolean,
     format: oneOf(obj.format, `${where}.format`, WAVEFORM_FORMATS),
     units: oneOf(obj.units, `${where}.units`, ['codes', 'hz'] as const),
+    // Projects saved before the setting existed kept the rate they were saved with.
+    sampleRateByHand: obj.sampleRateByHand === undefined ? true : oneOf(obj.sampleRateByHand, `${where}.sampleRateByHand`, [true, false] as const),
   };
 }
 

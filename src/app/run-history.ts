@@ -4,6 +4,11 @@ import type { StopReason } from '../core/types.ts';
 import type { DesignOutcome } from '../worker/client.ts';
 import type { Convergence } from './convergence.ts';
 
+/** A start as the page shows it: numbered from 1, as the command line does (indices stay 0-based inside). */
+export function startNumber(index: number): number {
+  return index + 1;
+}
+
 /** One row of the starts table. */
 export interface StartRow {
   start: number;

@@ -100,7 +100,7 @@ export const batchRunCommand: Command = defineCommand({
     const runOne = async (k: number): Promise<void> => {
       const v = variations[k];
       const problem = specs[k].problem;
-      const reporter = progressReporter(prefixed(io, `${v.name}: `), problem.optimizer.starts, problem.optimizer.maxIterations);
+      const reporter = progressReporter(prefixed(io, `${v.name}: `), problem.optimizer);
       let result: BatchResult;
       let pulseText: string | null = null;
       try {

@@ -113,8 +113,7 @@ export const designCommand: Command = defineCommand({
         }
       }
     });
-    const { starts, maxIterations } = problem.optimizer;
-    const reporter = progressReporter(io, starts, maxIterations);
+    const reporter = progressReporter(io, problem.optimizer);
     let result: DesignResult;
     try {
       const options = {

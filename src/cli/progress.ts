@@ -1,5 +1,6 @@
 // Progress of a design on stderr: a bar redrawn in place on a terminal, otherwise a plain
 // line now and then (logs and CI keep every line, so they must stay few).
+import { prunes } from '../core/best-start.ts';
 import type { Progress } from '../core/types.ts';
 import type { CliIO } from './command.ts';
 import { formatInfidelity } from './format.ts';
@@ -16,8 +17,28 @@ export interface ProgressReporter {
   finish: () => void;
 }
 
-/** A reporter for a design of `starts` starts of at most `maxIterations` iterations each. */
-export function progressReporter(io: CliIO, starts: number, maxIterations: number, now = () => performance.now()): ProgressReporter {
+/** What the fraction done is counted against: the spec's starts, their iteration limit and its pruning. */
+export interface ProgressBudget {
+  starts: number;
+  maxIterations: number;
+  pruneAfter: number;
+  keepStarts: number;
+}
+
+/**
+ * Iterations a design can take at most: every start to its limit, or, when it prunes, every
+ * start to pruneAfter and the keepStarts best on to the limit (a pruned design that runs
+ * every start to the end reads 100 %, not the share of starts kept).
+ */
+export function iterationBudget(o: ProgressBudget): number {
+  if (!prunes(o, o.starts)) return o.starts * o.maxIterations;
+  const probe = Math.min(o.pruneAfter, o.maxIterations);
+  return o.starts * probe + o.keepStarts * (o.maxIterations - probe);
+}
+
+/** A reporter for a design of the optimizer's starts, each of at most its maxIterations. */
+export function progressReporter(io: CliIO, optimizer: ProgressBudget, now = () => performance.now()): ProgressReporter {
+  const { starts, maxIterations } = optimizer;
   // Iterations done per start: the fraction stays right whether starts run one after
   // another or interleaved.
   const iterations = new Map<number, number>();
@@ -27,7 +48,7 @@ export function progressReporter(io: CliIO, starts: number, maxIterations: numbe
   // another or interleaved on several threads.
   const seen = new Set<number>();
   let drawn = false;
-  const total = starts * maxIterations;
+  const total = iterationBudget(optimizer);
 
   const describe = (p: Progress): { fraction: number; percent: string; text: string } => {
     let done = 0;

@@ -87,7 +87,7 @@ export const shortestCommand: Command = defineCommand({
         goalMean, goalWorst, minSegments, maxSegments, signal: controller.signal,
         onProgress: io.isTTY
           ? (p: Progress) => {
-            reporter ??= progressReporter(io, problem.optimizer.starts, problem.optimizer.maxIterations);
+            reporter ??= progressReporter(io, problem.optimizer);
             reporter.update(p);
           }
           : undefined,

@@ -408,7 +408,8 @@ export function bestOfStarts(problem: Problem, starts: StartResult[], t0: number
 /** A start's result at its accepted point. */
 function startResult(problem: Problem, run: StartRun, stopReason: StopReason, elapsedS: number): StartResult {
   const samples = run.samples();
-  const pulse: Pulse = { dt: problem.dt, i: samples.i, q: samples.q, metadata: { origin: 'design', name: `design start ${run.start}` } };
+  // Named as people count starts (from 1, as the command line prints them); `start` stays the 0-based index.
+  const pulse: Pulse = { dt: problem.dt, i: samples.i, q: samples.q, metadata: { origin: 'design', name: `design start ${run.start + 1}` } };
   holdBound(pulse, problem.rabiMax, problem.constraints.bound);
   if (problem.line?.boundOn === 'both') holdDriveBound(pulse, problem.line, problem.rabiMax);
   return {

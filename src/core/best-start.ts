@@ -2,6 +2,7 @@
 // (threads.ts) or the page's workers (src/worker/client.ts). Plain data, no core, so the
 // page can merge its workers' results with the same rule.
 import type { DesignResult, StartResult } from './types.ts';
+import * as pm from './portable-math.ts';
 
 /** The winning start: the lowest objective, ties to the lower start index (so the split over threads never matters). */
 export function bestStart<T extends Pick<StartResult, 'objective' | 'start'>>(starts: readonly T[]): T {
@@ -83,8 +84,8 @@ export function outpacedStarts(standings: readonly Standing[], iteration: number
   const out: number[] = [];
   for (const s of standings) {
     if (s === leader || s.before === undefined || !(s.objective > 0)) continue;
-    const rate = s.before > s.objective ? Math.log(s.before / s.objective) / window : 0;
-    const reachable = s.objective * Math.exp(-optimizer.outpaceFactor * rate * left);
+    const rate = s.before > s.objective ? pm.log(s.before / s.objective) / window : 0;
+    const reachable = s.objective * pm.exp(-optimizer.outpaceFactor * rate * left);
     if (reachable > leader.objective) out.push(s.start);
   }
   return out.sort((a, b) => a - b);

@@ -17,6 +17,7 @@ import { evaluateMembers, toProblem } from './api.ts';
 import { ArgumentError, describeValue } from './errors.ts';
 import { nelderMead } from './simplex.ts';
 import type { Evaluation, Pulse, Target } from './types.ts';
+import * as pm from './portable-math.ts';
 
 /** Envelopes of the DRAG family. */
 export type DragEnvelope = 'gaussian' | 'cosine';
@@ -43,27 +44,28 @@ export interface DragLimits {
 
 /** Envelope g and its derivative g' (per second) at time t of a pulse of length T. */
 function envelope(kind: DragEnvelope, t: number, T: number, sigmaFraction: number): [number, number] {
-  if (kind === 'cosine') return [(1 - Math.cos((2 * Math.PI * t) / T)) / 2, (Math.PI / T) * Math.sin((2 * Math.PI * t) / T)];
+  if (kind === 'cosine') return [(1 - pm.cos((2 * Math.PI * t) / T)) / 2, (Math.PI / T) * pm.sin((2 * Math.PI * t) / T)];
   const sigma = sigmaFraction * T;
   const x = t - T / 2;
-  const bell = Math.exp(-(x * x) / (2 * sigma * sigma));
-  const edge = Math.exp(-(T * T) / (8 * sigma * sigma));
+  const bell = pm.exp(-(x * x) / (2 * sigma * sigma));
+  const edge = pm.exp(-(T * T) / (8 * sigma * sigma));
   return [bell - edge, (-x / (sigma * sigma)) * bell];
 }
 
 /** The rotation angle and axis phase of a gate target about an axis in the xy-plane. */
-function gateAngle(target: Target): { angle: number; phase: number } {
+function gateAngle(target: Target): { angle: number; direction: [number, number] } {
   if (target.kind !== 'gate') throw new ArgumentError('target: DRAG pulses are gates; give a gate target {"gate": {"axis", "angleDeg"}}');
   const [x, y, z] = target.axis;
   if (Math.abs(z) > 1e-9 * Math.hypot(x, y, z)) {
     throw new ArgumentError(`target.gate.axis: ${describeValue(target.axis)} is not allowed for a DRAG pulse; its axis must lie in the xy-plane (z = 0)`);
   }
-  return { angle: target.angleRad, phase: Math.atan2(y, x) };
+  const r = Math.hypot(x, y);
+  return { angle: target.angleRad, direction: [x / r, y / r] };
 }
 
 /** A DRAG pulse of a gate target on a ladder of anharmonicity alpha (Hz), sampled under the limits. */
 export function dragPulse(target: Target, limits: DragLimits, anharmonicity: number, parameters: DragParameters): Pulse {
-  const { angle, phase } = gateAngle(target);
+  const { angle, direction } = gateAngle(target);
   const { envelope: kind, amplitudeScale, beta, driveDetuning } = parameters;
   const sigmaFraction = parameters.sigmaFraction ?? 0.25;
   if (beta !== 0 && !(anharmonicity !== 0 && Number.isFinite(anharmonicity))) {
@@ -85,9 +87,12 @@ export function dragPulse(target: Target, limits: DragLimits, anharmonicity: num
   for (let k = 0; k < n; k++) {
     const ix = a * g[k];
     const qy = beta === 0 ? 0 : (-beta * a * dg[k]) / (2 * Math.PI * anharmonicity);
-    const ramp = phase - 2 * Math.PI * driveDetuning * ((k + 0.5) * dt - T / 2);
-    i[k] = ix * Math.cos(ramp) - qy * Math.sin(ramp);
-    q[k] = ix * Math.sin(ramp) + qy * Math.cos(ramp);
+    // The drive's phase: the axis's direction turned by the detuning's ramp about mid-pulse.
+    const ramp = -2 * Math.PI * driveDetuning * ((k + 0.5) * dt - T / 2);
+    const cr = pm.cos(ramp), sr = pm.sin(ramp);
+    const c = direction[0] * cr - direction[1] * sr, s = direction[1] * cr + direction[0] * sr;
+    i[k] = ix * c - qy * s;
+    q[k] = ix * s + qy * c;
   }
   return {
     dt, i, q,

@@ -2,6 +2,7 @@
 // (assembly/memory.ts), and checking them first: kernels trust their inputs.
 import { ArgumentError, describeValue } from './errors.ts';
 import type { Member, Pulse, Target, Vec3 } from './types.ts';
+import * as pm from './portable-math.ts';
 
 /** Figure mode of the core: 0 gate, 1 state transfer. */
 export function targetMode(target: Target): number {
@@ -11,8 +12,8 @@ export function targetMode(target: Target): number {
 /** SU(2) element (ur, ui, vr, vi) of R_n(theta) = cos(theta/2) - i sin(theta/2) n.sigma. */
 export function rotation(axis: Vec3, angleRad: number): [number, number, number, number] {
   const norm = Math.hypot(axis[0], axis[1], axis[2]);
-  const c = Math.cos(angleRad / 2);
-  const s = Math.sin(angleRad / 2) / norm;
+  const c = pm.cos(angleRad / 2);
+  const s = pm.sin(angleRad / 2) / norm;
   return [c, -s * axis[2], s * axis[1], -s * axis[0]];
 }
 
@@ -20,9 +21,12 @@ export function rotation(axis: Vec3, angleRad: number): [number, number, number,
 function stateRotation(r: Vec3): [number, number, number, number] {
   const norm = Math.hypot(r[0], r[1], r[2]);
   const z = Math.max(-1, Math.min(1, r[2] / norm));
-  const theta = Math.acos(z);
-  const phi = Math.atan2(r[1], r[0]);
-  return [Math.cos(theta / 2), 0, Math.sin(theta / 2) * Math.cos(phi), Math.sin(theta / 2) * Math.sin(phi)];
+  // cos(theta/2), sin(theta/2) of the polar angle and cos, sin of the azimuth, from square
+  // roots and quotients alone (the same bits on every engine, unlike acos and atan2).
+  const half = [Math.sqrt((1 + z) / 2), Math.sqrt((1 - z) / 2)];
+  const rho = Math.hypot(r[0], r[1]);
+  const [cphi, sphi] = rho > 0 ? [r[0] / rho, r[1] / rho] : [1, 0];
+  return [half[0], 0, half[1] * cphi, half[1] * sphi];
 }
 
 function adjoint(q: [number, number, number, number]): [number, number, number, number] {

@@ -5,6 +5,7 @@
 // out is below TAIL_FRACTION of the response's area.
 import { ArgumentError } from './errors.ts';
 import type { LineResponse } from './types.ts';
+import * as pm from './portable-math.ts';
 
 /** The area of the response left out by cutting its tails (each side), at most. */
 export const TAIL_FRACTION = 1e-12;
@@ -105,8 +106,13 @@ function expm(a: number[][]): number[][] {
   const d = a.length;
   let norm = 0;
   for (const row of a) norm = Math.max(norm, row.reduce((s, x) => s + Math.abs(x), 0));
-  const squarings = norm > 0.5 ? Math.ceil(Math.log2(norm / 0.5)) : 0;
-  const scaled = a.map((row) => row.map((x) => x / 2 ** squarings));
+  // Halved until the norm is at most 1/2 (exact steps: the same count on every engine).
+  let squarings = 0, factor = 1;
+  for (let n = norm; n > 0.5; n /= 2) {
+    squarings++;
+    factor /= 2;
+  }
+  const scaled = a.map((row) => row.map((x) => x * factor));
   const identity = (): number[][] => Array.from({ length: d }, (_, i) => Array.from({ length: d }, (_, k) => (i === k ? 1 : 0)));
   let result = identity();
   let term = identity();
@@ -135,7 +141,7 @@ export function erfc(x: number): number {
     f *= delta;
     if (Math.abs(delta - 1) < 1e-17) break;
   }
-  return Math.exp(-x * x) / (Math.sqrt(Math.PI) * f);
+  return pm.exp(-x * x) / (Math.sqrt(Math.PI) * f);
 }
 
 /** The error function: erf(x) = 2x/sqrt(pi) exp(-x^2) sum (2x^2)^n / (1 3 5 ... (2n+1)) (positive terms), 1 - erfc above 3. */
@@ -148,5 +154,5 @@ export function erf(x: number): number {
     sum += term;
     if (term < 1e-17 * sum) break;
   }
-  return ((2 * x) / Math.sqrt(Math.PI)) * Math.exp(-x * x) * sum;
+  return ((2 * x) / Math.sqrt(Math.PI)) * pm.exp(-x * x) * sum;
 }

@@ -8,6 +8,7 @@ import { memberShares, splitObjective, type SharePool } from './member-split.ts'
 import { initialVariables, variablesFromSamples } from './start.ts';
 import type { Problem, StopReason } from './types.ts';
 import { getCore, STEP_GRADIENT_TOLERANCE, STEP_LINE_SEARCH_FAILED, type Core } from './wasm.ts';
+import * as pm from './portable-math.ts';
 
 /** The optimiser's starting variables for one start: the given samples, else the seeded smooth pulse, in the bound's variables. */
 export function startVariables(problem: Problem, start: number, nVar: number, samples?: { i: ArrayLike<number>; q: ArrayLike<number> }): Float64Array {
@@ -15,7 +16,7 @@ export function startVariables(problem: Problem, start: number, nVar: number, sa
   const x = initialVariables(problem, start, nVar);
   // The box's variables are the samples over rabiMax: start from the same pulse as the
   // tanh parametrisation would (I = rabiMax tanh(x)).
-  if (problem.constraints.bound === 'box') for (let k = 0; k < x.length; k++) x[k] = Math.tanh(x[k]);
+  if (problem.constraints.bound === 'box') for (let k = 0; k < x.length; k++) x[k] = pm.tanh(x[k]);
   return x;
 }
 

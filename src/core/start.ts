@@ -1,6 +1,7 @@
 // Deterministic starting points of the optimiser: a smooth random pulse per start,
 // drawn from a seeded generator so that the same seed gives the same design.
 import type { Problem } from './types.ts';
+import * as pm from './portable-math.ts';
 
 /** mulberry32: a small, fast 32-bit generator (public domain, common practice). */
 export function mulberry32(seed: number): () => number {
@@ -44,7 +45,7 @@ export function initialVariables(problem: Problem, start: number, nVar: number):
     for (let f = 0; f < free; f++) {
       const t = (f + 0.5) / free;
       let v = offset;
-      for (let k = 0; k < MODES; k++) v += amp[k] * Math.sin(Math.PI * (k + 1) * t + phase[k]);
+      for (let k = 0; k < MODES; k++) v += amp[k] * pm.sin(Math.PI * (k + 1) * t + phase[k]);
       x[2 * f + channel] = v;
     }
   }
@@ -72,7 +73,7 @@ export function variablesFromSamples(problem: Problem, samples: { i: ArrayLike<n
     }
     const a = Math.hypot(iv, qv);
     // r = atanh(|(I, Q)| / rabiMax) along the same direction.
-    const ratio = a < 1e-8 ? 1 : Math.atanh(Math.min(a, SEED_CAP)) / a;
+    const ratio = a < 1e-8 ? 1 : pm.atanh(Math.min(a, SEED_CAP)) / a;
     x[2 * f] = iv * ratio;
     x[2 * f + 1] = qv * ratio;
   }

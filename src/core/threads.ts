@@ -124,7 +124,7 @@ async function runStage(
 
 /** A start cut short, from its last progress report with samples. */
 function startFromProgress(problem: Problem, p: Progress, t0: number): StartResult {
-  const pulse: Pulse = { dt: problem.dt, i: p.pulse!.i, q: p.pulse!.q, metadata: { origin: 'design', name: `design start ${p.start}` } };
+  const pulse: Pulse = { dt: problem.dt, i: p.pulse!.i, q: p.pulse!.q, metadata: { origin: 'design', name: `design start ${p.start + 1}` } };
   return {
     start: p.start, pulse, meanInfidelity: p.meanInfidelity, objective: p.objective, iterations: p.iteration,
     evaluations: NaN, stopReason: 'stopped', elapsedS: (performance.now() - t0) / 1000,

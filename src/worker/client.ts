@@ -317,7 +317,7 @@ export class CoreClient {
       const i = kept.live.i.slice();
       const q = kept.live.q.slice();
       heldToBound(i, q, problem.rabiMax, problem.constraints.bound);
-      return { dt: problem.dt, i, q, metadata: { origin: 'design', name: `design start ${kept.live.start}` } };
+      return { dt: problem.dt, i, q, metadata: { origin: 'design', name: `design start ${kept.live.start + 1}` } };
     };
     const starts: StartResult[] = running.reported.starts().map((k) => ({
       start: k.live.start,

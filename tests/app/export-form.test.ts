@@ -11,10 +11,13 @@ import { demoSpec } from '../../src/app/demo.ts';
 import {
   checkExportForm,
   commandArgs,
+  currentExportForm,
   defaultExportForm,
+  defaultSampleRate,
   exportedEntry,
   exportFileNames,
   exportKey,
+  exportSampleRate,
   exportSettingsInput,
   fileMetadata,
   fileStem,
@@ -22,6 +25,7 @@ import {
   unitsFor,
   type ExportForm,
 } from '../../src/app/export-form.ts';
+import { specLimits } from '../../src/app/spec-limits.ts';
 import { defaultSettings, parseProject, PROJECT_FORMAT, PROJECT_VERSION, projectText } from '../../src/app/project.ts';
 import type { CliIO } from '../../src/cli/command.ts';
 import { main } from '../../src/cli/main.ts';
@@ -64,6 +68,41 @@ describe('the first form for a pulse', () => {
     // The pulse peaks at 9.2182 MHz: rounded up to two significant digits, 9.3 MHz.
     expect(f.fullScale).toBe(9.3e6);
     expect(exportWaveform(pulse, exportSettingsInput(f)).holdSamples).toBe(1);
+  });
+});
+
+describe('the sample rate of the instrument the spec describes', () => {
+  // examples/transmon-x180-fast.json: 48 samples in 20 ns, "at the 2.4 GS/s of the lab's waveform generator".
+  const fast = parseSpec(JSON.parse(readFileSync(new URL('../../examples/transmon-x180-fast.json', import.meta.url), 'utf8')));
+  const periodWarnings = (rate: number) => specLimits(fast, rate).warnings.filter((w) => w.field === 'dt');
+
+  it('is 2.4 GS/s for the fast example (one instrument sample per 416.67 ps sample) and 1 GS/s for whole nanoseconds', () => {
+    expect(fast.dt).toBeCloseTo(20e-9 / 48, 22);
+    expect(defaultSampleRate(fast.dt)).toBeCloseTo(2.4e9, 3);
+    expect(defaultSampleRate(problem.dt)).toBe(1e9);
+    expect(defaultExportForm(lobe(), problem.rabiMax, fast.dt).sampleRate).toBe(defaultSampleRate(fast.dt));
+  });
+
+  it('follows the spec until the user types a rate; the form warns only about a rate the user chose', () => {
+    // Nothing chosen: no warning about the period (the export holds every sample once).
+    expect(periodWarnings(exportSampleRate(undefined, fast.dt))).toEqual([]);
+    // Another field edited: the rate still follows the spec's period.
+    const edited = { ...form({ bits: 16 }), sampleRate: 1e9 };
+    expect(currentExportForm(edited, () => form(), fast.dt).sampleRate).toBe(defaultSampleRate(fast.dt));
+    expect(exportSampleRate(edited, fast.dt)).toBe(defaultSampleRate(fast.dt));
+    // 1 GS/s typed: 416.67 ps is 0.41667 of its periods, which the instrument cannot hold.
+    const typed = { ...edited, sampleRateByHand: true };
+    expect(currentExportForm(typed, () => form(), fast.dt).sampleRate).toBe(1e9);
+    const warned = periodWarnings(exportSampleRate(typed, fast.dt));
+    expect(warned.map((w) => w.message)).toEqual([expect.stringContaining('0.41667 periods of the export')]);
+    // A rate the user typed that holds the period (4.8 GS/s: two instrument samples each) is not warned about.
+    expect(periodWarnings(exportSampleRate({ ...typed, sampleRate: 4.8e9 }, fast.dt))).toEqual([]);
+  });
+
+  it('keeps the rate of a project saved before the choice was recorded', () => {
+    const { sampleRateByHand: _dropped, ...older } = { ...defaultExportForm(null, 1e7), sampleRate: 1e9 };
+    const text = JSON.stringify({ format: PROJECT_FORMAT, version: PROJECT_VERSION, spec: demoSpec(), pulses: [], settings: { ...defaultSettings(), export: older } });
+    expect(parseProject(text).settings.export).toMatchObject({ sampleRate: 1e9, sampleRateByHand: true });
   });
 });
 

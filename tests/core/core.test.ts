@@ -70,6 +70,23 @@ function gradientAgainstOracle(target: Target, pulse: Pulse, members: Member[]):
   return got;
 }
 
+/** The core's gradient against central differences of its figure, relative error < 1e-6 (Nocedal & Wright, section 8.1: error O(h^2)). */
+function expectCentralDifferences(target: Target, pulse: Pulse, members: Member[]): void {
+  const got = figureAndGradient(target, pulse, members);
+  const h = 100; // Hz, on samples of order 1e6 Hz: rounding error ~1e-16/h, truncation ~h^2
+  for (const channel of ['i', 'q'] as const) {
+    for (let k = 0; k < pulse.i.length; k++) {
+      const plus = { ...pulse, [channel]: pulse[channel].slice() } as Pulse;
+      const minus = { ...pulse, [channel]: pulse[channel].slice() } as Pulse;
+      plus[channel][k] += h;
+      minus[channel][k] -= h;
+      const fd = (evaluateMembers(target, plus, members).meanInfidelity - evaluateMembers(target, minus, members).meanInfidelity) / (2 * h);
+      const g = channel === 'i' ? got.gradI[k] : got.gradQ[k];
+      expect(Math.abs(g - fd)).toBeLessThan(1e-6 * Math.max(Math.abs(fd), 1e-9));
+    }
+  }
+}
+
 describe('wasm gradient against the oracle and finite differences', () => {
   for (const r of regimes) {
     for (const target of targets) {
@@ -96,22 +113,65 @@ describe('wasm gradient against the oracle and finite differences', () => {
   it('matches central finite differences of the wasm figure (relative error < 1e-6), zero-drive samples included', () => {
     // Central differences: error O(h^2) (Nocedal & Wright, section 8.1).
     for (const target of targets) {
-      const pulse = randomPulse(15, 2e-8, 5e6, 4);
-      const members = randomMembers(5, 1e6, 0.1);
-      const got = figureAndGradient(target, pulse, members);
-      const h = 100; // Hz, on samples of order 1e6 Hz: rounding error ~1e-16/h, truncation ~h^2
-      for (const channel of ['i', 'q'] as const) {
-        for (let k = 0; k < pulse.i.length; k++) {
-          const plus = { ...pulse, [channel]: pulse[channel].slice() } as Pulse;
-          const minus = { ...pulse, [channel]: pulse[channel].slice() } as Pulse;
-          plus[channel][k] += h;
-          minus[channel][k] -= h;
-          const fd = (evaluateMembers(target, plus, members).meanInfidelity - evaluateMembers(target, minus, members).meanInfidelity) / (2 * h);
-          const g = channel === 'i' ? got.gradI[k] : got.gradQ[k];
-          expect(Math.abs(g - fd)).toBeLessThan(1e-6 * Math.max(Math.abs(fd), 1e-9));
-        }
-      }
+      expectCentralDifferences(target, randomPulse(15, 2e-8, 5e6, 4), randomMembers(5, 1e6, 0.1));
     }
+  });
+});
+
+describe('one member: blocks of segments side by side in the lanes (assembly/qubit-blocks.ts)', () => {
+  // Zero-weight members that are not copies of member 0 make every member need its own
+  // sweep, which sends the ensemble down the paired-member path: the reference here.
+  const paired = (members: Member[]): Member[] => [
+    ...members, ...[0.31, 0.47, 0.59].map((f) => ({ detuning: f * 1e6, amplitudeError: f / 10, weight: 0 })),
+  ];
+  for (const r of regimes) {
+    for (const target of targets) {
+      it(`${r.name}, ${target.kind} target: agrees with the oracle (1e-12) and the paired path (1e-13), N odd, N below the block count`, () => {
+        for (const n of [1, 2, 3, 5, 8, 13, 30]) {
+          const pulse = randomPulse(n, r.dt, r.rabi, 3);
+          const members = randomMembers(1, r.det, 0.15);
+          const got = gradientAgainstOracle(target, pulse, members);
+          got.perMember.forEach((f, j) => expect(Math.abs(f - oracle.memberInfidelity(target, pulse, members[j]))).toBeLessThan(1e-13));
+          const ref = figureAndGradient(target, pulse, paired(members));
+          expect(Math.abs(got.mean - ref.mean)).toBeLessThanOrEqual(1e-13 * ref.mean);
+          got.perMember.forEach((f, j) => expect(Math.abs(f - ref.perMember[j])).toBeLessThanOrEqual(1e-13 * ref.perMember[j]));
+          const scale = Math.max(...ref.gradI.map(Math.abs), ...ref.gradQ.map(Math.abs));
+          for (let k = 0; k < n; k++) {
+            expect(Math.abs(got.gradI[k] - ref.gradI[k])).toBeLessThanOrEqual(1e-13 * scale);
+            expect(Math.abs(got.gradQ[k] - ref.gradQ[k])).toBeLessThanOrEqual(1e-13 * scale);
+          }
+        }
+      });
+    }
+  }
+
+  it('one member with zero-drive stretches matches central finite differences (relative error < 1e-6)', () => {
+    // Central differences: error O(h^2) (Nocedal & Wright, section 8.1).
+    for (const target of targets) {
+      for (const n of [3, 11]) expectCentralDifferences(target, randomPulse(n, 2e-8, 5e6, 2), randomMembers(1, 1e6, 0.1));
+    }
+  });
+
+  it('a pulse with no drive at all: the free precession of every block, exact to 1e-13', () => {
+    // No drive: every block is a rotation about z by the detuning alone (identity slots and
+    // series at a = pi dt Delta only); the oracle evaluates it with Math.sin/cos.
+    const pulse = randomPulse(9, 1e-8, 1e6, 1);
+    expect([...pulse.i, ...pulse.q].every((v) => v === 0)).toBe(true);
+    for (const target of targets) {
+      const members = randomMembers(1, 2e6, 0.1);
+      const got = gradientAgainstOracle(target, pulse, members);
+      expect(Math.abs(got.mean - oracle.ensembleGradient(target, pulse, members).mean)).toBeLessThan(1e-13);
+    }
+  });
+
+  it('gives zero-weight copies of member 0 (the padding) member 0\'s infidelity and no gradient', () => {
+    const pulse = randomPulse(7, 1e-8, 1e7, 0);
+    const [member] = randomMembers(1, 1e6, 0.1);
+    const alone = figureAndGradient(targets[1], pulse, [member]);
+    const padded = figureAndGradient(targets[1], pulse, [member, { ...member, weight: 0 }, { ...member, weight: 0 }]);
+    expect(padded.perMember).toEqual(Float64Array.from([alone.perMember[0], alone.perMember[0], alone.perMember[0]]));
+    expect(padded.gradI).toEqual(alone.gradI);
+    expect(padded.gradQ).toEqual(alone.gradQ);
   });
 });
 

@@ -3,22 +3,16 @@
 // [k dt, (k + 1) dt) (the model of docs/physics.md section 1); the charts' scales and data
 // are read from the page and their pixels sampled where a sample must (and must not) be drawn.
 // Each test leaves screenshots in test-results/ (light and dark, 1440 and 800 px wide).
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
-import { screenshot, skipReason, startHarness, typeInto, visit, type Harness, type Visit } from './harness.ts';
-import { screenshotsEverywhere } from './screens.ts';
+import { screenshot, skipReason, typeInto, type Visit } from './harness.ts';
+import { openPulse, openReady, screenshotsEverywhere, useHarness } from './screens.ts';
 
 const reason = skipReason();
 if (reason) console.warn(`browser tests skipped: ${reason}`);
 
 /** A pulse of 10 samples of 10 ns whose only drive is 5 MHz on I in sample 4, i.e. over 40-50 ns. */
 const SPIKE = { dt: 1e-8, i: [0, 0, 0, 0, 5e6, 0, 0, 0, 0, 0], q: new Array(10).fill(0), metadata: { name: 'spike' } };
-
-/** Opens a pulse file through the page's file input and waits for it to be listed. */
-export async function openPulse(page: Page, name: string, pulse: unknown): Promise<void> {
-  await page.getByTestId('open-pulse').setInputFiles({ name, mimeType: 'application/json', buffer: Buffer.from(JSON.stringify(pulse)) });
-  await page.getByTestId('notice').filter({ hasText: `Opened ${name}` }).waitFor({ timeout: 30_000 });
-}
 
 interface Probe {
   /** Series label. */
@@ -37,12 +31,12 @@ async function xAxis(page: Page, testid: string): Promise<{ min: number; max: nu
   }, testid);
 }
 
-/** The points of a series of the chart on a canvas. */
+/** The points of a series of the chart on a canvas (its label, or its label and a note in brackets: "start 2 (pruned)"). */
 async function seriesData(page: Page, testid: string, label: string): Promise<{ x: number; y: number | null }[]> {
   return page.evaluate(
     ([id, name]) => {
       const chart = (document.querySelector(`[data-testid=${id}]`) as unknown as { gatesmithChart: { data: { datasets: { label: string; data: { x: number; y: number }[] }[] } } }).gatesmithChart;
-      const set = chart.data.datasets.find((d) => d.label === name);
+      const set = chart.data.datasets.find((d) => d.label === name || d.label.startsWith(`${name} (`));
       return set ? set.data.map((p) => ({ x: p.x, y: Number.isFinite(p.y) ? p.y : null })) : [];
     },
     [testid, label] as const,
@@ -104,23 +98,8 @@ async function drawn(page: Page, testid: string, label: string): Promise<void> {
 }
 
 describe.skipIf(reason !== null)('what the app draws, in Chromium', () => {
-  let harness: Harness;
-  const visits: Visit[] = [];
-
-  beforeAll(async () => {
-    harness = await startHarness();
-  }, 180_000);
-
-  afterAll(async () => {
-    await harness?.close();
-  });
-
-  async function fresh(): Promise<Visit> {
-    const v = await visit(harness);
-    visits.push(v);
-    await v.page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement).disabled, undefined, { timeout: 30_000 });
-    return v;
-  }
+  const harness = useHarness();
+  const fresh = (): Promise<Visit> => openReady(harness());
 
   it('draws sample k of the waveform over [k dt, (k+1) dt), on an axis that ends with the pulse', async () => {
     const { page } = await fresh();
@@ -260,20 +239,30 @@ describe.skipIf(reason !== null)('what the app draws, in Chromium', () => {
     await screenshot(page, 'display-05-region');
   }, 120_000);
 
-  it('looks right in light and dark, at 1440 and 800 px wide: waveform, robustness, design after a run', async () => {
+  it('ends the axes of the cuts with the map\'s region (±12 % for the ion demo, not ±15 %)', async () => {
+    const { page } = await fresh();
+    await page.locator('#demo-picker').selectOption('ion-x180');
+    await page.getByTestId('notice-action').waitFor();
+    await openPulse(page, 'spike.json', SPIKE);
+    await page.keyboard.press('Alt+3');
+    // The ion demo's region: twice its ±5 kHz, and its Gaussian 2 % to the last of 5 Gauss-Hermite nodes, 2.857 sigma, doubled and rounded up: ±12 %.
+    await page.waitForFunction(() => /points in/.test(document.querySelector('[data-testid=map-status]')?.textContent ?? ''), undefined, { timeout: 30_000 });
+    await drawn(page, 'cut-amplitude', 'spike.json');
+    const amplitude = await xAxis(page, 'cut-amplitude');
+    expect([amplitude.min, amplitude.max, amplitude.title]).toEqual([-12, 12, 'amplitude error ε (%)']);
+    const detuning = await xAxis(page, 'cut-detuning');
+    expect([detuning.min, detuning.max, detuning.title]).toEqual([-10, 10, 'detuning Δ (kHz)']);
+    // The threshold line spans the same cut.
+    expect((await seriesData(page, 'cut-amplitude', 'threshold')).map((p) => p.x)).toEqual([-12, 12]);
+  }, 120_000);
+
+  it('looks right in light and dark, at 1440 and 800 px wide: waveform and robustness (the design view after a run: convergence.test.ts)', async () => {
     for (const [name, key] of [['display-06-waveform', 'Alt+2'], ['display-07-robustness', 'Alt+3']] as const) {
-      await screenshotsEverywhere(harness.browser, harness, name, async (page) => {
-        await page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement).disabled, undefined, { timeout: 30_000 });
+      await screenshotsEverywhere(harness(), name, async (page) => {
         await openPulse(page, 'spike.json', SPIKE);
         await page.keyboard.press(key);
         await page.waitForTimeout(1200);
       });
     }
-    await screenshotsEverywhere(harness.browser, harness, 'display-08-design', async (page) => {
-      await page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement).disabled, undefined, { timeout: 30_000 });
-      await page.getByTestId('run').click();
-      await page.waitForFunction(() => /^done/.test(document.querySelector('[data-testid=run-status]')?.textContent ?? ''), undefined, { timeout: 90_000 });
-      await page.waitForTimeout(800);
-    });
   }, 300_000);
 });

@@ -4,25 +4,12 @@
 // by keyboard, a visible focus on every Tab stop (WCAG 2.2, 2.4.7 Focus Visible), and text
 // contrast of at least 4.5:1, or 3:1 for large text (WCAG 2.2, 1.4.3 Contrast (Minimum)),
 // computed from the page's own computed styles in both colour schemes.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
-import { runToEnd, screenshot, skipReason, startHarness, type Harness } from './harness.ts';
+import { runToEnd, screenshot, skipReason, type Visit } from './harness.ts';
+import { FAST_LOBE, FAST_TRANSMON, openPulse, openReady, useHarness } from './screens.ts';
 
 const reason = skipReason();
-/** Errors any page reported (console errors and uncaught exceptions). */
-const errors: string[] = [];
-
-/** Opens the app at a window size and colour scheme, ready to run. */
-async function openAt(harness: Harness, width: number, scheme: 'light' | 'dark' = 'light'): Promise<Page> {
-  const context = await harness.browser.newContext({ viewport: { width, height: 900 }, colorScheme: scheme });
-  const page = await context.newPage();
-  page.on('console', (m) => m.type() === 'error' && errors.push(m.text()));
-  page.on('pageerror', (e) => errors.push(String(e)));
-  await page.goto(harness.url);
-  await page.getByTestId('run').waitFor();
-  await page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement).disabled);
-  return page;
-}
 
 /**
  * Text elements whose contrast is below the WCAG AA minimum: the colour of each visible text
@@ -122,19 +109,20 @@ async function invisibleStops(page: Page, limit = 160): Promise<{ stops: number;
 }
 
 describe.skipIf(reason !== null)('layout and keyboard', () => {
-  let harness: Harness;
+  const harness = useHarness();
+  /** Every page opened: their console errors and uncaught exceptions are checked at the end. */
+  const visits: Visit[] = [];
 
-  beforeAll(async () => {
-    harness = await startHarness();
-  }, 180_000);
-
-  afterAll(async () => {
-    await harness?.close();
-  });
+  /** Opens the app in a 900 px high window of this width and colour scheme, ready to run. */
+  async function openAt(width: number, scheme: 'light' | 'dark' = 'light'): Promise<Page> {
+    const opened = await openReady(harness(), { width, height: 900, scheme });
+    visits.push(opened);
+    return opened.page;
+  }
 
   it('at 800 px, Run and the live result are on screen together, and Compare does not scroll sideways', async () => {
     for (const scheme of ['light', 'dark'] as const) {
-      const page = await openAt(harness, 800, scheme);
+      const page = await openAt(800, scheme);
       const run = (await page.getByTestId('run').boundingBox())!;
       const chart = (await page.getByTestId('convergence-chart').boundingBox())!;
       // Both inside the 900 px high window, without scrolling.
@@ -159,8 +147,35 @@ describe.skipIf(reason !== null)('layout and keyboard', () => {
     }
   }, 180_000);
 
+  it('starts the spec column level with the views at 1440 px (robustness view of a transmon), and keeps it in the window as the page scrolls', async () => {
+    // A 700 px high window: the page is well over twice as high, so the column can keep to the window.
+    const { page, context } = await openReady(harness(), { height: 700, hash: `#spec=${encodeURIComponent(FAST_TRANSMON)}` });
+    await openPulse(page, 'lobe.json', FAST_LOBE);
+    await page.keyboard.press('Alt+3');
+    await page.waitForFunction(() => /points in/.test(document.querySelector('[data-testid=map-status]')?.textContent ?? ''), undefined, { timeout: 60_000 });
+    await page.getByTestId('leakage-heatmap').waitFor();
+    /** Tops of the spec column and of the views panel, in page coordinates, and the spec column's top in the window. */
+    const tops = () =>
+      page.evaluate(() => {
+        const top = (selector: string) => document.querySelector(selector)!.getBoundingClientRect().top;
+        return { spec: top('main > aside') + scrollY, views: top('main > .views') + scrollY, specInWindow: top('main > aside') };
+      });
+    const level = await tops();
+    expect(Math.abs(level.spec - level.views)).toBeLessThanOrEqual(1);
+    // Scrolled 40 px past the columns' tops: the spec stays in the window (8 px from its top), the views move on.
+    const by = Math.round(level.spec) + 40;
+    await page.evaluate((y) => scrollTo(0, y), by);
+    const scrolled = await tops();
+    expect(await page.evaluate(() => scrollY)).toBe(by);
+    expect(scrolled.specInWindow).toBeCloseTo(8, 0);
+    // A full-page image shows the columns as laid out, level, and leaves the column sticky after.
+    await screenshot(page, 'layout-1440-robustness-scrolled');
+    expect(await page.evaluate(() => getComputedStyle(document.querySelector('main > aside')!).position)).toBe('sticky');
+    await context.close();
+  }, 120_000);
+
   it('moves between tabs with the arrow keys, Home and End, as one Tab stop', async () => {
-    const page = await openAt(harness, 1440);
+    const page = await openAt(1440);
     await page.locator('#tab-design').focus();
     const selected = () => page.evaluate(() => [document.querySelector('[role=tab][aria-selected=true]')?.id, document.activeElement?.id]);
     await page.keyboard.press('ArrowRight');
@@ -181,7 +196,7 @@ describe.skipIf(reason !== null)('layout and keyboard', () => {
   }, 120_000);
 
   it('reads out the map point by point from the keyboard', async () => {
-    const page = await openAt(harness, 1440);
+    const page = await openAt(1440);
     await page.getByTestId('run').click();
     await runToEnd(page);
     await page.keyboard.press('Alt+3');
@@ -224,7 +239,7 @@ describe.skipIf(reason !== null)('layout and keyboard', () => {
   }, 120_000);
 
   it('gives every Tab stop a visible focus, in every view', async () => {
-    const page = await openAt(harness, 1440);
+    const page = await openAt(1440);
     await page.getByTestId('run').click();
     await runToEnd(page);
     for (let view = 1; view <= 7; view++) {
@@ -239,7 +254,7 @@ describe.skipIf(reason !== null)('layout and keyboard', () => {
 
   it('meets WCAG AA contrast for text and placeholders in both colour schemes, in every view', async () => {
     for (const scheme of ['light', 'dark'] as const) {
-      const page = await openAt(harness, 1440, scheme);
+      const page = await openAt(1440, scheme);
       await page.getByTestId('run').click();
       await runToEnd(page);
       await page.locator('details summary', { hasText: 'Spec JSON' }).click();
@@ -253,6 +268,6 @@ describe.skipIf(reason !== null)('layout and keyboard', () => {
   }, 180_000);
 
   it('left no error in the console of any page', () => {
-    expect(errors).toEqual([]);
+    expect(visits.flatMap((v) => v.consoleErrors)).toEqual([]);
   });
 });

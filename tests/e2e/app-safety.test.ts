@@ -6,37 +6,20 @@
 import { mkdtemp, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
-import { runToEnd, screenshot, skipReason, startHarness, typeInto, visit, type Harness, type Visit } from './harness.ts';
-import { screenshotsEverywhere } from './screens.ts';
+import { runEnabled, runToEnd, screenshot, skipReason, typeInto, type Visit } from './harness.ts';
+import { openReady, screenshotsEverywhere, useHarness } from './screens.ts';
 
 const reason = skipReason();
 if (reason) console.warn(`browser tests skipped: ${reason}`);
 
-const runEnabled = (page: Page) => page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement).disabled, undefined, { timeout: 30_000 });
 const runDisabled = (page: Page) => page.waitForFunction(() => (document.querySelector('[data-testid=run]') as HTMLButtonElement).disabled, undefined, { timeout: 30_000 });
 const value = (page: Page, selector: string) => page.locator(selector).inputValue();
 
 describe.skipIf(reason !== null)('what the app lets slip, in Chromium', () => {
-  let harness: Harness;
-  const visits: Visit[] = [];
-
-  beforeAll(async () => {
-    harness = await startHarness();
-  }, 180_000);
-
-  afterAll(async () => {
-    for (const v of visits) await v.context.close().catch(() => undefined);
-    await harness?.close();
-  });
-
-  async function fresh(): Promise<Visit> {
-    const v = await visit(harness);
-    visits.push(v);
-    await runEnabled(v.page);
-    return v;
-  }
+  const harness = useHarness();
+  const fresh = (): Promise<Visit> => openReady(harness());
 
   it('merges a partial JSON spec, and undoes and redoes it, a demo and a removed pulse', async () => {
     const { page } = await fresh();
@@ -232,16 +215,16 @@ describe.skipIf(reason !== null)('what the app lets slip, in Chromium', () => {
   }, 120_000);
 
   it('looks right in light and dark, at 1440 and 800 px wide', async () => {
-    await screenshotsEverywhere(harness.browser, harness, 'safety-06-form', async (page) => {
+    await screenshotsEverywhere(harness(), 'safety-06-form', async (page) => {
       await runEnabled(page);
       await page.locator('#demo-picker').selectOption('ion-x180');
       await page.getByTestId('notice-action').waitFor();
-      // Two warnings (a 2 GHz drive; 40 us / 120 = 333.33 ns, not whole periods of 1 GS/s) and text that does not read.
+      // Two warnings (a 2 GHz drive; an angle beyond 720°) and text that does not read.
       await typeInto(page, '#f-rabi', '2 GHz');
-      await typeInto(page, '#f-segments', '120');
+      await typeInto(page, '#f-angle', '1000');
       await typeInto(page, '#f-seed', 'one');
       await page.locator('#f-rabi-warning').waitFor();
-      await page.locator('#f-segments-warning').waitFor();
+      await page.locator('#f-angle-warning').waitFor();
       await page.locator('#f-seed-error').waitFor();
     });
   }, 180_000);

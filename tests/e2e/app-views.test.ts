@@ -2,13 +2,14 @@
 // the sample table, the ensemble on the Bloch sphere, one pulse's map against another's,
 // the run's history after a reload, and help for every field. Screenshots of each view in
 // light and dark at 1440 and 800 px land in test-results/.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
-import type { BrowserContext, Page } from 'playwright-core';
+import type { Page } from 'playwright-core';
 import { demoSpec } from '../../src/app/demo.ts';
 import { parseSpec } from '../../src/core/spec.ts';
 import { pulsePropagator, spinorToBloch } from '../reference/oracle.ts';
-import { runToEnd, screenshot, skipReason, startHarness, type Harness } from './harness.ts';
+import { runToEnd, screenshot, skipReason, type Visit } from './harness.ts';
+import { openPulse, openReady, screenshotLooks, useHarness } from './screens.ts';
 
 const reason = skipReason();
 
@@ -16,50 +17,16 @@ const reason = skipReason();
 const pulseFile = (dt: number, i: number[], q: number[] = i.map(() => 0), name = 'pulse') => Buffer.from(JSON.stringify({ dt, i, q, metadata: { name } }));
 
 describe.skipIf(reason !== null)('views in Chromium', () => {
-  let harness: Harness;
-  const contexts: BrowserContext[] = [];
-  /** Errors any page reported (console errors and uncaught exceptions). */
-  const errors: string[] = [];
+  const harness = useHarness();
+  /** Every page opened: their console errors and uncaught exceptions are checked at the end. */
+  const visits: Visit[] = [];
 
-  beforeAll(async () => {
-    harness = await startHarness();
-  }, 180_000);
-
-  afterAll(async () => {
-    for (const c of contexts) await c.close().catch(() => undefined);
-    await harness?.close();
-  });
-
-  async function open(width = 1440, scheme: 'light' | 'dark' = 'light', context?: BrowserContext): Promise<Page> {
-    const ctx = context ?? (await harness.browser.newContext({ viewport: { width, height: 1000 }, colorScheme: scheme, acceptDownloads: true }));
-    if (!context) contexts.push(ctx);
-    const page = await ctx.newPage();
-    page.on('console', (m) => m.type() === 'error' && errors.push(m.text()));
-    page.on('pageerror', (e) => errors.push(String(e)));
-    await page.goto(harness.url);
-    await page.getByTestId('run').waitFor();
-    await page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement).disabled);
-    return page;
+  async function open(): Promise<Page> {
+    const opened = await openReady(harness());
+    visits.push(opened);
+    return opened.page;
   }
 
-  async function openPulse(page: Page, name: string, buffer: Buffer): Promise<void> {
-    await page.getByTestId('open-pulse').setInputFiles({ name, mimeType: 'application/json', buffer });
-    await page.getByTestId('notice').filter({ hasText: `Opened ${name}` }).waitFor();
-  }
-
-  /** Screenshots of the current view in both schemes at 1440 and 800 px (the page is resized; the scheme emulated). */
-  async function everyLook(page: Page, name: string): Promise<void> {
-    for (const width of [1440, 800]) {
-      await page.setViewportSize({ width, height: 1000 });
-      for (const scheme of ['light', 'dark'] as const) {
-        await page.emulateMedia({ colorScheme: scheme });
-        await page.waitForTimeout(450);
-        await screenshot(page, `views-${name}-${width}-${scheme}`);
-      }
-    }
-    await page.setViewportSize({ width: 1440, height: 1000 });
-    await page.emulateMedia({ colorScheme: 'light' });
-  }
 
   it('draws the spectrum of a rectangular pulse: a sinc whose -3 dB points sit at ±0.442/T', async () => {
     const page = await open();
@@ -85,13 +52,13 @@ describe.skipIf(reason !== null)('views in Chromium', () => {
     expect(drawn).toBeGreaterThan(20);
     await page.locator('#s-span').selectOption('rate');
     await page.waitForTimeout(300);
-    await everyLook(page, 'spectrum');
+    await screenshotLooks(page, 'views-spectrum');
   }, 120_000);
 
   it('overlays the spectrum of the drive the qubit sees through the spec\'s line', async () => {
     const page = await open();
     const spec = JSON.parse(readFileSync('examples/transmon-x90-line.json', 'utf8'));
-    await page.goto(`${harness.url}#spec=${encodeURIComponent(JSON.stringify(spec))}`);
+    await page.goto(`${harness().url}#spec=${encodeURIComponent(JSON.stringify(spec))}`);
     await page.reload();
     await page.getByTestId('run').waitFor();
     await openPulse(page, 'rect.json', pulseFile(2e-9, new Array(100).fill(5e6)));
@@ -101,12 +68,12 @@ describe.skipIf(reason !== null)('views in Chromium', () => {
     expect(await page.getByTestId('spectrum-line').textContent()).toContain('through the line: 0.00 dB at its peak');
     await page.locator('#s-span').selectOption('rate');
     await page.waitForTimeout(500);
-    await everyLook(page, 'spectrum-line');
+    await screenshotLooks(page, 'views-spectrum-line');
   }, 120_000);
 
   it('lists the samples in a table to copy, sample k starting at k dt, paged for 100 000 samples', async () => {
     const page = await open();
-    await page.context().grantPermissions(['clipboard-read', 'clipboard-write'], { origin: new URL(harness.url).origin });
+    await page.context().grantPermissions(['clipboard-read', 'clipboard-write'], { origin: new URL(harness().url).origin });
     await openPulse(page, 'spike.json', pulseFile(10e-9, [0, 0, 0, 0, 5e6, 0, 0, 0, 0, 0]));
     await page.keyboard.press('Alt+2');
     await page.getByTestId('samples').locator('summary').click();
@@ -118,7 +85,7 @@ describe.skipIf(reason !== null)('views in Chromium', () => {
     await page.getByTestId('samples-status').filter({ hasText: 'Copied 10 samples' }).waitFor();
     const copied = await page.evaluate(() => navigator.clipboard.readText());
     expect(copied.split('\n')[5]).toBe('4\t40\t5\t0\t5\t0');
-    await everyLook(page, 'samples');
+    await screenshotLooks(page, 'views-samples');
 
     const n = 100_000;
     await openPulse(page, 'long.json', pulseFile(1e-9, Array.from({ length: n }, (_, k) => (k % 7) * 1e6)));
@@ -165,7 +132,7 @@ describe.skipIf(reason !== null)('views in Chromium', () => {
     expect(await bestOfTable()).toBe(best);
     expect(await page.getByTestId('restored-from').textContent()).toContain('transmon-x90 #1');
     await page.waitForTimeout(400);
-    await everyLook(page, 'restored');
+    await screenshotLooks(page, 'views-restored');
     // Saved as a project and opened in a fresh browser profile: the same table again.
     const download = page.waitForEvent('download');
     await page.keyboard.press('Control+s');
@@ -207,7 +174,7 @@ describe.skipIf(reason !== null)('views in Chromium', () => {
       });
     await page.waitForTimeout(200);
     const all = await colours();
-    await everyLook(page, 'bloch-all');
+    await screenshotLooks(page, 'views-bloch-all');
     await page.getByLabel('chosen members').check();
     await page.getByLabel('1: Δ = -1 MHz, ε = -10 %').check();
     await page.getByLabel('25: Δ = 1 MHz, ε = 10 %').check();
@@ -247,11 +214,11 @@ describe.skipIf(reason !== null)('views in Chromium', () => {
         return { orange, blue, red };
       }, testid);
     expect((await pixels('heatmap')).orange).toBeGreaterThan(50);
-    await everyLook(page, 'versus-contour');
+    await screenshotLooks(page, 'views-versus-contour');
     await page.getByLabel('side by side').check();
     await page.getByTestId('heatmap-other').waitFor();
     await page.waitForTimeout(500);
-    await everyLook(page, 'versus-side');
+    await screenshotLooks(page, 'views-versus-side');
     await page.getByLabel('ratio of infidelities').check();
     await page.waitForTimeout(500);
     const ratio = await pixels('heatmap');
@@ -267,7 +234,7 @@ describe.skipIf(reason !== null)('views in Chromium', () => {
     // The factor is the ratio of the two infidelities shown (to their three digits).
     expect(Number(m![4]) / Math.max(a / b, b / a)).toBeCloseTo(1, 1);
     expect(m![3]).toBe(a < b ? 'BB1' : expect.stringContaining('transmon'));
-    await everyLook(page, 'versus-ratio');
+    await screenshotLooks(page, 'views-versus-ratio');
   }, 150_000);
 
   it('gives help for every field (meaning, unit, typical value) and opens the documentation at it', async () => {
@@ -307,7 +274,7 @@ describe.skipIf(reason !== null)('views in Chromium', () => {
     await page.locator('#f-rabi').focus();
     await page.waitForTimeout(100);
     expect(await page.getByTestId('field-help').textContent()).toContain('Peak Rabi: Largest drive amplitude');
-    await everyLook(page, 'help');
+    await screenshotLooks(page, 'views-help');
     // F1 on a field opens the documentation at the section that says more.
     await page.locator('#f-rabi').focus();
     await page.keyboard.press('F1');
@@ -323,12 +290,12 @@ describe.skipIf(reason !== null)('views in Chromium', () => {
     await dialog.locator('#the-design-spec').waitFor();
     await dialog.getByRole('tab', { name: 'Every field' }).click();
     expect(await dialog.locator('tbody tr').count()).toBeGreaterThan(60);
-    await everyLook(page, 'docs');
+    await screenshotLooks(page, 'views-docs');
     await dialog.getByRole('button', { name: 'Close' }).click();
     expect(await dialog.isVisible()).toBe(false);
   }, 150_000);
 
   it('left no error in the console of any page', () => {
-    expect(errors).toEqual([]);
+    expect(visits.flatMap((v) => v.consoleErrors)).toEqual([]);
   });
 });

@@ -10,7 +10,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import type { CliIO } from '../../src/cli/command.ts';
 import { main } from '../../src/cli/main.ts';
-import { runToEnd, screenshot, skipReason, startHarness, typeInto, visit, type Harness, type Visit } from './harness.ts';
+import { runToEnd, screenshot, skipReason, typeInto } from './harness.ts';
+import { FAST_LOBE, FAST_TRANSMON, openPulse, openReady, screenshotsEverywhere, useHarness } from './screens.ts';
 
 const reason = skipReason();
 if (reason) console.warn(`browser tests skipped: ${reason}`);
@@ -65,25 +66,20 @@ async function panelState(page: Page, state: string): Promise<void> {
 }
 
 describe.skipIf(reason !== null)('the export panel in Chromium', () => {
-  let harness: Harness;
+  const harness = useHarness();
   let dir: string;
-  const visits: Visit[] = [];
 
   beforeAll(async () => {
-    harness = await startHarness();
     dir = await mkdtemp(join(tmpdir(), 'gatesmith-e2e-export-'));
-  }, 180_000);
+  });
 
   afterAll(async () => {
-    await harness?.close();
     if (dir) await rm(dir, { recursive: true, force: true });
   });
 
   it('downloads exactly the bytes the command line writes for a designed pulse, in every format', async () => {
-    const v = await visit(harness);
-    visits.push(v);
+    const v = await openReady(harness());
     const { page } = v;
-    await page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement).disabled);
     await page.getByTestId('run').click();
     expect(await runToEnd(page)).toMatch(/^done/);
     await page.keyboard.press('Alt+6');
@@ -207,13 +203,12 @@ describe.skipIf(reason !== null)('the export panel in Chromium', () => {
     await page.waitForFunction(() => /points in/.test(document.querySelector('[data-testid=map-status]')?.textContent ?? ''), undefined, { timeout: 60_000 });
     await screenshot(page, 'e2e-export-03-map-of-export');
     expect(v.consoleErrors).toEqual([]);
+    await v.context.close();
   }, 240_000);
 
   it('shows an invalid field\'s message and a refused export clearly, and offers nothing to download', async () => {
-    const context = await harness.browser.newContext({ viewport: { width: 1440, height: 1000 }, acceptDownloads: true, colorScheme: 'dark' });
-    const v = await visit(harness, '', context);
-    visits.push(v);
-    const { page } = v;
+    const v = await openReady(harness(), { scheme: 'dark' });
+    const { page, context } = v;
     let downloads = 0;
     page.on('download', () => void downloads++);
     // An opened pulse of 100 samples of 2 ns with both quadratures, peaking at 9.2 MHz.
@@ -281,4 +276,42 @@ describe.skipIf(reason !== null)('the export panel in Chromium', () => {
     expect(v.consoleErrors).toEqual([]);
     await context.close();
   }, 120_000);
+
+  /** Opens the fast example with its lobe, in the export view. */
+  async function fastExport(page: Page): Promise<void> {
+    await openPulse(page, 'lobe.json', FAST_LOBE);
+    await page.keyboard.press('Alt+6');
+    await exported(page, '--sample-rate 2400000000');
+  }
+
+  it('exports at the rate of the instrument the spec describes, and warns at the sample period only about a rate the user types', async () => {
+    const { page, context, consoleErrors } = await openReady(harness(), { hash: `#spec=${encodeURIComponent(FAST_TRANSMON)}` });
+    // The spec form says nothing about the 416.67 ps period: the export follows it.
+    expect(await page.locator('#f-dt').inputValue()).toBe('416.667 ps');
+    expect(await page.locator('#f-dt-warning').count()).toBe(0);
+    await fastExport(page);
+    expect(await page.locator('#x-sample-rate').inputValue()).toBe('2.4 GHz');
+    expect(await page.locator('#x-sample-rate-hint').textContent()).toBe('1 sample per design sample of 416.667 ps');
+    // Another field edited: the rate still follows the spec.
+    await page.locator('#x-bits').selectOption('16');
+    await exported(page, '--bits 16');
+    expect(await page.getByTestId('export-command').textContent()).toContain('--sample-rate 2400000000');
+    // 1 GS/s typed: the period is 0.41667 of its sample periods, which the instrument cannot hold.
+    await typeInto(page, '#x-sample-rate', '1 GHz');
+    await page.keyboard.press('Alt+1');
+    await page.locator('#f-dt-warning').waitFor();
+    expect(await page.locator('#f-dt-warning').textContent()).toContain("416.67 ps is 0.41667 periods of the export's 1 GS/s");
+    // Defaults: the rate follows the spec again, and the warning goes.
+    await page.keyboard.press('Alt+6');
+    await page.getByRole('button', { name: 'Defaults' }).click();
+    await exported(page, '--sample-rate 2400000000');
+    await page.keyboard.press('Alt+1');
+    await page.waitForFunction(() => document.querySelector('#f-dt-warning') === null);
+    expect(consoleErrors).toEqual([]);
+    await context.close();
+  }, 120_000);
+
+  it('looks right in light and dark, at 1440 and 800 px wide: the fast example exported at 2.4 GS/s', async () => {
+    await screenshotsEverywhere(harness(), 'e2e-export-07-instrument-rate', fastExport, { hash: `#spec=${encodeURIComponent(FAST_TRANSMON)}` });
+  }, 180_000);
 });

@@ -83,9 +83,19 @@ export async function visit(harness: Harness, hash = '', context?: BrowserContex
   return { context: ctx, page, requests, consoleErrors };
 }
 
-/** Saves a full-page screenshot under test-results/. */
+/**
+ * Saves a full-page screenshot under test-results/. The spec column keeps to the window as the
+ * page scrolls (CSS sticky), so an image of the whole page taken scrolled down drew it lower
+ * than the views beside it; for the capture it stands where the page lays it out.
+ */
 export async function screenshot(page: Page, name: string): Promise<void> {
-  await page.screenshot({ path: join(SCREENSHOTS, `${name}.png`), fullPage: true });
+  const pin = (position: string) => page.evaluate((p) => document.querySelector<HTMLElement>('main > aside')?.style.setProperty('position', p), position);
+  await pin('static');
+  try {
+    await page.screenshot({ path: join(SCREENSHOTS, `${name}.png`), fullPage: true });
+  } finally {
+    await pin('');
+  }
 }
 
 /** Types into a text field as a user does (the field reads its text on every input). */
@@ -95,8 +105,20 @@ export async function typeInto(page: Page, selector: string, text: string): Prom
   await input.dispatchEvent('input');
 }
 
-/** Waits until the run status says the run ended, and returns it. */
+/**
+ * Waits until the run status says the run ended and, in the design view, until the
+ * convergence chart says it draws the ended run; returns the status.
+ */
 export async function runToEnd(page: Page, timeout = 90_000): Promise<string> {
   await page.waitForFunction(() => /^(done|stopped)/.test(document.querySelector('[data-testid=run-status]')?.textContent ?? ''), undefined, { timeout });
+  await page.waitForFunction(() => document.querySelector('[data-testid=convergence]')?.getAttribute('data-state') !== 'live', undefined, { timeout });
   return (await page.getByTestId('run-status').textContent()) ?? '';
+}
+
+/** Waits until Run can be pressed: the core is loaded and the spec checked. */
+export async function runEnabled(page: Page, timeout = 30_000): Promise<void> {
+  await page.waitForFunction(() => {
+    const run = document.querySelector<HTMLButtonElement>('[data-testid=run]');
+    return run !== null && !run.disabled;
+  }, undefined, { timeout });
 }

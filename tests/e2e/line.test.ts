@@ -2,23 +2,17 @@
 // oversampling checked by the library's own rule, the qubit's drive drawn over the
 // waveform, and the comparison with each pulse also without the line. Screenshots in
 // test-results/.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { runToEnd, screenshot, skipReason, startHarness, typeInto, visit, type Harness } from './harness.ts';
+import { describe, expect, it } from 'vitest';
+import { runEnabled, runToEnd, screenshot, skipReason, typeInto } from './harness.ts';
+import { openReady, useHarness } from './screens.ts';
 
 const reason = skipReason();
 
 describe.skipIf(reason !== null)('the line in the app', () => {
-  let harness: Harness;
-  beforeAll(async () => {
-    harness = await startHarness();
-  }, 180_000);
-  afterAll(async () => {
-    await harness?.close();
-  });
+  const harness = useHarness();
 
   it('designs through a 300 MHz Gaussian line, draws the drive the qubit sees and compares with and without the line', async () => {
-    const { page, consoleErrors } = await visit(harness);
-    await page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement).disabled);
+    const { page, consoleErrors } = await openReady(harness());
     await page.locator('#f-line').selectOption('gaussian');
     expect(await page.locator('#f-line-bw').inputValue()).toBe('300 MHz');
     // Source: the spec's rule for line.oversample (an integer from 1 to 64), in the library's words.
@@ -27,7 +21,7 @@ describe.skipIf(reason !== null)('the line in the app', () => {
     expect(await page.getByTestId('run').isDisabled()).toBe(true);
     await typeInto(page, '#f-line-os', '4');
     await typeInto(page, '#f-iterations', '150');
-    await page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement).disabled);
+    await runEnabled(page);
     await page.getByTestId('run').click();
     expect(await runToEnd(page, 120_000)).toMatch(/^done/);
 

@@ -2,8 +2,10 @@
 // the rectangular pulse's duration rounded up to whole samples, draws every duration tried,
 // and adds the winner to the pulse list. Screenshots (light and dark, 1440 and 800 px) in
 // test-results/.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { screenshot, skipReason, startHarness, typeInto, visit, type Harness } from './harness.ts';
+import { describe, expect, it } from 'vitest';
+import type { Page } from 'playwright-core';
+import { skipReason, typeInto } from './harness.ts';
+import { openReady, screenshotLooks, useHarness } from './screens.ts';
 
 const reason = skipReason();
 
@@ -15,20 +17,47 @@ const rectSpec = {
   optimizer: { starts: 2, seed: 3, maxIterations: 300 },
 };
 
+/**
+ * The notes over the design view's empty charts (convergence, live waveform, shortest): each
+ * with its text, whether it covers its chart's whole box, and whether its background is opaque
+ * (so that no axis title of the empty chart runs through the text).
+ */
+function emptyNotes(page: Page): Promise<Array<{ text: string; covers: boolean; opaque: boolean; fits: boolean }>> {
+  return page.evaluate(() =>
+    [...document.querySelectorAll('#view-panel canvas')].flatMap((canvas) => {
+      // The note is laid over the chart by the nearest box holding both.
+      let note: Element | null = null;
+      for (let box = canvas.parentElement; box && !note; box = box.parentElement) note = box.querySelector(':scope > p.empty');
+      if (!note) return [];
+      const n = note.getBoundingClientRect();
+      const c = canvas.getBoundingClientRect();
+      const alpha = /rgba\([^)]*,\s*([\d.]+)\)/.exec(getComputedStyle(note).backgroundColor)?.[1];
+      return [{
+        text: note.textContent?.trim() ?? '',
+        covers: n.left <= c.left + 0.5 && n.top <= c.top + 0.5 && n.right >= c.right - 0.5 && n.bottom >= c.bottom - 0.5,
+        opaque: alpha === undefined && getComputedStyle(note).backgroundColor !== 'transparent',
+        fits: note.scrollWidth <= note.clientWidth + 1 && note.scrollHeight <= note.clientHeight + 1,
+      }];
+    }),
+  );
+}
+
 describe.skipIf(reason !== null)('the shortest run in the app', () => {
-  let harness: Harness;
-  beforeAll(async () => {
-    harness = await startHarness();
-  }, 180_000);
-  afterAll(async () => {
-    await harness?.close();
-  });
+  const harness = useHarness();
+
+  it('lays the note of an empty chart over the whole chart, so that no axis title runs through it (800 and 1440 px)', async () => {
+    for (const width of [800, 1440]) {
+      const { page, context } = await openReady(harness(), { width, scheme: 'dark' });
+      const notes = await emptyNotes(page);
+      expect(notes.map((n) => n.text.slice(0, 20))).toEqual(['No run yet: the mean', 'Press Run (Ctrl+Ente', 'Each duration tried ']);
+      for (const n of notes) expect(n, n.text).toMatchObject({ covers: true, opaque: true, fits: true });
+      await context.close();
+    }
+  }, 120_000);
 
   for (const scheme of ['light', 'dark'] as const) {
     it(`finds theta / (2 pi rabiMax) rounded up to whole samples, draws the curve and adds the pulse (${scheme})`, async () => {
-      const context = await harness.browser.newContext({ viewport: { width: 1440, height: 1000 }, colorScheme: scheme });
-      const { page, consoleErrors } = await visit(harness, `#spec=${encodeURIComponent(JSON.stringify(rectSpec))}`, context);
-      await page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement).disabled);
+      const { page, context, consoleErrors } = await openReady(harness(), { scheme, hash: `#spec=${encodeURIComponent(JSON.stringify(rectSpec))}` });
 
       // A goal out of range is named in the user's words and blocks the run.
       await typeInto(page, '#f-goal-mean', '2');
@@ -54,11 +83,7 @@ describe.skipIf(reason !== null)('the shortest run in the app', () => {
       expect(tried).toContain(13);
       expect(tried).toContain(100); // the search starts at the spec's own length
       expect(tried).toEqual([...tried].sort((a, b) => a - b));
-      await page.waitForTimeout(400);
-      await screenshot(page, `e2e-shortest-${scheme}-1440`);
-      await page.setViewportSize({ width: 800, height: 1000 });
-      await page.waitForTimeout(400);
-      await screenshot(page, `e2e-shortest-${scheme}-800`);
+      await screenshotLooks(page, 'e2e-shortest', [scheme]);
 
       // The winner is in the pulse list, its name saying its duration.
       await page.keyboard.press('Alt+2');

@@ -4,12 +4,13 @@
 // subspace-average leakage is the map's value at the member. Screenshots (light and dark,
 // 1440 and 800 px) in test-results/.
 import { readFileSync } from 'node:fs';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import { robustnessMap } from '../../src/core/api.ts';
 import { parseSpec } from '../../src/core/spec.ts';
 import { formatFigure } from '../../src/app/units.ts';
-import { screenshot, skipReason, startHarness, typeInto, visit, type Harness } from './harness.ts';
+import { screenshot, skipReason, typeInto } from './harness.ts';
+import { openPulse, openReady, useHarness } from './screens.ts';
 
 const reason = skipReason();
 const spec = JSON.parse(readFileSync(new URL('../../examples/transmon-x180-fast.json', import.meta.url), 'utf8')) as Record<string, unknown>;
@@ -34,21 +35,14 @@ async function readCentre(page: Page, testid: string): Promise<string> {
 }
 
 describe.skipIf(reason !== null)('a transmon spec in the app', () => {
-  let harness: Harness;
-  beforeAll(async () => {
-    harness = await startHarness();
-  }, 180_000);
-  afterAll(async () => {
-    await harness?.close();
-  });
+  const harness = useHarness();
 
   for (const [scheme, width] of [['light', 1440], ['dark', 800], ['dark', 1440], ['light', 800]] as const) {
     it(`maps infidelity and leakage on the ladder and plots the populations (${scheme}, ${width} px)`, async () => {
-      const context = await harness.browser.newContext({ viewport: { width, height: 1000 }, colorScheme: scheme });
-      const { page, consoleErrors } = await visit(harness, `#spec=${encodeURIComponent(JSON.stringify(spec))}`, context);
+      const { page, context, consoleErrors } = await openReady(harness(), { width, scheme, hash: `#spec=${encodeURIComponent(JSON.stringify(spec))}` });
       await page.waitForFunction(() => (document.querySelector('#f-levels') as HTMLInputElement | null)?.value === '6');
-      await page.getByTestId('open-pulse').setInputFiles({ name: 'cosine.json', mimeType: 'application/json', buffer: Buffer.from(JSON.stringify(cosinePulse())) });
-      await page.getByTestId('notice').filter({ hasText: 'Opened cosine.json: 48 samples' }).waitFor();
+      await openPulse(page, 'cosine.json', cosinePulse());
+      expect(await page.getByTestId('notice').textContent()).toContain('Opened cosine.json: 48 samples');
 
       // An odd grid symmetric about zero: the centre cell is Δ = 0, ε = 0.
       await page.keyboard.press('Alt+3');

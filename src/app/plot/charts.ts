@@ -11,7 +11,8 @@ import {
   PointElement,
   Tooltip,
 } from 'chart.js';
-import { engineeringUnit, type Quantity } from '../units.ts';
+import type { TooltipItem } from 'chart.js';
+import { engineeringUnit, formatFigure, type Quantity } from '../units.ts';
 
 Chart.register(LineController, LineElement, PointElement, LinearScale, LogarithmicScale, Tooltip, Legend, Decimation);
 Chart.defaults.animation = false;
@@ -125,6 +126,48 @@ export function drawInFrame(draw: () => void): void {
   }
 }
 
+/**
+ * Redraws a chart on its own clock: while data streams in, at most once every `gapMs` (about
+ * four a second: live enough to watch, cheap enough to leave the page responsive); asked
+ * `soon`, in the next frame, so that the last state of a run is never left a redraw behind.
+ */
+export class Redraw {
+  private pending = false;
+  private last = 0;
+  private timer: ReturnType<typeof setTimeout> | null = null;
+
+  constructor(
+    private readonly draw: () => void,
+    private readonly gapMs = 250,
+  ) {}
+
+  /** Asks for a redraw: after the gap, or `soon` (the next frame). */
+  request(soon = false): void {
+    if (soon && this.timer !== null) {
+      clearTimeout(this.timer);
+      this.timer = null;
+      drawInFrame(this.run);
+      return;
+    }
+    if (this.pending) return;
+    this.pending = true;
+    if (soon) {
+      drawInFrame(this.run);
+      return;
+    }
+    this.timer = setTimeout(() => {
+      this.timer = null;
+      drawInFrame(this.run);
+    }, Math.max(0, this.gapMs - (performance.now() - this.last)));
+  }
+
+  private readonly run = (): void => {
+    this.pending = false;
+    this.last = performance.now();
+    this.draw();
+  };
+}
+
 /** Tick and grid colours of the theme for one axis. */
 export function axisStyle(colours = theme()): { ticks: { color: string }; grid: { color: string } } {
   return { ticks: { color: colours.muted }, grid: { color: colours.grid } };
@@ -196,6 +239,23 @@ export function logTick(value: number | string): string {
   const v = Number(value);
   const exponent = Math.log10(v);
   return Math.abs(exponent - Math.round(exponent)) < 1e-9 ? `1e${Math.round(exponent)}` : '';
+}
+
+/** A y axis of infidelity 1 − F on a log scale up to 1, with decade ticks, for `lineChart`. */
+export function infidelityAxis(yTitle: string, colours = theme()): Pick<LineChartSpec, 'yTitle' | 'yType' | 'y'> {
+  return { yTitle, yType: 'logarithmic', y: { max: 1, ticks: { color: colours.muted, callback: logTick, autoSkip: true } } };
+}
+
+/** Tooltips that read a point of an infidelity chart: "series: 1.2e-4" and where it is (`at(x)`). */
+export function infidelityTooltip(at: (x: number) => string): Record<string, unknown> {
+  return {
+    callbacks: {
+      label: (item: TooltipItem<'line'>) => {
+        const point = item.raw as { x: number; y: number };
+        return `${item.dataset.label}: ${formatFigure(point.y)} ${at(point.x)}`;
+      },
+    },
+  };
 }
 
 /** One curve of a cut chart: values along an error axis (Hz or relative) and their infidelities. */

@@ -35,7 +35,7 @@ const STOP_WORDS: Record<StopReason, string> = {
   stopped: 'stopped',
   'line-search-failed': 'no further descent (line search)',
   stalled: 'progress stalled',
-  pruned: 'set aside after the first iterations',
+  pruned: 'pruned: set aside after the first iterations',
   outpaced: 'could not overtake the best start',
 };
 

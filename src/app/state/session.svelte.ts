@@ -23,7 +23,7 @@ import {
 } from '../project.ts';
 import type { RunHistory } from '../run-history.ts';
 import { setAt, type SpecJson } from '../spec-edit.ts';
-import { DEFAULT_SAMPLE_RATE } from '../export-form.ts';
+import { exportSampleRate } from '../export-form.ts';
 import { inFormWords, specLimits, type FieldNoteText } from '../spec-limits.ts';
 import { isoTimestamp, roundUpTwoDigits } from '../units.ts';
 
@@ -357,9 +357,14 @@ export class Session {
   }
 
   private specChanged(): void {
+    this.recheck();
+    this.changed();
+  }
+
+  /** Validates the spec again shortly (edits in quick succession are checked once). */
+  private recheck(): void {
     if (this.checkTimer) clearTimeout(this.checkTimer);
     this.checkTimer = setTimeout(() => void this.validate(), 60);
-    this.changed();
   }
 
   /** Validates the current spec with the library (results of older edits are dropped). */
@@ -372,7 +377,8 @@ export class Session {
     let warnings: FieldNoteText[] = [];
     if (check.ok) {
       // What the core cannot compute never reaches it: the spec counts as invalid.
-      const limits = specLimits(check.problem, this.settings.export?.sampleRate ?? DEFAULT_SAMPLE_RATE);
+      // The period is judged against a rate the user chose; by default the export follows the spec.
+      const limits = specLimits(check.problem, exportSampleRate(this.settings.export, check.problem.dt));
       warnings = limits.warnings;
       const refusal = limits.refusals[0];
       if (refusal) check = { ok: false, error: { name: 'SpecError', message: refusal.message, field: refusal.field } };
@@ -439,6 +445,8 @@ export class Session {
   /** Replaces some view settings. */
   updateSettings(patch: Partial<ViewSettings>): void {
     this.settings = { ...this.settings, ...patch };
+    // The spec form judges its sample period by the export's rate: a rate typed or reset is judged at once.
+    if ('export' in patch) this.recheck();
     this.changed();
   }
 
