@@ -14,6 +14,13 @@ import { Problem, BOUND_BOX } from './problem';
 import { driveForward, driveTranspose, drivePenalty } from './drive';
 import { systemFigure, systemGradient } from './system';
 
+/**
+ * The figure and gradient of p's drive from member shares, summed in share order into
+ * p.gradDriveI/Q (src/core/member-split.ts); the weighted mean returned.
+ */
+@external("env", "memberShares")
+declare function memberShares(p: usize): f64;
+
 const TANH_CAP: f64 = 1.0 - 8.881784197001252e-16;
 
 /** tanh(r)/r, with its series below r = 0.01 (terms to r^8; error below 1e-18). */
@@ -111,7 +118,7 @@ export function objective(ptr: usize, xPtr: usize, gPtr: usize): f64 {
   const p = changetype<Problem>(ptr);
   controlsFromVariables(ptr, xPtr);
   driveForward(p);
-  const fig = systemGradient(p);
+  const fig = p.shares != 0 ? memberShares(ptr) : systemGradient(p);
   p.infidelity = fig;
   // The drive's own penalty acts on d/d(drive), so it joins before the transpose.
   const drivePen = drivePenalty(p);

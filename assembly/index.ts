@@ -3,7 +3,7 @@
 // Every job works on a problem block (problem.ts) reached by a pointer.
 
 export { arenaReset, arenaAlloc, arenaRelease, arenaUsed } from './memory';
-export { problemCreate, problemFree, problemBuffer } from './problem';
+export { problemCreate, problemFree, problemBuffer, problemSetShares } from './problem';
 export {
   problemFigure, problemGradient, problemDrive, problemInfidelity, problemVariables, problemSeries,
   controlsFromVariables, objective,

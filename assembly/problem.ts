@@ -30,7 +30,8 @@ export const BOUND_BOX: i32 = 2;
   nVar: i32;
   series: i32;
   held: i32;
-  _pad: i32;
+  /** Non-zero: the design's figure and gradient come from member shares (JavaScript's memberShares). */
+  shares: i32;
   dt: f64;
   driveDt: f64;
   rabiMax: f64;
@@ -121,6 +122,15 @@ export function problemCreate(
   return ptr;
 }
 
+/**
+ * Let the design objective of block p take its figure and gradient from member shares: the
+ * import memberShares(p) (src/core/member-split.ts) evaluates them, in this core or on other
+ * threads, and sums them in a fixed order into p.gradDriveI/Q.
+ */
+export function problemSetShares(ptr: usize, on: bool): void {
+  changetype<Problem>(ptr).shares = on ? 1 : 0;
+}
+
 /** Free a held problem block (a block of a short job goes with the job's release). */
 export function problemFree(ptr: usize): void {
   if (changetype<Problem>(ptr).held != 0) arenaDrop(ptr);
@@ -138,6 +148,8 @@ export const BUFFER_GRAD_Q: i32 = 7;
 export const BUFFER_DRIVE_I: i32 = 8;
 export const BUFFER_DRIVE_Q: i32 = 9;
 export const BUFFER_DRIVE_DATA: i32 = 10;
+export const BUFFER_GRAD_DRIVE_I: i32 = 11;
+export const BUFFER_GRAD_DRIVE_Q: i32 = 12;
 
 /** Pointer to one of the block's arrays (BUFFER_*), 0 for an unknown one. */
 export function problemBuffer(ptr: usize, which: i32): usize {
@@ -154,6 +166,8 @@ export function problemBuffer(ptr: usize, which: i32): usize {
     case BUFFER_DRIVE_I: return p.driveI;
     case BUFFER_DRIVE_Q: return p.driveQ;
     case BUFFER_DRIVE_DATA: return p.driveData;
+    case BUFFER_GRAD_DRIVE_I: return p.gradDriveI;
+    case BUFFER_GRAD_DRIVE_Q: return p.gradDriveQ;
     default: return 0;
   }
 }

@@ -19,8 +19,20 @@
 @inline export function vmul(a: v128, b: v128): v128 { return f64x2.mul(a, b); }
 @inline export function vneg(a: v128): v128 { return f64x2.neg(a); }
 @inline export function vsplat(a: f64): v128 { return f64x2.splat(a); }
-/** a * b + c (two roundings, so results do not depend on the CPU's fused multiply-add). */
-@inline export function vmad(a: v128, b: v128, c: v128): v128 { return f64x2.add(f64x2.mul(a, b), c); }
+/**
+ * a * b + c. The portable build rounds twice, so results do not depend on the CPU; the
+ * fused build (compiled with relaxed SIMD, scripts/build.js) lets the engine fuse it into
+ * one rounding where the CPU can, which is faster and changes the last bits.
+ */
+@inline export function vmad(a: v128, b: v128, c: v128): v128 {
+  if (ASC_FEATURE_RELAXED_SIMD) return f64x2.relaxed_madd(a, b, c);
+  return f64x2.add(f64x2.mul(a, b), c);
+}
+/** c - a * b (fused in the fused build, like vmad). */
+@inline export function vnmad(a: v128, b: v128, c: v128): v128 {
+  if (ASC_FEATURE_RELAXED_SIMD) return f64x2.relaxed_nmadd(a, b, c);
+  return f64x2.sub(c, f64x2.mul(a, b));
+}
 /** Sum of both lanes. */
 @inline export function vsum(a: v128): f64 { return f64x2.extract_lane(a, 0) + f64x2.extract_lane(a, 1); }
 
@@ -208,17 +220,19 @@ export function halvings(amax: f64): i32 {
 }
 
 // Products of two SU(2) elements, a * b, one component each (read all inputs first).
+// Written with vmad and vnmad so that the fused build fuses half the multiplies; in the
+// portable build each is the same two roundings as (x y -+ z w), addition commuting.
 @inline export function qmulUr(aur: v128, aui: v128, avr: v128, avi: v128, bur: v128, bui: v128, bvr: v128, bvi: v128): v128 {
-  return vsub(vsub(vmul(aur, bur), vmul(aui, bui)), vadd(vmul(avr, bvr), vmul(avi, bvi)));
+  return vsub(vnmad(aui, bui, vmul(aur, bur)), vmad(avi, bvi, vmul(avr, bvr)));
 }
 @inline export function qmulUi(aur: v128, aui: v128, avr: v128, avi: v128, bur: v128, bui: v128, bvr: v128, bvi: v128): v128 {
-  return vsub(vadd(vmul(aur, bui), vmul(aui, bur)), vsub(vmul(avr, bvi), vmul(avi, bvr)));
+  return vsub(vmad(aui, bur, vmul(aur, bui)), vnmad(avi, bvr, vmul(avr, bvi)));
 }
 @inline export function qmulVr(aur: v128, aui: v128, avr: v128, avi: v128, bur: v128, bui: v128, bvr: v128, bvi: v128): v128 {
-  return vadd(vsub(vmul(avr, bur), vmul(avi, bui)), vadd(vmul(aur, bvr), vmul(aui, bvi)));
+  return vadd(vnmad(avi, bui, vmul(avr, bur)), vmad(aui, bvi, vmul(aur, bvr)));
 }
 @inline export function qmulVi(aur: v128, aui: v128, avr: v128, avi: v128, bur: v128, bui: v128, bvr: v128, bvi: v128): v128 {
-  return vadd(vadd(vmul(avr, bui), vmul(avi, bur)), vsub(vmul(aur, bvi), vmul(aui, bvr)));
+  return vadd(vmad(avi, bur, vmul(avr, bui)), vnmad(aui, bvr, vmul(aur, bvi)));
 }
 
 /** Tr(X Y) of two such elements (real): 2 (xur yur - xui yui - xvr yvr - xvi yvi). */

@@ -1,10 +1,11 @@
 // The benchmark: speed figures measured in one run, printed as a table (or one JSON
 // object with --json). Never a test: figures vary 10-30 % with the machine's load.
 //   npm run bench            table for people
-//   npm run bench -- --json  {"objectiveGradient": [...], "oneMember": [...], "ladder": [...], "dragCalibration": [...], "design": [...], "maps": [...], "line": {...}, "batch": {...}, "app": {...}}
+//   npm run bench -- --json  {"objectiveGradient": [...], "oneMember": [...], "ladder": [...], "dragCalibration": [...], "design": [...], "maps": [...], "line": {...}, "shares": {...}, "fused": [...], "batch": {...}, "app": {...}}
 //   npm run bench -- --no-app  without the browser figures (bench/app-bench.ts)
 //   npm run bench -- --no-batch  without the batch figures (bench/batch-bench.ts)
 //   npm run bench -- --no-command  without the command's start-up and Ctrl-C figures (bench/command-bench.ts)
+import { spawnSync } from 'node:child_process';
 import { readFileSync, readdirSync } from 'node:fs';
 import { design, evaluateMembers, robustnessMap } from '../src/core/api.ts';
 import { createBlock, freeBlock, setSamples } from '../src/core/block.ts';
@@ -21,6 +22,8 @@ import { ensembleGradient as oracleGradient, memberInfidelity } from '../tests/r
 import { appBenchmark, type AppFigures } from './app-bench.ts';
 import { batchBenchmark, type BatchFigures } from './batch-bench.ts';
 import { commandBenchmark, type CommandFigures } from './command-bench.ts';
+import { shareBenchmark } from './share-bench.ts';
+import { fusedTable, type FusedFigures } from './fused-bench.ts';
 
 const json = process.argv.includes('--json');
 const log = (text: string): void => {
@@ -177,6 +180,13 @@ for (const envelope of ['gaussian', 'cosine'] as const) {
   log(`${envelope.padEnd(9)} ${ms.toFixed(1).padStart(7)} ms   ${row.evaluations} evaluations   mean infidelity ${row.meanInfidelity.toExponential(2)}   leakage ${row.meanLeakage.toExponential(2)}`);
 }
 
+// 1d. The fused build against the portable one, in a child Node with relaxed SIMD on.
+log('');
+const fusedRun = spawnSync(process.execPath, ['--experimental-wasm-relaxed-simd', 'bin/run-ts.js', 'bench/fused-bench.ts', '--json'], { cwd: new URL('../', import.meta.url).pathname, encoding: 'utf8' });
+const fused: FusedFigures[] | null = fusedRun.status === 0 ? JSON.parse(fusedRun.stdout) : null;
+if (fusedRun.status !== 0) log(`fused build benchmark failed: ${fusedRun.stderr.split('\n')[0]}`);
+fusedTable(fused, log);
+
 // 2. Robustness maps (figure only).
 log('\nrobustness maps (figure only), medians');
 log('grid        segments   ms        ns per member-segment');
@@ -287,6 +297,10 @@ for (const file of readdirSync(exampleDir).filter((f) => f.endsWith('.json')).so
   log(`${row.name.padEnd(26)} ${row.withoutS.toFixed(3).padStart(9)}  ${row.withS.toFixed(3).padStart(7)}   ${row.meanWithout.toExponential(2)} / ${row.meanWith.toExponential(2)}`);
 }
 
+// 5b. Member shares of one evaluation on one thread and on two, and one-start designs.
+log('');
+const shares = await shareBenchmark(log);
+
 // 6. The compiled command: start-up against bare Node, Ctrl-C latency.
 let command: CommandFigures | null = null;
 if (!process.argv.includes('--no-command')) {
@@ -312,5 +326,5 @@ if (!process.argv.includes('--no-app')) {
 }
 
 if (json) {
-  process.stdout.write(JSON.stringify({ objectiveGradient, oneMember, ladder, dragCalibration, design: designs, maps, spectrum, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs }, line: { maps: lineMaps, crossover, designs: lineDesigns }, command, batch, app }) + '\n');
+  process.stdout.write(JSON.stringify({ objectiveGradient, oneMember, ladder, dragCalibration, design: designs, maps, spectrum, seriesAccuracy: { maxAbsInfidelityDifference: maxAbs }, line: { maps: lineMaps, crossover, designs: lineDesigns }, shares, fused, command, batch, app }) + '\n');
 }

@@ -1,7 +1,7 @@
 #!/usr/bin/env node
 // Builds what the package ships:
-//   wasm  assembly/ -> build/gatesmith.wasm (bin/unroll.js expands the kernel templates, then
-//         AssemblyScript, release target)
+//   wasm  assembly/ -> build/gatesmith.wasm and build/gatesmith-fused.wasm (bin/unroll.js
+//         expands the kernel templates, then AssemblyScript, release target, twice)
 //   lib   src/core, src/io, src/cli and the entries src/index.ts, src/node.ts -> dist/, ES
 //         modules with .d.ts files (tsc). tsc rewrites the sources' `.ts` import specifiers
 //         to `.js` in the JavaScript but not in the declarations, so they are rewritten here.
@@ -15,6 +15,13 @@ import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
 const root = fileURLToPath(new URL('..', import.meta.url));
+// The core's two builds from the same sources (src/core/wasm.ts CORE_FILES): portable (the
+// same bits on every engine) and fused (relaxed SIMD: a * b + c in one rounding where the
+// CPU can; assembly/su2.ts vmad).
+const WASM_BUILDS = [
+  { file: 'build/gatesmith.wasm', text: 'build/gatesmith.wat' },
+  { file: 'build/gatesmith-fused.wasm', text: 'build/gatesmith-fused.wat', enable: 'relaxed-simd' },
+];
 const require = createRequire(import.meta.url);
 const args = process.argv.slice(2);
 const ifStale = args.includes('--if-stale');
@@ -22,12 +29,15 @@ const parts = args.filter((a) => !a.startsWith('--'));
 
 for (const part of parts.length > 0 ? parts : ['wasm', 'lib']) {
   if (part === 'wasm') {
-    const wasm = join(root, 'build/gatesmith.wasm');
-    if (ifStale && newerThanSources(wasm, ['assembly', 'asconfig.json', 'bin/unroll.js'])) continue;
+    const sources = ['assembly', 'asconfig.json', 'bin/unroll.js'];
+    if (ifStale && WASM_BUILDS.every(({ file }) => newerThanSources(join(root, file), sources))) continue;
     // The kernel templates expand into assembly/generated/ first (bin/unroll.js).
     execFileSync(process.execPath, ['bin/unroll.js'], { stdio: 'inherit', cwd: root });
     const asc = join(require.resolve('assemblyscript/package.json'), '..', 'bin/asc.js');
-    execFileSync(process.execPath, [asc, 'assembly/index.ts', '--config', 'asconfig.json', '--target', 'release'], { stdio: 'inherit', cwd: root });
+    for (const { file, text, enable } of WASM_BUILDS) {
+      const args = [asc, 'assembly/index.ts', '--config', 'asconfig.json', '--target', 'release', '--outFile', file, '--textFile', text];
+      execFileSync(process.execPath, enable ? [...args, '--enable', enable] : args, { stdio: 'inherit', cwd: root });
+    }
   } else if (part === 'lib') {
     if (ifStale && newerThanSources(join(root, 'dist/index.js'), ['src/core', 'src/io', 'src/cli', 'src/index.ts', 'src/node.ts', 'tsconfig.build.json', 'tsconfig.json'])) continue;
     buildLib();

@@ -77,6 +77,11 @@ export const FIELD_HELP: Record<string, FieldHelp> = {
   'f-time': { label: 'Time limit', what: 'Wall-clock budget of the design (empty: none).', unit: 's (type 30 s, 2 min is 120 s; a bare number is s)', typical: '10 s-5 min', doc: SPEC('`optimizer`') },
   'f-gtol': { label: 'Gradient tol.', what: "A start stops once the gradient's largest component falls below this.", unit: 'a plain number', typical: '1e-12', doc: SPEC('`optimizer`') },
   'f-memory': { label: 'L-BFGS memory', what: 'Correction pairs the quasi-Newton step remembers.', unit: 'a whole number', typical: '12 (5-30)', doc: SPEC('`optimizer`') },
+  'f-arithmetic': {
+    label: 'Arithmetic',
+    what: 'Which build of the core designs: portable rounds every multiply and add alone, so the same spec gives the same pulse in every browser and on the command line; fused lets the browser join a × b + c into one rounding (relaxed SIMD), about 1.1 × faster for designs, and another last bit can lead the optimiser to another pulse. Where the browser cannot run it, the portable build runs; the pulse records which ran.',
+    unit: 'a choice', typical: 'portable', doc: SPEC('`optimizer`'),
+  },
   'f-spec-json': { label: 'Spec JSON', what: 'The whole spec as JSON, for what the form does not show (explicit member lists, weights, Gauss-Legendre nodes). Applied only when it parses.', unit: 'JSON: Hz and seconds', typical: 'as written by the form', doc: SPEC('The design spec') },
   'm-d-min': { label: 'Map detuning from', what: 'Lowest detuning of the robustness map.', unit: 'Hz (a bare number is MHz)', typical: 'twice the ensemble’s range', doc: ANALYSIS('Robustness analysis: maps, summary figures and comparisons') },
   'm-d-max': { label: 'Map detuning to', what: 'Highest detuning of the robustness map.', unit: 'Hz (a bare number is MHz)', typical: '2 MHz', doc: ANALYSIS('Robustness analysis: maps, summary figures and comparisons') },

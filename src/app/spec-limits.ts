@@ -46,6 +46,7 @@ export const FIELD_WORDS: Record<string, FieldWords> = {
   'optimizer.timeLimit': { label: 'Time limit', quantity: 'time' },
   'optimizer.gradientTolerance': { label: 'Gradient tol.', quantity: 'number' },
   'optimizer.memory': { label: 'L-BFGS memory', quantity: 'count' },
+  'optimizer.arithmetic': { label: 'Arithmetic', quantity: null },
   ...AXIS_WORDS('Detuning', 'frequency'),
   ...AXIS_WORDS('Amplitude error', 'relative'),
 };

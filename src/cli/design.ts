@@ -2,6 +2,8 @@
 // progress on stderr, prints the figures on stdout and writes the best pulse.
 import { availableParallelism } from 'node:os';
 import { ArgumentError } from '../core/errors.ts';
+import { memberShares } from '../core/member-split.ts';
+import { fusedAvailable } from '../core/wasm.ts';
 import { describeLine } from '../core/line-spec.ts';
 import type { DesignResult, MemberFigure, Problem, Progress, Pulse } from '../core/types.ts';
 import { writePulse } from '../io/pulse.ts';
@@ -27,9 +29,10 @@ const ARGS: ArgSpec = {
   flags: [
     { name: 'out', value: 'PULSE', help: 'write the best pulse to this file (gatesmith pulse JSON)' },
     { name: 'json', help: 'print the figures as one JSON object instead of a table' },
-    { name: 'threads', value: 'N', help: 'run the starts on N threads (default: all cores for designs expected to take over 2 s)' },
+    { name: 'threads', value: 'N', help: "run the starts on N threads, and a start alone on a large ensemble over its member shares (default: all cores for designs expected to take over 2 s; the pulse is the same for every N)" },
     { name: 'time-limit', value: 'S', help: "stop after S seconds of wall time, keeping the best pulse (overrides the spec's optimizer.timeLimit)" },
     { name: 'yes', help: `run a design estimated to take over ${LONG_DESIGN_S} s without asking` },
+    { name: 'fused', help: "design on the core's fused build (relaxed SIMD: faster, other last bits, so possibly another pulse; the spec's optimizer.arithmetic \"fused\")" },
   ],
 };
 
@@ -66,11 +69,15 @@ export const designCommand: Command = defineCommand({
     const spec = loadSpec(specPath);
     if (out !== undefined) checkWritable(out, '--out', [specPath]);
     const timeLimit = timeLimitFlag(flagValue(flags, 'time-limit'));
-    const problem: Problem = timeLimit === undefined ? spec.problem : { ...spec.problem, optimizer: { ...spec.problem.optimizer, timeLimit } };
+    const optimizer = { ...spec.problem.optimizer, ...(timeLimit === undefined ? {} : { timeLimit }), ...(flags.fused === true ? { arithmetic: 'fused' as const } : {}) };
+    const problem: Problem = { ...spec.problem, optimizer };
     printWarnings(io, spec.warnings);
 
     // Loaded here, not at the top, so that --help and bad input never wait for the wasm core.
     const api = await import('../core/api.ts');
+    if (optimizer.arithmetic === 'fused' && !fusedAvailable()) {
+      io.stderr(`warning: ${flags.fused === true ? '--fused' : 'optimizer.arithmetic "fused"'}: this engine does not run relaxed SIMD (Node 20 needs --experimental-wasm-relaxed-simd); designing on the portable build\n`);
+    }
     const { threads, estimate } = plan(flagValue(flags, 'threads'), problem, api.evaluateMembers);
     // A time limit, from the flag or the spec, is the user's own bound: no question then.
     const bounded = Number.isFinite(problem.optimizer.timeLimit);
@@ -167,7 +174,9 @@ function plan(
   if (single.seconds > 2 || single.iterationSeconds > LONGEST_IN_PROCESS_ITERATION_S) {
     single = estimateDesign(problem, 1, measureSecondsPerMemberSample(evaluateMembers));
   }
-  const threads = requested ?? (single.seconds > 2 ? Math.max(1, Math.min(availableParallelism(), problem.optimizer.starts)) : 1);
+  // Starts over threads, and a start alone with a large ensemble over its member shares (threads.ts memberThreads).
+  const useful = Math.max(problem.optimizer.starts, memberShares(problem).length);
+  const threads = requested ?? (single.seconds > 2 ? Math.max(1, Math.min(availableParallelism(), useful)) : 1);
   return { threads, estimate: estimateDesign(problem, threads, single.qubitSecondsPerMemberSample) };
 }
 
@@ -190,8 +199,14 @@ function interimPulse(p: Progress, problem: Problem, specJson: unknown): Pulse {
       origin: 'design',
       spec: specJson,
       figures: { meanInfidelity: p.meanInfidelity, iterations: p.iteration, stopReason: 'stopped', start: p.start + 1 },
+      arithmetic: arithmeticOf(problem),
     },
   };
+}
+
+/** The core's build a design of `problem` runs on (as wasm.ts buildFor decides in Node). */
+function arithmeticOf(problem: Problem): 'portable' | 'fused' {
+  return problem.optimizer.arithmetic === 'fused' && fusedAvailable() ? 'fused' : 'portable';
 }
 
 /** The design's pulse with its making recorded in the metadata: the spec as given and the figures reached. */

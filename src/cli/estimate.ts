@@ -1,9 +1,12 @@
 // How long a design may take, before it starts: the problem's size times the speed of this
 // machine, measured on a small job of the same core. The figure is an upper bound (every
 // start running to its iteration limit); most designs stop earlier, at their target.
+import { systemCostFactor } from '../core/cost.ts';
 import { needsLadder } from '../core/system.ts';
 import type { Member, Problem, Pulse } from '../core/types.ts';
 import { formatTime } from './format.ts';
+
+export { systemCostFactor } from '../core/cost.ts';
 
 /** Optimiser iterations cost about this many figure-and-gradient evaluations (L-BFGS line searches). */
 const EVALUATIONS_PER_ITERATION = 1.2;
@@ -11,23 +14,6 @@ const EVALUATIONS_PER_ITERATION = 1.2;
 const GRADIENT_OVER_FIGURE = 2.6;
 /** Cost per member-sample of a qubit gradient evaluation assumed before measuring (s); a generous guess. */
 export const ASSUMED_SECONDS_PER_MEMBER_SAMPLE = 2e-8;
-
-// The ladder kernels' objective + gradient per segment-member, a + b d^3 ns against the qubit
-// kernels' QUBIT_NS (one member at a time in scalar f64, an eigendecomposition per sample:
-// docs/transmon.md). Fitted to the least of many interleaved timings on this project's
-// 2-core machine, N = 100, 25 members: 472, 816, 1211, 2066, 3000 ns at d = 3..7 against
-// 8.1 to 8.8 ns for the qubit; the fit is within 5 % there, gives 334 ns at d = 2 (measured
-// 366) and 4400 ns at d = 8 (measured 2900 to 5200 under load).
-const LADDER_NS_A = 270;
-const LADDER_NS_B = 8;
-const QUBIT_NS = 8.5;
-
-/** How many times a qubit member-sample a member-sample of this problem's system costs (1 on the qubit kernels). */
-export function systemCostFactor(problem: Pick<Problem, 'target' | 'system'>): number {
-  if (!needsLadder(problem.target, problem.system)) return 1;
-  const d = problem.system?.levels ?? 2;
-  return (LADDER_NS_A + LADDER_NS_B * d ** 3) / QUBIT_NS;
-}
 
 /** The time a design may take and what the figure rests on. */
 export interface DesignEstimate {

@@ -14,10 +14,10 @@ import { bestStart, outpacedStarts, prunes, startsToContinue, type Checkpoint } 
 import { axisValues, checkRegion } from './grid.ts';
 import { parseSpec } from './spec.ts';
 import type {
-  DesignResult, Evaluation, GridAxis, LadderSystem, Line, Member, MemberFigure, Problem, Progress, Pulse, StartResult, StopReason, Target,
+  DesignResult, Evaluation, GridAxis, LadderSystem, Line, Member, MemberFigure, Problem, Progress, Pulse, SharePool, StartResult, StopReason, Target,
   TruncationCheck,
 } from './types.ts';
-import { getCore, loadCore } from './wasm.ts';
+import { buildFor, getCore, loadCore } from './wasm.ts';
 
 /** Options of a design run. */
 export interface DesignOptions {
@@ -52,6 +52,12 @@ export interface DesignOptions {
   judge?: (checkpoint: Checkpoint) => number[] | Promise<number[]>;
   /** Called with each start's result as the start ends. */
   onStartEnd?: (result: StartResult) => void;
+  /**
+   * Threads that evaluate some member shares of a large problem (member-split.ts; Node's
+   * designInThreads starts them). The shares and their sum do not depend on it: with or
+   * without, a design gives the same bits.
+   */
+  sharePool?: SharePool;
 }
 
 /** The figure on a grid of detuning x amplitude error. */
@@ -70,9 +76,14 @@ export interface RobustnessMap {
  */
 export type CoreSource = ArrayBuffer | ArrayBufferView | URL | string | object;
 
-/** Load the wasm core from a URL, bytes or module (browsers; Node loads it by itself). */
-export async function initCore(source: CoreSource): Promise<void> {
-  await loadCore(source as Parameters<typeof loadCore>[0]);
+/**
+ * Load the wasm core from a URL, bytes or module (browsers; Node loads it by itself), and
+ * with `fused` its fused build (build/gatesmith-fused.wasm), fetched only where the engine
+ * runs relaxed SIMD.
+ */
+export async function initCore(source: CoreSource, fused?: CoreSource): Promise<void> {
+  type Source = Parameters<typeof loadCore>[0];
+  await loadCore(source as Source, fused as Source | undefined);
 }
 
 function isProblem(spec: unknown): spec is Problem {
@@ -274,7 +285,7 @@ async function designNow(problem: Problem, options: DesignOptions): Promise<Desi
       for (const s of indices) {
         if (starts.length + open.length > 0 && (options.signal?.aborted || performance.now() >= deadline)) break;
         const tStart = performance.now();
-        const run = new StartRun(problem, s, undefined, s === 0 ? options.initialPulse : undefined);
+        const run = new StartRun(problem, s, undefined, s === 0 ? options.initialPulse : undefined, options.sharePool);
         const reason = await advance(problem, run, options, t0, deadline, until);
         const elapsedS = (performance.now() - tStart) / 1000;
         if (reason) {
@@ -324,7 +335,7 @@ async function designInStep(
       let entry: { run: StartRun; elapsedS: number };
       if (typeof item === 'number') {
         if (starts.length + open.length > 0 && (options.signal?.aborted || performance.now() >= deadline)) break;
-        entry = { run: new StartRun(problem, item, undefined, item === 0 ? options.initialPulse : undefined), elapsedS: 0 };
+        entry = { run: new StartRun(problem, item, undefined, item === 0 ? options.initialPulse : undefined, options.sharePool), elapsedS: 0 };
         open.push(entry);
       } else entry = item;
       const tStart = performance.now();
@@ -368,6 +379,8 @@ export function bestOfStarts(problem: Problem, starts: StartResult[], t0: number
   const best = bestStart(starts);
   const evaluation = evaluateMembers(problem.target, best.pulse, problem.members, problem.line, problem.system);
   if (problem.line) best.pulse.metadata.line = lineJson(problem.line);
+  // The build the starts ran on: a last-bit difference can lead the optimiser elsewhere.
+  best.pulse.metadata.arithmetic = buildFor(problem.optimizer.arithmetic ?? 'portable');
   const figures: Record<string, number | string> = {
     meanInfidelity: evaluation.meanInfidelity,
     worstInfidelity: evaluation.worstInfidelity,

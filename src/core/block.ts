@@ -15,6 +15,7 @@ const BOUND = { none: 0, disc: 1, box: 2 } as const;
 /** Arrays of a block (assembly/problem.ts, BUFFER_*). */
 export const BUFFER = {
   samplesI: 0, samplesQ: 1, members: 2, weight: 3, target: 4, perMember: 5, gradI: 6, gradQ: 7, driveI: 8, driveQ: 9, driveData: 10,
+  gradDriveI: 11, gradDriveQ: 12,
 } as const;
 
 /** A drive map other than the identity (assembly/drive.ts): its kind, grid and parameters. */

@@ -7,7 +7,7 @@ import { checkPulseAngles } from './limits.ts';
 import { lineLayout, qubitDrive } from './line.ts';
 import { checkTarget } from './problem-check.ts';
 import type { LadderSystem, Line, Member, Pulse, Target } from './types.ts';
-import { getCore } from './wasm.ts';
+import { getCore, type CoreBuild } from './wasm.ts';
 
 /** Figure and gradient of the weighted mean infidelity with respect to every sample (per Hz). */
 export interface FigureGradient {
@@ -32,14 +32,15 @@ export interface GradientJob {
 
 /**
  * Place pulse, members, target (and a ladder system) in a held problem block for repeated
- * gradient evaluations; through `line` (its direct sum or FFT forced by `method`) when given.
+ * gradient evaluations; through `line` (its direct sum or FFT forced by `method`) when given,
+ * on the core `build` (wasm.ts buildFor says which runs).
  */
 export function prepareGradientJob(
-  target: Target, pulse: Pulse, members: Member[], line?: Line, method?: 'direct' | 'fft', system?: LadderSystem,
+  target: Target, pulse: Pulse, members: Member[], line?: Line, method?: 'direct' | 'fft', system?: LadderSystem, build: CoreBuild = 'portable',
 ): GradientJob {
   checkTarget(target);
   checkPulse(pulse);
-  const core = getCore();
+  const core = getCore(build);
   const n = pulse.i.length;
   const enc = encodeSystem(target, members, system);
   const m = enc.members.count, padded = enc.members.padded;
@@ -70,9 +71,9 @@ export function prepareGradientJob(
 
 /** Figure and exact gradient of a pulse on an ensemble (weights normalised), through `line` when given, on a ladder with `system`. */
 export function figureAndGradient(
-  target: Target, pulse: Pulse, members: Member[], line?: Line, method?: 'direct' | 'fft', system?: LadderSystem,
+  target: Target, pulse: Pulse, members: Member[], line?: Line, method?: 'direct' | 'fft', system?: LadderSystem, build: CoreBuild = 'portable',
 ): FigureGradient {
-  const job = prepareGradientJob(target, pulse, members, line, method, system);
+  const job = prepareGradientJob(target, pulse, members, line, method, system, build);
   try {
     return job.result();
   } finally {

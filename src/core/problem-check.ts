@@ -5,8 +5,8 @@ import { SpecError } from './errors.ts';
 import { checkLine } from './line-spec.ts';
 import { MAX_MEMBERS } from './spec-ensemble.ts';
 import { checkNumber, describeRule } from './spec-fields.ts';
-import { MAX_SEGMENTS, OPTIMIZER_RULES } from './spec.ts';
-import type { OptimizerSettings, Problem, Target, Vec3 } from './types.ts';
+import { ARITHMETIC, MAX_SEGMENTS, OPTIMIZER_RULES } from './spec.ts';
+import type { Problem, Target, Vec3 } from './types.ts';
 
 function checkVector(value: unknown, field: string): void {
   const v = value as Vec3;
@@ -69,7 +69,10 @@ export function checkProblem(problem: Problem): Problem {
   if (c.bound !== 'disc' && c.bound !== 'box') throw new SpecError('constraints.bound', c.bound, 'one of "disc", "box"');
   const o = problem.optimizer;
   if (typeof o !== 'object' || o === null) throw new SpecError('optimizer', o, 'the optimizer settings');
-  for (const key of Object.keys(OPTIMIZER_RULES) as (keyof OptimizerSettings)[]) {
+  if (o.arithmetic !== undefined && !(ARITHMETIC as readonly string[]).includes(o.arithmetic)) {
+    throw new SpecError('optimizer.arithmetic', o.arithmetic, 'one of "portable", "fused" (or leave it out: portable)');
+  }
+  for (const key of Object.keys(OPTIMIZER_RULES) as (keyof typeof OPTIMIZER_RULES)[]) {
     if (key === 'timeLimit' && o.timeLimit === Infinity) continue;
     const rule = OPTIMIZER_RULES[key];
     if (o[key] === undefined) throw new SpecError(`optimizer.${key}`, undefined, `required: ${describeRule(rule)}`);

@@ -4,6 +4,7 @@
 import { createBlock, freeBlock, readBuffer, BUFFER } from './block.ts';
 import { blockSystem, encodeSystem } from './system.ts';
 import { lineLayout } from './line.ts';
+import { memberShares, splitObjective, type SharePool } from './member-split.ts';
 import { initialVariables, variablesFromSamples } from './start.ts';
 import type { Problem, StopReason } from './types.ts';
 import { getCore, STEP_GRADIENT_TOLERANCE, STEP_LINE_SEARCH_FAILED, type Core } from './wasm.ts';
@@ -37,23 +38,31 @@ export class StartRun {
   private iterationCount = 0;
   private recentres = 0;
   private lastRecentreObjective = Infinity;
+  /** Ends the split of the objective into member shares, when it is split. */
+  private unsplit: (() => void) | undefined;
   /** Objectives after the last max(stallIterations, outpaceEvery) + 1 iterations, a ring indexed by iteration. */
   private readonly history: Float64Array;
 
   /** `samples` (Hz, the problem's segments), when given, are where the start begins instead of its seeded pulse. */
-  constructor(problem: Problem, start: number, core: Core = getCore(), samples?: { i: ArrayLike<number>; q: ArrayLike<number> }) {
+  constructor(
+    problem: Problem, start: number, core: Core = getCore(problem.optimizer.arithmetic), samples?: { i: ArrayLike<number>; q: ArrayLike<number> }, pool?: SharePool,
+  ) {
     this.core = core;
     this.problem = problem;
     this.start = start;
     const enc = encodeSystem(problem.target, problem.members, problem.system);
     const { segments: n, dt, rabiMax, constraints, optimizer } = problem;
     this.history = new Float64Array(Math.max(optimizer.stallIterations, optimizer.outpaceEvery) + 1);
+    const drive = problem.line ? lineLayout(problem.line, n, dt) : undefined;
     this.ptr = createBlock(core, {
       ...blockSystem(enc), target: problem.target, segments: n, dt, bound: constraints.bound, zeroEdges: constraints.zeroEdges,
       rabiMax, smoothness: constraints.smoothness, optimizer, held: true,
-      ...(problem.line ? { drive: lineLayout(problem.line, n, dt) } : {}),
+      ...(drive ? { drive } : {}),
     });
     try {
+      // A large ensemble is evaluated in member shares (member-split.ts), on `pool`'s threads when given.
+      const shares = memberShares(problem);
+      if (shares.length > 1) this.unsplit = splitObjective(core, this.ptr, problem, shares, drive?.samples ?? n, drive?.dt ?? dt, pool);
       const nVar = core.exports.problemVariables(this.ptr);
       core.job(() => {
         const x0 = core.put(startVariables(problem, start, nVar, samples));
@@ -185,6 +194,8 @@ export class StartRun {
 
   /** Free the start's block (idempotent). */
   dispose(): void {
+    this.unsplit?.();
+    this.unsplit = undefined;
     if (this.ptr !== 0) freeBlock(this.core, this.ptr);
     this.ptr = 0;
   }

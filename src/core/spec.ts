@@ -125,7 +125,7 @@ function parseConstraints(value: unknown, segments: number): Constraints {
 }
 
 /** The rules of the `optimizer` fields, shared by parseSpec and checkProblem. */
-export const OPTIMIZER_RULES: Readonly<Record<keyof OptimizerSettings, NumberRule>> = {
+export const OPTIMIZER_RULES: Readonly<Record<Exclude<keyof OptimizerSettings, 'arithmetic'>, NumberRule>> = {
   starts: { integer: true, min: 1, max: 64 },
   // A 32-bit unsigned seed fits every generator the core may use.
   seed: { integer: true, min: 0, max: 4294967295 },
@@ -142,11 +142,16 @@ export const OPTIMIZER_RULES: Readonly<Record<keyof OptimizerSettings, NumberRul
   outpaceFactor: { min: 0, minExclusive: true, max: 1000 },
 };
 
+/** The core builds a design may ask for (`optimizer.arithmetic`). */
+export const ARITHMETIC = ['portable', 'fused'] as const;
+
 function parseOptimizer(value: unknown): OptimizerSettings {
   const path = 'optimizer';
   if (value === undefined) return { ...DEFAULT_OPTIMIZER };
-  const keys = Object.keys(OPTIMIZER_RULES);
+  const keys = [...Object.keys(OPTIMIZER_RULES), 'arithmetic'];
   const obj = readObject(value, path, keys, 'the optimizer settings');
+  // Present only when given, so that a spec without it reads as before.
+  const arithmetic = obj.arithmetic === undefined ? {} : { arithmetic: readChoice(obj, 'arithmetic', path, ARITHMETIC, 'portable') };
   const d = DEFAULT_OPTIMIZER;
   const r = OPTIMIZER_RULES;
   return {
@@ -164,5 +169,6 @@ function parseOptimizer(value: unknown): OptimizerSettings {
     keepStarts: readNumber(obj, 'keepStarts', path, r.keepStarts, d.keepStarts),
     outpaceEvery: readNumber(obj, 'outpaceEvery', path, r.outpaceEvery, d.outpaceEvery),
     outpaceFactor: readNumber(obj, 'outpaceFactor', path, r.outpaceFactor, d.outpaceFactor),
+    ...arithmetic,
   };
 }

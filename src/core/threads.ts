@@ -5,14 +5,14 @@
 // Stopping terminates the threads instead of waiting for an iteration to end (one
 // iteration of a large problem can take seconds): each running start then contributes the
 // last pulse it reported, which is its best so far since L-BFGS only accepts decreases.
-import { createRequire } from 'node:module';
 import { availableParallelism } from 'node:os';
-import { pathToFileURL } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import { bestOfStarts, toProblem } from './api.ts';
 import { prunes, Referee, startsToContinue, type Checkpoint } from './best-start.ts';
 import type { DesignOptions } from './api.ts';
 import { checkProblemAngles } from './limits.ts';
+import { memberShares } from './member-split.ts';
+import { threadEntry } from './thread-entry.ts';
 import type { DesignResult, Problem, Progress, Pulse, StartResult } from './types.ts';
 
 /** Messages from a design thread. */
@@ -25,7 +25,10 @@ export type ThreadMessage =
 
 /** Options of a threaded design: those of design() plus the number of threads. */
 export interface ThreadedDesignOptions extends DesignOptions {
-  /** Threads to use (default: the machine's parallelism, at most the number of starts). */
+  /**
+   * Threads to use (default: the machine's parallelism): the starts spread over them, and
+   * when fewer starts than threads run, a large problem's member shares (memberThreads).
+   */
   threads?: number;
 }
 
@@ -46,7 +49,8 @@ export async function designInThreads(spec: unknown, options: ThreadedDesignOpti
   const problem = toProblem(spec);
   checkProblemAngles(problem);
   const indices = options.startIndices ?? Array.from({ length: problem.optimizer.starts }, (_, k) => k);
-  const threads = Math.max(1, Math.min(options.threads ?? availableParallelism(), indices.length));
+  // Every thread asked for: a stage with fewer starts than threads gives each start some (memberThreads).
+  const threads = Math.max(1, options.threads ?? availableParallelism());
   const t0 = performance.now();
   if (!prunes(problem.optimizer, indices.length)) {
     const { starts } = await runStage(problem, indices, threads, options, t0);
@@ -79,6 +83,7 @@ async function runStage(
   stage?: 'probe' | 'finish', reached?: Map<number, StartResult>,
 ): Promise<{ starts: StartResult[]; stopped: boolean }> {
   const threads = Math.min(threadCount, indices.length);
+  const perStart = memberThreads(problem, indices.length, threadCount);
   const shares = Array.from({ length: threads }, (_, t) => indices.filter((_, k) => k % threads === t));
   const latest = new Map<number, Progress>();
   const finished: StartResult[] = [];
@@ -95,7 +100,7 @@ async function runStage(
   const workers: Worker[] = [];
   // A design that is not staged compares its starts across the threads (best-start.ts Referee).
   const referee = stage === undefined && problem.optimizer.outpaceEvery > 0 ? new Referee(threads, problem.optimizer) : undefined;
-  const runs = shares.map((share, t) => runThread(problem, share, { ...options, stage }, workers, onProgress, finished, referee && { referee, share: t }));
+  const runs = shares.map((share, t) => runThread(problem, share, { ...options, stage }, perStart, workers, onProgress, finished, referee && { referee, share: t }));
   // The threads end inside the abort itself, before whatever the caller does next.
   const stopped = new Promise<'stopped'>((resolve) => {
     const stop = (): void => {
@@ -126,32 +131,32 @@ function startFromProgress(problem: Problem, p: Progress, t0: number): StartResu
   };
 }
 
-// Compiled (dist/core/threads.js) the thread loads design-thread.js directly. From the
-// TypeScript sources (tests, benchmarks) it registers tsx first: threads do not inherit
-// the parent's loader. tsx is a development tool and never loaded by the package.
-function threadEntry(): { url: string | URL; eval: boolean } {
-  if (import.meta.url.endsWith('.js')) return { url: new URL('./design-thread.js', import.meta.url), eval: false };
-  // The ESM build of tsx's API (its CommonJS build resolves its loader wrongly from a thread).
-  const cjs = createRequire(import.meta.url).resolve('tsx/esm/api');
-  const tsx = pathToFileURL(cjs.replace(/index\.cjs$/, 'index.mjs')).href;
-  const thread = new URL('./design-thread.ts', import.meta.url).href;
-  return { url: `import(${JSON.stringify(tsx)}).then((m) => { m.register(); return import(${JSON.stringify(thread)}); });`, eval: true };
+/**
+ * Threads per start: starts over threads while there are at least as many starts as
+ * threads (no waiting at all); with fewer, a problem in member shares (member-split.ts)
+ * gives each start the threads left over, up to its number of shares. The result is the
+ * same either way: the shares are the problem's, not the threads'.
+ */
+export function memberThreads(problem: Problem, starts: number, threads: number): number {
+  if (starts >= threads) return 1;
+  return Math.max(1, Math.min(memberShares(problem).length, Math.floor(threads / starts)));
 }
 
 function runThread(
   problem: unknown,
   startIndices: number[],
   options: ThreadedDesignOptions,
+  perStart: number,
   workers: Worker[],
   onProgress: (p: Progress) => void,
   finished: StartResult[],
   refereed?: { referee: Referee; share: number },
 ): Promise<void> {
   return new Promise((resolve, reject) => {
-    const entry = threadEntry();
+    const entry = threadEntry('design-thread');
     const keepEvery = Math.min(options.progressPulseEveryMs ?? KEEP_PULSE_EVERY_MS, KEEP_PULSE_EVERY_MS);
     const initialPulse = options.initialPulse ? { i: Array.from(options.initialPulse.i), q: Array.from(options.initialPulse.q) } : undefined;
-    const workerData = { problem, startIndices, progressPulseEveryMs: keepEvery, initialPulse, stage: options.stage, refereed: refereed !== undefined };
+    const workerData = { problem, startIndices, progressPulseEveryMs: keepEvery, initialPulse, stage: options.stage, refereed: refereed !== undefined, memberThreads: perStart };
     const worker = new Worker(entry.url, { eval: entry.eval, workerData });
     workers.push(worker);
     const mine = new Set(startIndices);

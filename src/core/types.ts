@@ -66,6 +66,12 @@ export interface OptimizerSettings {
   outpaceEvery: number;
   /** How much faster than its recent rate a start is assumed to keep descending when judged. */
   outpaceFactor: number;
+  /**
+   * The core's build a design runs on (src/core/wasm.ts CoreBuild): 'portable' (absent: the
+   * default, the same bits on every engine) or 'fused' (relaxed SIMD, faster, another last
+   * bit; where the engine cannot run it, the portable build runs). The pulse records which ran.
+   */
+  arithmetic?: 'portable' | 'fused';
 }
 
 /** The response of the line between the instrument and the qubit (docs/physics.md section 5). */
@@ -123,6 +129,8 @@ export interface PulseMetadata {
   spec?: unknown;
   /** Figures reached, as reported when the pulse was made. */
   figures?: Record<string, number | string>;
+  /** A designed pulse: the core's build that made it ('portable' or 'fused'; absent in files written before it was recorded). */
+  arithmetic?: 'portable' | 'fused';
   [key: string]: unknown;
 }
 
@@ -225,4 +233,23 @@ export interface GridAxis {
   min: number;
   max: number;
   points: number;
+}
+
+/** The figure and drive gradient of one share. */
+export interface ShareResult {
+  mean: number;
+  gradI: Float64Array;
+  gradQ: Float64Array;
+}
+
+/** Member shares evaluated by other threads (src/core/member-split.ts): handed the drive, then waited for (share-threads.ts). */
+export interface SharePool {
+  /** Share indices this thread evaluates itself; the pool's threads take the others. */
+  readonly local: readonly number[];
+  /** Hand the drive to the pool's threads; they start at once. */
+  post(driveI: Float64Array, driveQ: Float64Array): void;
+  /** Wait for the pool's threads: the result of each of their shares, by share index. */
+  collect(): ReadonlyMap<number, ShareResult>;
+  /** End the pool's threads. */
+  close(): void;
 }

@@ -14,6 +14,7 @@ export interface CoreExports {
     memory: number, gradientTolerance: number, held: number): number;
   problemFree(p: number): void;
   problemBuffer(p: number, which: number): number;
+  problemSetShares(p: number, on: number): void;
   problemFigure(p: number): number;
   problemGradient(p: number): number;
   problemDrive(p: number): void;
@@ -44,7 +45,18 @@ export const STEP_LINE_SEARCH_FAILED = 2;
 /** A loaded core with helpers to place and read f64 arrays in its arena. */
 export class Core {
   readonly exports: CoreExports;
-  constructor(instance: WebAssembly.Instance) {
+  /**
+   * The member-share evaluators of blocks whose objective is split (member-split.ts): the
+   * core's import memberShares(p) calls the one registered for p.
+   */
+  readonly shareEvaluators = new Map<number, () => number>();
+  constructor(module: WebAssembly.Module) {
+    const memberShares = (p: number): number => {
+      const evaluate = this.shareEvaluators.get(p);
+      if (!evaluate) throw new Error(`the core asked for member shares of block ${p}, which has none`);
+      return evaluate();
+    };
+    const instance = new WebAssembly.Instance(module, { env: { abort: coreAbort, memberShares } });
     this.exports = instance.exports as unknown as CoreExports;
   }
   /**
@@ -89,19 +101,58 @@ export class Core {
   }
 }
 
-let current: Core | null = null;
+/**
+ * The two builds of the core, from the same sources (scripts/build.js): `portable` rounds
+ * every multiply and add on its own, so it gives the same bits on every engine and CPU;
+ * `fused` (relaxed SIMD) lets the engine fuse a * b + c into one rounding, which is faster
+ * and changes the last bits. Designs use `portable` unless asked (the optimiser carries a
+ * last-bit difference into another local optimum); a pulse file records its build.
+ */
+export type CoreBuild = 'portable' | 'fused';
 
-/** Instantiate the core from its bytes or a compiled module (browser workers and Node). */
-export async function loadCore(source: BufferSource | WebAssembly.Module | URL | string): Promise<Core> {
-  let module: WebAssembly.Module;
-  if (source instanceof WebAssembly.Module) module = source;
-  else if (typeof source === 'string' || source instanceof URL) {
+/** The file name of each build in build/ (and in the package). */
+export const CORE_FILES: Record<CoreBuild, string> = { portable: 'gatesmith.wasm', fused: 'gatesmith-fused.wasm' };
+
+// A module of one function, f64x2.relaxed_madd of its three v128 parameters: the engine
+// runs the fused build when it validates this (Chromium does; Node 20 with
+// --experimental-wasm-relaxed-simd).
+const RELAXED_PROBE = new Uint8Array([
+  0x00, 0x61, 0x73, 0x6d, 0x01, 0x00, 0x00, 0x00,
+  0x01, 0x08, 0x01, 0x60, 0x03, 0x7b, 0x7b, 0x7b, 0x01, 0x7b, // type: (v128 v128 v128) -> v128
+  0x03, 0x02, 0x01, 0x00, // one function of that type
+  0x0a, 0x0d, 0x01, 0x0b, 0x00, 0x20, 0x00, 0x20, 0x01, 0x20, 0x02, 0xfd, 0x87, 0x02, 0x0b, // its body
+]);
+
+let relaxedSupported: boolean | null = null;
+
+/** True when this engine runs relaxed SIMD (the fused build). */
+export function fusedAvailable(): boolean {
+  relaxedSupported ??= WebAssembly.validate(RELAXED_PROBE);
+  return relaxedSupported;
+}
+
+const loaded: Record<CoreBuild, Core | null> = { portable: null, fused: null };
+
+async function compile(source: BufferSource | WebAssembly.Module | URL | string): Promise<WebAssembly.Module> {
+  if (source instanceof WebAssembly.Module) return source;
+  if (typeof source === 'string' || source instanceof URL) {
     const response = await fetch(source);
     if (!response.ok) throw new Error(`cannot load the wasm core from ${String(source)}: HTTP ${response.status}`);
-    module = await WebAssembly.compile(await response.arrayBuffer());
-  } else module = await WebAssembly.compile(source);
-  current = new Core(await WebAssembly.instantiate(module, { env: { abort: coreAbort } }));
-  return current;
+    return WebAssembly.compile(await response.arrayBuffer());
+  }
+  return WebAssembly.compile(source);
+}
+
+/**
+ * Instantiate the core from its bytes or a compiled module (browser workers and Node); with
+ * `fused`, also the fused build where the engine runs relaxed SIMD (else it is not fetched).
+ */
+export async function loadCore(
+  source: BufferSource | WebAssembly.Module | URL | string, fused?: BufferSource | WebAssembly.Module | URL | string,
+): Promise<Core> {
+  loaded.portable = new Core(await compile(source));
+  if (fused !== undefined && fusedAvailable()) loaded.fused = new Core(await compile(fused));
+  return loaded.portable;
 }
 
 function coreAbort(): never {
@@ -109,23 +160,33 @@ function coreAbort(): never {
 }
 
 /**
- * The loaded core; in Node it is loaded on first use from build/gatesmith.wasm.
- * In a browser call loadCore first.
+ * The build that runs when `wanted` is asked for: the fused build only where the engine
+ * runs it (and, in a browser, where it was loaded), else the portable one.
  */
-export function getCore(): Core {
-  if (current) return current;
+export function buildFor(wanted: CoreBuild): CoreBuild {
+  if (wanted === 'portable' || !fusedAvailable()) return 'portable';
+  return loaded.fused || nodeFs() ? 'fused' : 'portable';
+}
+
+/**
+ * The loaded core of a build (default the portable one; see buildFor for what runs); in
+ * Node it is loaded on first use from build/. In a browser call loadCore first.
+ */
+export function getCore(build: CoreBuild = 'portable'): Core {
+  const which = buildFor(build);
+  const ready = loaded[which];
+  if (ready) return ready;
   const fs = nodeFs();
   if (!fs) throw new Error('the wasm core is not loaded: call initCore(url) first');
-  const url = new URL('../../build/gatesmith.wasm', import.meta.url);
+  const url = new URL(`../../build/${CORE_FILES[which]}`, import.meta.url);
   let bytes: Uint8Array;
   try {
     bytes = fs.readFileSync(url);
   } catch {
     throw new Error(`the wasm core ${url.pathname} is missing: run "npm run build:wasm" (npm install runs it)`);
   }
-  const module = new WebAssembly.Module(bytes as BufferSource);
-  current = new Core(new WebAssembly.Instance(module, { env: { abort: coreAbort } }));
-  return current;
+  loaded[which] = new Core(new WebAssembly.Module(bytes as BufferSource));
+  return loaded[which];
 }
 
 function nodeFs(): { readFileSync(path: URL): Uint8Array } | null {

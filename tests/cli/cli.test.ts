@@ -119,7 +119,7 @@ describe('bad input exits 1 with a message and no stack', () => {
     ['a missing SPEC', () => ['design'], ['missing SPEC', 'usage: gatesmith design SPEC']],
     ['a missing PULSE', () => ['evaluate', TRANSMON], ['missing PULSE']],
     ['an extra argument', () => ['design', TRANSMON, 'more'], ['unexpected argument "more"']],
-    ['an unknown flag', () => ['design', TRANSMON, '--jsno'], ['unknown option --jsno', '--out, --json, --threads, --time-limit, --yes, --help']],
+    ['an unknown flag', () => ['design', TRANSMON, '--jsno'], ['unknown option --jsno', '--out, --json, --threads, --time-limit, --yes, --fused, --help']],
     ['a flag without its value', () => ['design', TRANSMON, '--out'], ['--out needs a value (PULSE)']],
     ['a value given to a switch', () => ['design', TRANSMON, '--json=yes'], ['--json takes no value']],
     ['a repeated flag', () => ['evaluate', TRANSMON, 'p.json', '--json', '--json'], ['--json is given more than once']],

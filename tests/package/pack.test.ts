@@ -66,7 +66,7 @@ function sourceFiles(): string[] {
 describe('npm pack', () => {
   it('ships the compiled library, the command and the wasm core, and no sources or tests', () => {
     const list = sh('tar', ['-tzf', tarball], tmp).split('\n').filter((l) => l !== '');
-    for (const f of ['package/dist/index.js', 'package/dist/index.d.ts', 'package/dist/cli/main.js', 'package/dist/core/design-thread.js', 'package/build/gatesmith.wasm', 'package/bin/gatesmith.js', 'package/README.md']) {
+    for (const f of ['package/dist/index.js', 'package/dist/index.d.ts', 'package/dist/cli/main.js', 'package/dist/core/design-thread.js', 'package/build/gatesmith.wasm', 'package/build/gatesmith-fused.wasm', 'package/bin/gatesmith.js', 'package/README.md']) {
       expect(list, f).toContain(f);
     }
     expect(list.filter((f) => /^package\/(src|tests|assembly|bench)\//.test(f))).toEqual([]);
