@@ -7,6 +7,7 @@ import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { medianOf } from './timing.ts';
 
 const ROOT = fileURLToPath(new URL('..', import.meta.url));
 const BIN = join(ROOT, 'bin/gatesmith.js');
@@ -17,10 +18,6 @@ export interface CommandFigures {
   interrupt: { segments: number; members: number; iterationMs: number; acknowledgedMs: number; pulseWrittenMs: number; exitedMs: number }[];
 }
 
-function medianOf(values: number[]): number {
-  const sorted = [...values].sort((a, b) => a - b);
-  return sorted[Math.floor(sorted.length / 2)];
-}
 
 function timeRun(args: string[]): number {
   const t = performance.now();

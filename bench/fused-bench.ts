@@ -9,6 +9,7 @@ import { pathToFileURL } from 'node:url';
 import { prepareGradientJob } from '../src/core/gradient.ts';
 import type { Member, Pulse, Target } from '../src/core/types.ts';
 import { fusedAvailable } from '../src/core/wasm.ts';
+import { medianOf, timeMedian } from './timing.ts';
 
 /** One size: ns per segment-member on each build (medians of alternated rounds), and the ratios portable/fused. */
 export interface FusedFigures {
@@ -26,20 +27,7 @@ export interface FusedFigures {
 
 const gate: Target = { kind: 'gate', axis: [1, 0, 0], angleRad: Math.PI / 2 };
 
-function medianOf(values: number[]): number {
-  const s = [...values].sort((a, b) => a - b);
-  return s[Math.floor(s.length / 2)];
-}
 
-function timeMedian(fn: () => void, reps: number): number {
-  const t: number[] = [];
-  for (let k = 0; k < reps; k++) {
-    const a = performance.now();
-    fn();
-    t.push(performance.now() - a);
-  }
-  return medianOf(t);
-}
 
 function measure(segments: number, side: number): FusedFigures {
   const members: Member[] = [];

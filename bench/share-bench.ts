@@ -10,6 +10,7 @@ import { designInThreads } from '../src/core/threads.ts';
 import { parseSpec } from '../src/core/spec.ts';
 import type { Pulse } from '../src/core/types.ts';
 import { getCore } from '../src/core/wasm.ts';
+import { medianOf, timeMedian } from './timing.ts';
 
 /** One size: medians (us) of the whole evaluation, two shares on one thread and on two, and the ratio one/two thread. */
 export interface ShareFigures {
@@ -24,20 +25,7 @@ export interface ShareFigures {
   shares: number;
 }
 
-function medianOf(values: number[]): number {
-  const s = [...values].sort((a, b) => a - b);
-  return s[Math.floor(s.length / 2)];
-}
 
-function timeMedian(fn: () => void, reps: number): number {
-  const t: number[] = [];
-  for (let k = 0; k < reps; k++) {
-    const a = performance.now();
-    fn();
-    t.push(performance.now() - a);
-  }
-  return medianOf(t);
-}
 
 /** One size's figures; `points` members per side of the ensemble grid. */
 async function measure(segments: number, points: number, rounds: number): Promise<ShareFigures> {
