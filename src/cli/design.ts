@@ -5,7 +5,7 @@ import { ArgumentError } from '../core/errors.ts';
 import { memberShares } from '../core/member-split.ts';
 import { fusedAvailable } from '../core/wasm.ts';
 import { describeLine } from '../core/line-spec.ts';
-import type { DesignResult, MemberFigure, Problem, Progress, Pulse } from '../core/types.ts';
+import type { DesignResult, MemberFigure, Problem, Progress, Pulse, StartResult } from '../core/types.ts';
 import { writePulse } from '../io/pulse.ts';
 import { flagValue, optionsHelp, usageLine } from './args.ts';
 import type { ArgSpec } from './args.ts';
@@ -121,6 +121,7 @@ export const designCommand: Command = defineCommand({
           if (p.pulse) latest.set(p.start, p);
           reporter.update(p);
         },
+        onStartEnd: (r: StartResult) => reporter.ended(r),
         signal: controller.signal,
         progressPulseEveryMs: KEEP_PULSE_EVERY_MS,
       };

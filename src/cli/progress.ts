@@ -1,7 +1,7 @@
 // Progress of a design on stderr: a bar redrawn in place on a terminal, otherwise a plain
 // line now and then (logs and CI keep every line, so they must stay few).
 import { prunes } from '../core/best-start.ts';
-import type { Progress } from '../core/types.ts';
+import type { Progress, StartResult } from '../core/types.ts';
 import type { CliIO } from './command.ts';
 import { formatInfidelity } from './format.ts';
 
@@ -14,6 +14,8 @@ const BAR_WIDTH = 24;
 /** Receives the design's progress reports and draws them; `finish` clears the bar. */
 export interface ProgressReporter {
   update: (progress: Progress) => void;
+  /** A start has ended: one that stopped early (stalled, outpaced) counts as done to its limit. */
+  ended: (result: StartResult) => void;
   finish: () => void;
 }
 
@@ -79,6 +81,11 @@ export function progressReporter(io: CliIO, optimizer: ProgressBudget, now = () 
         io.stderr(`design ${info.percent.trim()}  ${info.text}\n`);
       }
       lastDraw = t;
+    },
+    ended(result) {
+      // Under pruning a start's budget depends on whether it is kept: its reports say enough.
+      if (prunes(optimizer, starts) || result.stopReason === 'stopped') return;
+      iterations.set(result.start, maxIterations);
     },
     finish() {
       if (drawn) io.stderr('\r\x1b[K');

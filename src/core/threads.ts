@@ -164,7 +164,10 @@ function runThread(
     const end = (): void => refereed?.referee.end(refereed.share, finished.filter((r) => mine.has(r.start)));
     worker.on('message', (message: ThreadMessage) => {
       if (message.kind === 'progress') onProgress(message.progress);
-      else if (message.kind === 'start') finished.push(message.result);
+      else if (message.kind === 'start') {
+        finished.push(message.result);
+        options.onStartEnd?.(message.result);
+      }
       else if (message.kind === 'checkpoint') {
         void refereed?.referee.report(refereed.share, message.checkpoint).then((stop) => worker.postMessage({ kind: 'judged', stop }));
       } else if (message.kind === 'done') {

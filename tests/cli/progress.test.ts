@@ -7,7 +7,7 @@ import { readFileSync } from 'node:fs';
 import type { CliIO } from '../../src/cli/command.ts';
 import { iterationBudget, progressReporter } from '../../src/cli/progress.ts';
 import { parseSpec } from '../../src/core/spec.ts';
-import type { Progress } from '../../src/core/types.ts';
+import type { Progress, StartResult } from '../../src/core/types.ts';
 
 const file = JSON.parse(readFileSync(new URL('../../examples/transmon-x90.json', import.meta.url), 'utf8'));
 const demo = parseSpec({ ...file, optimizer: { ...file.optimizer, pruneAfter: 400, keepStarts: 2 } }).optimizer;
@@ -44,5 +44,25 @@ describe('progress of a pruned design', () => {
     reporter.update(report(4, 2000));
     expect(percentOf(lines.at(-1)!)).toBe(100);
     expect(lines.at(-1)).toMatch(/\[#{24}\]/);
+  });
+
+  it('counts a start that stopped early (outpaced, stalled) as done to its limit, without pruning', () => {
+    const plain = { ...demo, pruneAfter: 0 };
+    const { io, lines, now } = terminal();
+    const reporter = progressReporter(io, plain, now);
+    const ended = (start: number, iteration: number, stopReason: StartResult['stopReason']): StartResult =>
+      ({ start, iterations: iteration, stopReason } as StartResult);
+    for (const start of [0, 1, 2, 3, 4]) reporter.update(report(start, 900));
+    // 5 x 900 of 5 x 2000 iterations.
+    expect(percentOf(lines.at(-1)!)).toBe(45);
+    reporter.ended(ended(0, 900, 'outpaced'));
+    reporter.ended(ended(1, 900, 'stalled'));
+    reporter.update(report(2, 1000));
+    // 2 x 2000 + 1000 + 2 x 900 of 10 000.
+    expect(percentOf(lines.at(-1)!)).toBe(68);
+    // A stop by the user is not the design's end: its share stays where it was.
+    reporter.ended(ended(2, 1000, 'stopped'));
+    reporter.update(report(3, 900));
+    expect(percentOf(lines.at(-1)!)).toBe(68);
   });
 });
