@@ -19,12 +19,10 @@ function powerOfTwo(k: number): number {
   return view.getFloat64(0);
 }
 
-/** x with the low `bits` bits of its significand cleared (exact). */
+/** x with the low `bits` (< 32) bits of its significand cleared (exact). */
 function truncated(x: number, bits: number): number {
   view.setFloat64(0, x);
-  const low = view.getUint32(4);
-  view.setUint32(4, bits >= 32 ? 0 : (low >>> bits) << bits);
-  if (bits > 32) view.setUint32(0, (view.getUint32(0) >>> (bits - 32)) << (bits - 32));
+  view.setUint32(4, (view.getUint32(4) >>> bits) << bits);
   return view.getFloat64(0);
 }
 

@@ -3,11 +3,18 @@
 // transferred instead of cloned.
 import { transfer } from 'comlink';
 
+type SampleArray = Float64Array | Float32Array | Int32Array | Int16Array | Uint8Array;
+
+/** The typed arrays both walks copy and transfer (samples, maps, indices, masks). */
+function isSampleArray(value: object): value is SampleArray {
+  return value instanceof Float64Array || value instanceof Float32Array || value instanceof Int32Array || value instanceof Int16Array || value instanceof Uint8Array;
+}
+
 function copyDeep(value: unknown, memo: Map<unknown, unknown>, buffers: ArrayBuffer[]): unknown {
   if (typeof value !== 'object' || value === null) return value;
   const seen = memo.get(value);
   if (seen !== undefined) return seen;
-  if (value instanceof Float64Array || value instanceof Float32Array || value instanceof Uint8Array || value instanceof Int16Array) {
+  if (isSampleArray(value)) {
     const copy = value.slice();
     buffers.push(copy.buffer as ArrayBuffer);
     memo.set(value, copy);
@@ -47,7 +54,7 @@ export const COPY_SLICE = 1 << 18;
 /** Lets the page run (input, drawing) before the next slice of work. */
 const yieldToPage = () => new Promise<void>((resolve) => setTimeout(resolve, 0));
 
-async function copyInSlices<A extends Float64Array | Float32Array | Int32Array>(value: A): Promise<A> {
+async function copyInSlices<A extends SampleArray>(value: A): Promise<A> {
   if (value.length <= COPY_SLICE) return value.slice() as A;
   const copy = new (value.constructor as new (n: number) => A)(value.length);
   for (let from = 0; from < value.length; from += COPY_SLICE) {
@@ -60,7 +67,7 @@ async function copyInSlices<A extends Float64Array | Float32Array | Int32Array>(
 async function copyDeepInSlices(value: unknown, memo: Map<unknown, unknown>, buffers: ArrayBuffer[]): Promise<unknown> {
   if (typeof value !== 'object' || value === null) return value;
   if (memo.has(value)) return memo.get(value);
-  if (value instanceof Float64Array || value instanceof Float32Array || value instanceof Int32Array) {
+  if (isSampleArray(value)) {
     const copy = await copyInSlices(value);
     buffers.push(copy.buffer as ArrayBuffer);
     memo.set(value, copy);
