@@ -143,7 +143,10 @@ export function heldToBound(i: Float64Array, q: Float64Array, rabiMax: number, b
 /** A running design as the client follows it. */
 interface Running {
   spec: unknown;
-  problem: Problem;
+  /** Null until the spec is checked. */
+  problem: Problem | null;
+  /** True once the designers were given the job. */
+  started: boolean;
   t0: number;
   reported: ReportedPulses;
   /** Ends the design at once with an outcome, or with StoppedBeforeAnyPulse (after the designers were replaced). */
@@ -156,6 +159,8 @@ interface Searching {
   tried: DurationTrial[];
   met: Map<number, Pulse>;
   lowerBoundS: number;
+  /** True once the designer was given the job. */
+  started: boolean;
   /** Ends the search at once with what was found (after the designers were replaced). */
   abandon: (outcome: ShortestOutcome) => void;
 }
@@ -225,6 +230,12 @@ export class CoreClient {
     return this.readyPromise;
   }
 
+  /** The core loaded everywhere, then the spec checked on the analysis worker. */
+  private async readyAndChecked(spec: unknown): Promise<SpecCheck> {
+    await this.ready();
+    return this.analysis.checkSpec(spec);
+  }
+
   /** Validates a spec with the library's rules (first error, with its field). */
   checkSpec(spec: unknown): Promise<SpecCheck> {
     return this.analysis.checkSpec(spec);
@@ -236,14 +247,20 @@ export class CoreClient {
     this.designing = true;
     this.stopRequested = false;
     try {
-      await this.ready();
-      const check = await this.analysis.checkSpec(spec);
-      const t0 = performance.now();
-      const groups = shareStarts(starts, this.designers.length);
       const reported = new ReportedPulses();
       let abandon: (outcome: DesignOutcome | StoppedBeforeAnyPulse) => void = () => undefined;
       const abandoned = new Promise<DesignOutcome>((resolve, reject) => (abandon = (o) => (o instanceof StoppedBeforeAnyPulse ? reject(o) : resolve(o))));
-      if (check.ok) this.current = { spec, problem: check.problem, t0, reported, abandon };
+      // Followed from the start: the spec's check waits its turn on the analysis worker, which
+      // may be busy with a long map, and Stop meanwhile ends the run at once.
+      const running: Running = { spec, problem: null, t0: performance.now(), reported, abandon, started: false };
+      this.current = running;
+      const check = await Promise.race([this.readyAndChecked(spec), abandoned.then(() => null as never)]);
+      if (!check.ok) this.current = null;
+      const t0 = performance.now();
+      running.problem = check.ok ? check.problem : null;
+      running.t0 = t0;
+      running.started = true;
+      const groups = shareStarts(starts, this.designers.length);
       const sink = proxy((batch: ProgressBatch) => {
         reported.add(batch);
         onProgress?.(batch);
@@ -298,12 +315,15 @@ export class CoreClient {
     this.designing = true;
     this.stopRequested = false;
     try {
-      await this.ready();
-      const check = await this.analysis.checkSpec(spec);
       let abandon: (outcome: ShortestOutcome) => void = () => undefined;
       const abandoned = new Promise<ShortestOutcome>((resolve) => (abandon = resolve));
-      const searching: Searching = { dt: check.ok ? check.problem.dt : NaN, tried: [], met: new Map(), lowerBoundS: NaN, abandon };
-      if (check.ok) this.searching = searching;
+      const searching: Searching = { dt: NaN, tried: [], met: new Map(), lowerBoundS: NaN, abandon, started: false };
+      this.searching = searching;
+      const check = await Promise.race([this.readyAndChecked(spec), abandoned]);
+      if (!('ok' in check)) return check;
+      if (check.ok) searching.dt = check.problem.dt;
+      else this.searching = null;
+      searching.started = true;
       const sink = proxy((trial: DurationTrial, lowerBoundS: number, pulse?: Pulse) => {
         searching.tried.push(trial);
         searching.lowerBoundS = lowerBoundS;
@@ -343,7 +363,8 @@ export class CoreClient {
     }
     this.current = null;
     this.searching = null;
-    this.replaceDesigners();
+    // Designers not yet given the job have nothing to end.
+    if (running?.started || searching?.started) this.replaceDesigners();
     if (searching) {
       searching.abandon(keptShortest(searching));
       return;
@@ -372,7 +393,8 @@ export class CoreClient {
    * and the worst member unknown (NaN), every start's newest figures.
    */
   private keptOutcome(running: Running, best: KeptPulse): DesignOutcome {
-    const { problem } = running;
+    // A pulse is reported only after the check found the problem.
+    const problem = running.problem!;
     const pulseOf = (kept: KeptPulse): Pulse => {
       const i = kept.live.i.slice();
       const q = kept.live.q.slice();

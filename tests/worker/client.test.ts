@@ -121,6 +121,7 @@ function stuckDesigner(first: { design?: (sink: ProgressSink) => void; shortest?
       design: (_spec: unknown, _starts: number[], sink: ProgressSink) => (calls.push('design'), first.design?.(sink), never()),
       shortest: (_spec: unknown, _request: unknown, sink: TrialSink) => (calls.push('shortest'), first.shortest?.(sink), never()),
       map: () => (calls.push('map'), never()),
+      checkSpec: () => never(),
       stop: () => (calls.push('stop'), 0),
     },
     channel.port1,
@@ -196,6 +197,24 @@ describe('Stop while a designer is inside one long core call', () => {
     expect([outcome.segments, outcome.meanInfidelity, outcome.worstInfidelity, outcome.lowerBoundS]).toEqual([3, 1e-5, 2e-5, 2.5e-9]);
     expect(Array.from(outcome.pulse!.i)).toEqual([1, 2, 3]);
     expect(outcome.dt).toBe(1e-8);
+    own.dispose();
+  });
+
+  it('ends a design and a search at once while the spec\'s check waits on a busy analysis worker, starting no designer', async () => {
+    // An analysis worker inside a long map: it answers nothing.
+    const busy = stuckDesigner();
+    const stuck = stuckDesigner();
+    let replaced = 0;
+    const own = new CoreClient(busy.endpoint, [stuck.endpoint], () => undefined, () => (replaced++, stuckDesigner().endpoint));
+    const run = own.design(spec(), 1);
+    await own.stop();
+    await expect(run).rejects.toBeInstanceOf(StoppedBeforeAnyPulse);
+    const search = own.shortest(spec(), { goalMean: 1e-4 });
+    await own.stop();
+    const outcome = await search;
+    expect([outcome.stopped, outcome.segments, outcome.tried.length]).toEqual([true, null, 0]);
+    expect(stuck.calls).toEqual([]);
+    expect(replaced).toBe(0);
     own.dispose();
   });
 
