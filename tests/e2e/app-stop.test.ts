@@ -46,6 +46,7 @@ describe.skipIf(reason !== null)('Stop and the form', () => {
     expect(await page.locator('#pulse-picker option').count()).toBe(listed);
     // Run again at once: fresh design workers took the ended ones' place.
     expect(await page.getByTestId('run').isDisabled()).toBe(false);
+    await screenshotLooks(page, 'stop-nothing-kept');
     expect(consoleErrors).toEqual([]);
     await context.close();
   }, 120_000);
