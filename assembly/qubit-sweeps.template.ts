@@ -332,6 +332,57 @@ export function __NAME__(
 }
 //#end
 
+//#unroll blocksFigureForward:2
+/**
+ * The figure's forward sweep of member j, two blocks per copy (blocksForward without the
+ * stored cos a, S, T and without T): each lane's product back into ends.
+ */
+export function __NAME__(
+  samples: usize, step: usize, h: i32, c: f64, j: i32,
+  scalePtr: usize, detPtr: usize, ends: usize, series: i32,
+): void {
+  const terms = series & 0xff;
+  const halv = series >> 8;
+  const reduce = vsplat(1.0 / <f64>(<i64>1 << (2 * halv)));
+  const one = vsplat(1.0);
+  const two = vsplat(2.0);
+  const four = vsplat(4.0);
+  const c2 = vsplat(c * c);
+  const region$ = samples + <usize>$index * step;
+  const e$ = ends + <usize>$index * 160;
+  const s = vsplat(load<f64>(scalePtr + (<usize>j << 3)));
+  const s2 = vmul(s, s);
+  const cs = vmul(s, vsplat(c));
+  const bz = vmul(vsplat(load<f64>(detPtr + (<usize>j << 3))), vsplat(-c));
+  const bz2 = vmul(bz, bz);
+  const nbz = vneg(bz);
+  let aur$ = v128.load(e$), aui$ = v128.load(e$, 16), avr$ = v128.load(e$, 32), avi$ = v128.load(e$, 48);
+  for (let t = 0; t < h; t++) {
+    const sp$ = region$ + <usize>t * 48;
+    const vi$ = v128.load(sp$), vq$ = v128.load(sp$, 16), live$ = v128.load(sp$, 32);
+    let x$ = vmad(s2, vmul(c2, vmad(vi$, vi$, vmul(vq$, vq$))), bz2);
+    if (halv > 0) { x$ = vmul(x$, reduce); }
+    let co$ = seriesCos(x$, terms);
+    let si$ = seriesSinc(x$, terms);
+    for (let step = 0; step < halv; step++) {
+      const nc$ = vsub(one, vmul(vmul(two, x$), vmul(si$, si$)));
+      si$ = vmul(si$, co$); co$ = nc$; x$ = vmul(x$, four);
+    }
+    // A slot past the end of a block is the identity: cos a = 1, S = 0.
+    co$ = v128.bitselect(co$, one, live$);
+    si$ = v128.and(si$, live$);
+    const sig$ = vmul(si$, cs);
+    const uur$ = co$, uui$ = vmul(si$, nbz), uvr$ = vmul(sig$, vq$), uvi$ = vmul(sig$, vneg(vi$));
+    const nur$ = qmulUr(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
+    const nui$ = qmulUi(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
+    const nvr$ = qmulVr(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
+    const nvi$ = qmulVi(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
+    aur$ = nur$; aui$ = nui$; avr$ = nvr$; avi$ = nvi$;
+  }
+  v128.store(e$, aur$); v128.store(e$, aui$, 16); v128.store(e$, avr$, 32); v128.store(e$, avi$, 48);
+}
+//#end
+
 //#unroll blocksBackward:2
 /**
  * Backward sweep of member j, two blocks per copy, from the vectors m (and m' for states) that ends
