@@ -127,34 +127,45 @@ const objectiveGradient: { segments: number; members: number; wasmMs: number; fi
   });
 }
 
+{
+  // The speed targets on this machine (portable build, Node 20), beside the figures above.
+  const at = (segments: number, members: number) => objectiveGradient.find((r) => r.segments === segments && r.members === members)!;
+  const target = (what: string, value: number, limit: number): string => `${what} ${value.toFixed(2)} ns (target <= ${limit}, ${value <= limit ? 'met' : 'not met'}, ${(limit / value).toFixed(2)}x of it)`;
+  log(`targets: ${target('gradient 1000 x 25', at(1000, 25).nsPerSegmentMember, 8)}; ${target('gradient 1000 x 1', at(1000, 1).nsPerSegmentMember, 10)}; ${target('figure (maps) 1000 x 25', at(1000, 25).figureNsPerSegmentMember, 4)}`);
+}
+
 // 1a. One member: blocks of segments side by side in the lanes (assembly/qubit-blocks.ts)
 // against the paired-member path it replaces (one zero-weight member that is not a copy of
 // member 0 sends the job down that path), alternating rounds in this process.
-log('\none member: blocks of segments in the lanes against paired members (objective + gradient, alternating rounds)');
-log('segments   blocks ns/seg   paired ns/seg   paired/blocks');
-const oneMember: { segments: number; blocksNs: number; pairedNs: number; ratio: number }[] = [];
+log('\none member: blocks of segments in the lanes against paired members (alternating rounds)');
+log('segments   gradient: blocks ns/seg   paired ns/seg   paired/blocks   figure alone: blocks ns/seg   paired ns/seg   paired/blocks');
+const oneMember: { segments: number; blocksNs: number; pairedNs: number; ratio: number; figureBlocksNs: number; figurePairedNs: number; figureRatio: number }[] = [];
 for (const segments of [100, 1000, 10000]) {
   const pulse = smoothPulse(segments, 2e-7 * (segments / 100), 1e7);
   const member = { detuning: 3e5, amplitudeError: 0.02, weight: 1 };
   const blocks = prepareGradientJob(gate, pulse, [member]);
   const paired = prepareGradientJob(gate, pulse, [member, { detuning: -4e5, amplitudeError: 0, weight: 0 }]);
   const reps = Math.max(3, Math.round(2e5 / segments));
-  const timeOf = (job: typeof blocks): number => {
+  const timeOf = (fn: () => number): number => {
     const t = performance.now();
-    for (let k = 0; k < reps; k++) job.run();
+    for (let k = 0; k < reps; k++) fn();
     return (performance.now() - t) / reps;
   };
-  for (let k = 0; k < 3; k++) { timeOf(blocks); timeOf(paired); }
-  const b: number[] = [], p: number[] = [], r: number[] = [];
+  for (let k = 0; k < 3; k++) { timeOf(blocks.run); timeOf(paired.run); timeOf(blocks.figure); timeOf(paired.figure); }
+  const b: number[] = [], p: number[] = [], r: number[] = [], fb: number[] = [], fp: number[] = [], fr: number[] = [];
   for (let round = 0; round < 21; round++) {
-    const tb = timeOf(blocks), tp = timeOf(paired);
+    const tb = timeOf(blocks.run), tp = timeOf(paired.run);
     b.push(tb); p.push(tp); r.push(tp / tb);
+    const ub = timeOf(blocks.figure), up = timeOf(paired.figure);
+    fb.push(ub); fp.push(up); fr.push(up / ub);
   }
   blocks.dispose(); paired.dispose();
-  const mid = (a: number[]): number => [...a].sort((x, y) => x - y)[a.length >> 1];
-  const row = { segments, blocksNs: (mid(b) * 1e6) / segments, pairedNs: (mid(p) * 1e6) / segments, ratio: mid(r) };
+  const row = {
+    segments, blocksNs: (medianOf(b) * 1e6) / segments, pairedNs: (medianOf(p) * 1e6) / segments, ratio: medianOf(r),
+    figureBlocksNs: (medianOf(fb) * 1e6) / segments, figurePairedNs: (medianOf(fp) * 1e6) / segments, figureRatio: medianOf(fr),
+  };
   oneMember.push(row);
-  log(`${String(segments).padStart(8)}   ${row.blocksNs.toFixed(2).padStart(13)}   ${row.pairedNs.toFixed(2).padStart(13)}   ${row.ratio.toFixed(2).padStart(13)}`);
+  log(`${String(segments).padStart(8)}   ${row.blocksNs.toFixed(2).padStart(22)}   ${row.pairedNs.toFixed(2).padStart(13)}   ${row.ratio.toFixed(2).padStart(13)}   ${row.figureBlocksNs.toFixed(2).padStart(26)}   ${row.figurePairedNs.toFixed(2).padStart(13)}   ${row.figureRatio.toFixed(2).padStart(13)}`);
 }
 
 // 1b. The transmon ladder through the system seam (a problem block of the ladder kind, as
