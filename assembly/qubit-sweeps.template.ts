@@ -159,7 +159,7 @@ export function __NAME__(
   }
   if (n > 0) {
     const uur$ = pur$, uui$ = pui$, uvr$ = pvr$, uvi$ = pvi$;
-      //#insert leftMultiply
+    //#insert leftMultiply
   }
   // W = G A
   const wui$ = qmulUi(gur, gui, gvr, gvi, aur$, aui$, avr$, avi$);
@@ -230,7 +230,7 @@ export function __NAME__(
   }
   if (n > 0) {
     const uur$ = pur$, uui$ = pui$, uvr$ = pvr$, uvi$ = pvi$;
-      //#insert leftMultiply
+    //#insert leftMultiply
   }
   const wur$ = qmulUr(gur, gui, gvr, gvi, aur$, aui$, avr$, avi$);
   const wui$ = qmulUi(gur, gui, gvr, gvi, aur$, aui$, avr$, avi$);
@@ -359,7 +359,7 @@ export function __NAME__(
   }
   if (h > 0) {
     const uur$ = pur$, uui$ = pui$, uvr$ = pvr$, uvi$ = pvi$;
-      //#insert leftMultiply
+    //#insert leftMultiply
   }
   v128.store(e$, aur$); v128.store(e$, aui$, 16); v128.store(e$, avr$, 32); v128.store(e$, avi$, 48);
 }
@@ -417,7 +417,7 @@ export function __NAME__(
   }
   if (h > 0) {
     const uur$ = pur$, uui$ = pui$, uvr$ = pvr$, uvi$ = pvi$;
-      //#insert leftMultiply
+    //#insert leftMultiply
   }
   v128.store(e$, aur$); v128.store(e$, aui$, 16); v128.store(e$, avr$, 32); v128.store(e$, avi$, 48);
 }
