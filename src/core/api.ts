@@ -174,32 +174,46 @@ const MAP_CHUNK = 8192;
 
 /** Infidelity of a pulse on a detuning x amplitude-error grid, through `line` when given (on a ladder with `system`, and its leakage). */
 export function robustnessMap(target: Target, programmed: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line, system?: LadderSystem): RobustnessMap {
+  const part = robustnessMapPart(target, programmed, detuning, amplitudeError, 0, detuning.points * amplitudeError.points, line, system);
+  const map: RobustnessMap = { detuning: { ...detuning }, amplitudeError: { ...amplitudeError }, infidelity: part.infidelity };
+  if (part.leakage) map.leakage = part.leakage;
+  return map;
+}
+
+/**
+ * The grid points `start` to `start + count - 1` of robustnessMap (row-major: detuning
+ * varies fastest), with the same values bit for bit: each point's value is computed from the
+ * whole grid's axis values and does not depend on the other points of its call. The worker
+ * computes a long map in such parts, so that other requests do not wait for the whole map.
+ */
+export function robustnessMapPart(target: Target, programmed: Pulse, detuning: GridAxis, amplitudeError: GridAxis, start: number, count: number, line?: Line, system?: LadderSystem): { infidelity: Float64Array; leakage?: Float64Array } {
   checkTarget(target);
   checkPulse(programmed);
   checkRegion({ detuning, amplitudeError });
+  const total = detuning.points * amplitudeError.points;
+  if (!Number.isInteger(start) || !Number.isInteger(count) || start < 0 || count < 0 || start + count > total) {
+    throw new ArgumentError(`points ${describeValue(start)} to ${describeValue(start + count - 1)} are not allowed; a grid of ${detuning.points} x ${amplitudeError.points} has points 0 to ${total - 1}`);
+  }
   const pulse = qubitDrive(programmed, line);
   const far = Math.max(Math.abs(detuning.min), Math.abs(detuning.max));
   checkPulseAngles(pulse, [{ detuning: far, amplitudeError: amplitudeError.max, weight: 1 }, { detuning: far, amplitudeError: amplitudeError.min, weight: 1 }]);
   const dv = axisValues(detuning), av = axisValues(amplitudeError);
-  const total = dv.length * av.length;
-  const infidelity = new Float64Array(total);
+  const infidelity = new Float64Array(count);
   const ladder = encodeSystem(target, [{ detuning: 0, amplitudeError: 0, weight: 1 }], system).ladder;
-  const leakage = ladder ? new Float64Array(total) : undefined;
-  for (let start = 0; start < total; start += MAP_CHUNK) {
-    const count = Math.min(MAP_CHUNK, total - start);
+  const leakage = ladder ? new Float64Array(count) : undefined;
+  for (let from = 0; from < count; from += MAP_CHUNK) {
+    const size = Math.min(MAP_CHUNK, count - from);
     const chunk: Member[] = [];
-    for (let j = 0; j < count; j++) {
-      const idx = start + j;
+    for (let j = 0; j < size; j++) {
+      const idx = start + from + j;
       chunk.push({ detuning: dv[idx % dv.length], amplitudeError: av[Math.floor(idx / dv.length)], weight: 1 });
     }
     const enc = encodeSystem(target, chunk, system);
     const values = figures(target, pulse, enc);
-    infidelity.set(values.subarray(0, count), start);
-    if (leakage) leakage.set(values.subarray(enc.members.padded, enc.members.padded + count), start);
+    infidelity.set(values.subarray(0, size), from);
+    if (leakage) leakage.set(values.subarray(enc.members.padded, enc.members.padded + size), from);
   }
-  const map: RobustnessMap = { detuning: { ...detuning }, amplitudeError: { ...amplitudeError }, infidelity };
-  if (leakage) map.leakage = leakage;
-  return map;
+  return leakage ? { infidelity, leakage } : { infidelity };
 }
 
 /**

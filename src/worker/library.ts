@@ -1,5 +1,5 @@
 // The library as the worker serves it: the same functions the command line calls.
-import { blochTrajectory, design, evaluateMembers, robustnessMap } from '../core/api.ts';
+import { blochTrajectory, design, evaluateMembers, robustnessMap, robustnessMapPart } from '../core/api.ts';
 import { compare, evaluateJudged } from '../core/compare.ts';
 import { compositeNames } from '../core/composites.ts';
 import { dragFamily } from '../core/drag-family.ts';
@@ -22,6 +22,7 @@ export const library: CoreLibrary = {
   evaluate: evaluateJudged,
   evaluateMembers,
   robustnessMap,
+  robustnessMapPart,
   blochTrajectory,
   populations: (pulse, member, system, from, line) => {
     const drive = qubitDrive(pulse, line);

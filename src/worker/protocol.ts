@@ -72,6 +72,14 @@ export interface MapResult {
   leakage?: Float64Array;
 }
 
+/** Some consecutive points of a map's grid (row-major, detuning fastest) from point `start` on. */
+export interface MapPart {
+  start: number;
+  infidelity: Float64Array;
+  /** On a ladder of more than two levels: the leakage at the same points. */
+  leakage?: Float64Array;
+}
+
 /** Populations of every level against time: `values[k * levels + l]` is level l's at `startS + k dt` (k = 0..N; k = 0 the initial state, k the state after drive sample k - 1). */
 export interface Populations {
   levels: number;
@@ -179,6 +187,8 @@ export interface CoreService {
   evaluate(spec: unknown, pulse: Pulse): Promise<Evaluation>;
   /** Infidelity (and on a ladder leakage) of a pulse on a grid, through the line, on the system. */
   map(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line, system?: LadderSystem): Promise<MapResult>;
+  /** Grid points `start` to `start + count - 1` of `map` (row-major, detuning fastest), the same values bit for bit: a long map is computed in such parts so that other jobs need not wait for all of it. */
+  mapPart(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, start: number, count: number, line?: Line, system?: LadderSystem): Promise<MapPart>;
   /** Cuts through zero error with the grid's ranges and point counts. */
   cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line, system?: LadderSystem): Promise<Cuts>;
   /** Summary figures and cuts of the given pulses and composite sequences under the spec's limits. */

@@ -17,6 +17,7 @@ import type {
   EnsemblePaths,
   ErrorInfo,
   LivePulse,
+  MapPart,
   MapResult,
   Populations,
   ProgressPoint,
@@ -38,6 +39,8 @@ export interface CoreLibrary {
   evaluate(spec: unknown, pulse: Pulse): Evaluation;
   evaluateMembers(target: Target, pulse: Pulse, members: Member[], line?: Line, system?: LadderSystem): Evaluation;
   robustnessMap(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line, system?: LadderSystem): RobustnessMap;
+  /** Grid points `start` to `start + count - 1` of robustnessMap, the same values bit for bit. */
+  robustnessMapPart(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, start: number, count: number, line?: Line, system?: LadderSystem): { infidelity: Float64Array; leakage?: Float64Array };
   blochTrajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line, system?: LadderSystem): Float64Array;
   /** Population of every level after each sample of the drive through the line (ladderPopulations). */
   populations(pulse: Pulse, member: Member, system: LadderSystem, from: Vec3, line?: Line): Populations;
@@ -237,6 +240,15 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
         const map = library.robustnessMap(target, pulse, detuning, amplitudeError, line, system);
         const result: MapResult = { detuning: map.detuning, amplitudeError: map.amplitudeError, infidelity: map.infidelity };
         if (map.leakage) result.leakage = map.leakage;
+        return moved(result);
+      });
+    },
+
+    mapPart(target, pulse, detuning, amplitudeError, start, count, line, system) {
+      return withCore((): MapPart => {
+        const part = library.robustnessMapPart(target, pulse, detuning, amplitudeError, start, count, line, system);
+        const result: MapPart = { start, infidelity: part.infidelity };
+        if (part.leakage) result.leakage = part.leakage;
         return moved(result);
       });
     },
