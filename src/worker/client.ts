@@ -1,8 +1,10 @@
 // The page's one door to the core: a small pool of workers behind coarse async calls.
 // Designs spread their starts over the pool and keep the best pulse; maps come back coarse
-// first, then at full resolution in bands computed in parallel. The only `wrap`.
+// first, then at full resolution, each in parts of bounded core time computed in parallel.
+// The only `wrap`.
 import { proxy, releaseProxy, wrap, type Endpoint, type Remote } from 'comlink';
 import { mergeDesigns, mergePruned, prunes, Referee, startsToContinue, type Checkpoint } from '../core/best-start.ts';
+import { QUBIT_NS, systemCostFactor } from '../core/cost.ts';
 import { axisValue } from '../core/grid.ts';
 import type { QubitDrive } from '../core/line.ts';
 import type { DesignResult, Evaluation, GridAxis, LadderSystem, Line, Member, Problem, Pulse, StartResult, Target, Vec3 } from '../core/types.ts';
@@ -20,6 +22,7 @@ import type {
   ExportPreview,
   FileProgressSink,
   LivePulse,
+  MapPart,
   MapResult,
   Populations,
   ProgressBatch,
@@ -57,6 +60,33 @@ export function bandRows(rows: number, bands: number): Array<[number, number]> {
     if (last >= first) out.push([first, last]);
   }
   return out;
+}
+
+/**
+ * Core time one part of a map may take by the cost model (core/cost.ts, objective and
+ * gradient, an upper bound for the figure a map computes), in ns: a job sent to a worker
+ * while it computes a map (a design's check, the worst member, another map) waits for at
+ * most one part, not for the whole map.
+ */
+export const MAP_PART_NS = 50e6;
+
+/** Grid points per part of a map of a pulse of `segments` samples on a system `costFactor` times the qubit's cost: about MAP_PART_NS of core time, at least one. */
+export function mapPartPoints(segments: number, costFactor: number): number {
+  const points = Math.floor(MAP_PART_NS / (Math.max(1, segments) * QUBIT_NS * costFactor));
+  // Whole groups of four members fill the qubit kernels' lanes.
+  return points >= 8 ? points - (points % 4) : Math.max(1, points);
+}
+
+/** `total` grid points in consecutive parts of at most `size` points: [first point, count]. */
+export function mapParts(total: number, size: number): Array<[number, number]> {
+  const out: Array<[number, number]> = [];
+  for (let start = 0; start < total; start += size) out.push([start, Math.min(size, total - start)]);
+  return out;
+}
+
+/** The error a map ends with when its signal aborts: the parts not yet sent are dropped. */
+function aborted(signal: AbortSignal): Error {
+  return signal.reason instanceof Error ? signal.reason : new DOMException('the map was dropped', 'AbortError');
 }
 
 /** A coarser axis over the same range: about a quarter of the points, never fewer than 2 (or 1). */
@@ -435,31 +465,57 @@ export class CoreClient {
     return this.analysis.evaluate(spec, await sendable(pulse));
   }
 
-  /** A map, coarse first, then full resolution in bands spread over the idle workers (on a ladder, with its leakage). */
-  async map(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, onUpdate?: (update: MapUpdate) => void, line?: Line, system?: LadderSystem): Promise<MapUpdate> {
-    const coarse = await this.analysis.map(target, await sendable(pulse), coarseAxis(detuning), coarseAxis(amplitudeError), line, system);
+  /**
+   * A map, coarse first, then full resolution (on a ladder, with its leakage). Each grid is
+   * computed in parts of about MAP_PART_NS of core time spread over the idle workers, so a job
+   * sent meanwhile (a design's check, the worst member) waits for one part, and a design
+   * started meanwhile gets its workers back after their current part. When `signal` aborts
+   * (the map's settings changed), the parts not yet sent are dropped and the map rejects.
+   * The values are those of the library's robustnessMap bit for bit.
+   */
+  async map(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, onUpdate?: (update: MapUpdate) => void, line?: Line, system?: LadderSystem, signal?: AbortSignal): Promise<MapUpdate> {
+    const size = mapPartPoints(pulse.i.length, systemCostFactor({ target, system }));
+    const coarse = await this.mapInParts(target, pulse, coarseAxis(detuning), coarseAxis(amplitudeError), size, line, system, signal);
     const update: MapUpdate = { coarse, complete: false };
     onUpdate?.({ ...update });
-    const pool = this.designing ? [this.analysis] : [this.analysis, ...this.designers.filter((d) => d !== this.analysis)];
-    const workers = pool.slice(0, Math.max(1, this.mapWorkers));
-    const infidelity = new Float64Array(detuning.points * amplitudeError.points).fill(NaN);
-    const fine: MapResult = { detuning: { ...detuning }, amplitudeError: { ...amplitudeError }, infidelity };
-    if (coarse.leakage) fine.leakage = new Float64Array(infidelity.length).fill(NaN);
-    const bands = bandRows(amplitudeError.points, workers.length);
-    await Promise.all(
-      bands.map(async ([first, last], b) => {
-        const rows: GridAxis = { min: axisValue(amplitudeError, first), max: axisValue(amplitudeError, last), points: last - first + 1 };
-        if (amplitudeError.points === 1) Object.assign(rows, amplitudeError);
-        const part = await this.onSurvivor(workers[b], async (worker) => worker.map(target, await sendable(pulse), detuning, rows, line, system));
-        infidelity.set(part.infidelity, first * detuning.points);
-        if (fine.leakage && part.leakage) fine.leakage.set(part.leakage, first * detuning.points);
-        update.fine = fine;
-        onUpdate?.({ ...update });
-      }),
-    );
+    await this.mapInParts(target, pulse, detuning, amplitudeError, size, line, system, signal, (fine) => {
+      update.fine = fine;
+      onUpdate?.({ ...update });
+    });
     update.complete = true;
     onUpdate?.({ ...update });
     return update;
+  }
+
+  /** One grid in parts of `size` points over the idle workers; `onPart` sees the grid (NaN where still to come) after each part. */
+  private async mapInParts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, size: number, line: Line | undefined, system: LadderSystem | undefined, signal: AbortSignal | undefined, onPart?: (map: MapResult) => void): Promise<MapResult> {
+    const total = detuning.points * amplitudeError.points;
+    const infidelity = new Float64Array(total).fill(NaN);
+    const map: MapResult = { detuning: { ...detuning }, amplitudeError: { ...amplitudeError }, infidelity };
+    const parts = mapParts(total, size);
+    let next = 0;
+    // Each worker takes the next part when its last one is done; a designer stops taking parts
+    // once a design runs (the analysis worker goes on alone).
+    const pool = [this.analysis, ...this.designers.filter((d) => d !== this.analysis)].slice(0, Math.max(1, this.mapWorkers));
+    await Promise.all(
+      pool.map(async (worker, w) => {
+        while (next < parts.length) {
+          if (signal?.aborted) throw aborted(signal);
+          // A designer ended by Stop is gone (its replacement may be designing soon).
+          if (w > 0 && (this.designing || !this.designers.includes(worker))) return;
+          const [start, count] = parts[next++];
+          const part: MapPart = await this.onSurvivor(worker, async (on) => on.mapPart(target, await sendable(pulse), detuning, amplitudeError, start, count, line, system));
+          infidelity.set(part.infidelity, start);
+          if (part.leakage) {
+            map.leakage ??= new Float64Array(total).fill(NaN);
+            map.leakage.set(part.leakage, start);
+          }
+          onPart?.(map);
+        }
+      }),
+    );
+    if (signal?.aborted) throw aborted(signal);
+    return map;
   }
 
   /**

@@ -6,7 +6,8 @@ import type { Pulse, Target } from '../../src/core/types.ts';
 import { demoSpec } from '../../src/app/demo.ts';
 import { evaluateJudged } from '../../src/core/compare.ts';
 import { expose, type Endpoint } from 'comlink';
-import { bandRows, coarseAxis, CoreClient, designWorkerCount, shareStarts, StoppedBeforeAnyPulse, type MapUpdate } from '../../src/worker/client.ts';
+import { bandRows, coarseAxis, CoreClient, designWorkerCount, mapPartPoints, mapParts, MAP_PART_NS, shareStarts, StoppedBeforeAnyPulse, type MapUpdate } from '../../src/worker/client.ts';
+import { QUBIT_NS, systemCostFactor } from '../../src/core/cost.ts';
 import { COPY_SLICE, sendable } from '../../src/worker/transfer.ts';
 import type { ProgressBatch, ProgressSink, TrialSink } from '../../src/worker/protocol.ts';
 import { closePorts, inRealmClient, serviceEndpoint } from './in-realm.ts';
@@ -100,10 +101,83 @@ describe('CoreClient over MessageChannels', () => {
     expect(updates[0].coarse.amplitudeError.points).toBe(9);
     expect(done.complete).toBe(true);
     const direct = robustnessMap(target, pulse, detuning, amplitudeError);
-    const fine = done.fine!.infidelity;
-    expect(fine.some(Number.isNaN)).toBe(false);
-    // Bands place their rows by their own end points: equal to rounding of the axis values.
-    for (let k = 0; k < fine.length; k++) expect(Math.abs(fine[k] - direct.infidelity[k])).toBeLessThanOrEqual(1e-13 + 1e-9 * direct.infidelity[k]);
+    expect(Array.from(done.fine!.infidelity)).toEqual(Array.from(direct.infidelity));
+    expect(Array.from(done.coarse.infidelity)).toEqual(Array.from(robustnessMap(target, pulse, coarseAxis(detuning), coarseAxis(amplitudeError)).infidelity));
+  });
+
+  it('computes a long map in parts of bounded core time, each value the library\'s bit for bit', async () => {
+    const target: Target = { kind: 'gate', axis: [1, 0, 0], angleRad: Math.PI / 2 };
+    // 20 000 samples on the qubit: 292 points a part by the cost model, so the 41 x 33 grid takes 5.
+    const n = 20_000;
+    const pulse: Pulse = { dt: 1e-10, i: new Float64Array(n).fill(2.5e6 / 2), q: new Float64Array(n).map((_, k) => 1e5 * Math.sin(k / 300)), metadata: {} };
+    const detuning = { min: -2e6, max: 2e6, points: 41 };
+    const amplitudeError = { min: -0.2, max: 0.2, points: 33 };
+    expect(mapPartPoints(n, 1)).toBe(292);
+    expect(mapParts(41 * 33, 292).length).toBe(5);
+    const updates: MapUpdate[] = [];
+    const done = await client.map(target, pulse, detuning, amplitudeError, (u) => updates.push(u));
+    expect(updates.filter((u) => u.fine).length).toBeGreaterThanOrEqual(5);
+    expect(Array.from(done.fine!.infidelity)).toEqual(Array.from(robustnessMap(target, pulse, detuning, amplitudeError).infidelity));
+  });
+
+  it('computes a ladder\'s map and leakage in parts equal to the library\'s bit for bit', async () => {
+    const target: Target = { kind: 'gate', axis: [1, 0, 0], angleRad: Math.PI };
+    const system = { levels: 3, anharmonicity: -2e8 };
+    const n = 2000;
+    const pulse: Pulse = { dt: 1e-11, i: new Float64Array(n).map((_, k) => 2.5e7 * Math.sin((Math.PI * (k + 0.5)) / n) ** 2), q: new Float64Array(n), metadata: {} };
+    const detuning = { min: -5e6, max: 5e6, points: 11 };
+    const amplitudeError = { min: -0.1, max: 0.1, points: 9 };
+    // (270 + 8 d^3) ns a segment-member on d levels (core/cost.ts): 48 points a part, 3 parts.
+    const size = mapPartPoints(n, systemCostFactor({ target, system }));
+    expect(size).toBe(48);
+    const done = await client.map(target, pulse, detuning, amplitudeError, undefined, undefined, system);
+    const direct = robustnessMap(target, pulse, detuning, amplitudeError, undefined, system);
+    expect(Array.from(done.fine!.infidelity)).toEqual(Array.from(direct.infidelity));
+    expect(Array.from(done.fine!.leakage!)).toEqual(Array.from(direct.leakage!));
+  });
+
+  it('sizes a part of an 8-level ladder\'s map of 20 000 samples at one point (one point is already past the budget)', () => {
+    const factor = systemCostFactor({ target: { kind: 'gate', axis: [1, 0, 0], angleRad: Math.PI }, system: { levels: 8, anharmonicity: -2e8 } });
+    expect(factor * QUBIT_NS).toBeCloseTo(270 + 8 * 512, 9);
+    expect(mapPartPoints(20_000, factor)).toBe(1);
+    // On the qubit a part is close to the budget and never past it.
+    const points = mapPartPoints(1000, 1);
+    expect(points * 1000 * QUBIT_NS).toBeLessThanOrEqual(MAP_PART_NS);
+    expect((points + 4) * 1000 * QUBIT_NS).toBeGreaterThan(MAP_PART_NS);
+    expect(mapParts(10, 4)).toEqual([[0, 4], [4, 4], [8, 2]]);
+  });
+
+  it('answers a spec check sent during a long map before the map ends (it waits for one part, not for the map)', async () => {
+    const own = new CoreClient(serviceEndpoint(), []);
+    const target: Target = { kind: 'gate', axis: [1, 0, 0], angleRad: Math.PI / 2 };
+    const n = 20_000;
+    const pulse: Pulse = { dt: 1e-10, i: new Float64Array(n).fill(1e6), q: new Float64Array(n), metadata: {} };
+    const events: string[] = [];
+    let asked: Promise<unknown> | null = null;
+    await own.map(target, pulse, { min: -2e6, max: 2e6, points: 41 }, { min: -0.2, max: 0.2, points: 33 }, (u) => {
+      events.push(u.complete ? 'complete' : u.fine ? 'part' : 'coarse');
+      if (u.fine && !asked) asked = own.checkSpec(demoSpec()).then((check) => events.push(check.ok ? 'checked' : 'refused'));
+    });
+    await asked;
+    expect(events.indexOf('checked')).toBeGreaterThan(events.indexOf('part'));
+    expect(events.indexOf('checked')).toBeLessThan(events.indexOf('complete'));
+    own.dispose();
+  });
+
+  it('drops the parts of a map not yet sent when its signal aborts (its settings changed)', async () => {
+    const own = new CoreClient(serviceEndpoint(), []);
+    const target: Target = { kind: 'gate', axis: [1, 0, 0], angleRad: Math.PI / 2 };
+    const n = 20_000;
+    const pulse: Pulse = { dt: 1e-10, i: new Float64Array(n).fill(1e6), q: new Float64Array(n), metadata: {} };
+    const dropped = new AbortController();
+    let parts = 0;
+    const map = own.map(target, pulse, { min: -2e6, max: 2e6, points: 41 }, { min: -0.2, max: 0.2, points: 33 }, (u) => {
+      if (u.fine) parts++;
+      if (u.fine) dropped.abort();
+    }, undefined, undefined, dropped.signal);
+    await expect(map).rejects.toMatchObject({ name: 'AbortError' });
+    expect(parts).toBe(1);
+    own.dispose();
   });
 });
 
@@ -121,6 +195,7 @@ function stuckDesigner(first: { design?: (sink: ProgressSink) => void; shortest?
       design: (_spec: unknown, _starts: number[], sink: ProgressSink) => (calls.push('design'), first.design?.(sink), never()),
       shortest: (_spec: unknown, _request: unknown, sink: TrialSink) => (calls.push('shortest'), first.shortest?.(sink), never()),
       map: () => (calls.push('map'), never()),
+      mapPart: () => (calls.push('mapPart'), never()),
       checkSpec: () => never(),
       stop: () => (calls.push('stop'), 0),
     },
@@ -218,24 +293,25 @@ describe('Stop while a designer is inside one long core call', () => {
     own.dispose();
   });
 
-  it('computes a map band again on the analysis worker when Stop ends the designer it was on', async () => {
+  it('computes a map part again on the analysis worker when Stop ends the designer it was on', async () => {
     const stuck = stuckDesigner();
     const own = new CoreClient(serviceEndpoint(), [stuck.endpoint], () => undefined, () => stuckDesigner().endpoint);
     const target: Target = { kind: 'gate', axis: [1, 0, 0], angleRad: Math.PI / 2 };
-    const pulse: Pulse = { dt: 1e-9, i: new Float64Array(25).fill(1e7), q: new Float64Array(25), metadata: {} };
-    const detuning = { min: -2e6, max: 2e6, points: 9 };
-    const amplitudeError = { min: -0.2, max: 0.2, points: 8 };
+    // 20 000 samples: 292 points a part, so the 25 x 16 grid takes two, the second on the designer.
+    const n = 20_000;
+    const pulse: Pulse = { dt: 1e-10, i: new Float64Array(n).fill(1e6), q: new Float64Array(n), metadata: {} };
+    const detuning = { min: -2e6, max: 2e6, points: 25 };
+    const amplitudeError = { min: -0.2, max: 0.2, points: 16 };
     const map = own.map(target, pulse, detuning, amplitudeError);
-    await until(() => stuck.calls.includes('map'));
+    await until(() => stuck.calls.includes('mapPart'));
     const run = own.design(spec(), 1);
     await until(() => stuck.calls.includes('design'));
     await own.stop();
     await expect(run).rejects.toBeInstanceOf(StoppedBeforeAnyPulse);
     const done = await map;
     const direct = robustnessMap(target, pulse, detuning, amplitudeError);
-    // The band of the second half, computed again by its own end points (as bands are): equal to rounding.
-    const fine = done.fine!.infidelity;
-    for (let k = 0; k < fine.length; k++) expect(Math.abs(fine[k] - direct.infidelity[k])).toBeLessThanOrEqual(1e-13 + 1e-9 * direct.infidelity[k]);
+    // The part computed again on the analysis worker: the library's values bit for bit.
+    expect(Array.from(done.fine!.infidelity)).toEqual(Array.from(direct.infidelity));
     own.dispose();
   });
 });
