@@ -43,6 +43,11 @@ describe.skipIf(reason !== null)('Stop and the form', () => {
     // Before, Stop waited for the iteration to end and kept its pulse.
     expect(await text(page, 'run-status')).toBe('stopped before any pulse');
     expect(await text(page, 'run-iteration')).toBe('0');
+    // The design view says so too, not "No run yet".
+    const view = ((await page.locator('#view-panel').textContent()) ?? '').replace(/\s+/g, ' ');
+    expect(view).toContain('Stopped before any pulse');
+    expect(view).toContain('the run was stopped before any start reported a pulse');
+    expect(view).not.toContain('No run yet');
     expect(await page.locator('#pulse-picker option').count()).toBe(listed);
     // Run again at once: fresh design workers took the ended ones' place.
     expect(await page.getByTestId('run').isDisabled()).toBe(false);
