@@ -5,7 +5,8 @@
 import { proxy, releaseProxy, wrap, type Endpoint, type Remote } from 'comlink';
 import { mergeDesigns, mergePruned, prunes, Referee, startsToContinue, type Checkpoint } from '../core/best-start.ts';
 import { QUBIT_NS, systemCostFactor } from '../core/cost.ts';
-import { axisValue } from '../core/grid.ts';
+import { axisValue, axisValues } from '../core/grid.ts';
+import { chooseTarget } from '../core/target-choice.ts';
 import type { QubitDrive } from '../core/line.ts';
 import type { DesignResult, Evaluation, GridAxis, LadderSystem, Line, Member, Problem, Pulse, StartResult, Target, Vec3 } from '../core/types.ts';
 import type { EncodedWaveform } from '../io/export/index.ts';
@@ -533,9 +534,23 @@ export class CoreClient {
     }
   }
 
-  /** Cuts through zero error over the grid's ranges. */
-  async cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line, system?: LadderSystem): Promise<Cuts> {
-    return this.analysis.cuts(target, await sendable(pulse), detuning, amplitudeError, line, system);
+  /**
+   * Cuts through zero error over the grid's ranges (the library's cuts bit for bit: one-row
+   * maps against the target chooseTarget picks), in parts as a map is, dropped like one when
+   * `signal` aborts.
+   */
+  async cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line, system?: LadderSystem, signal?: AbortSignal): Promise<Cuts> {
+    const used = chooseTarget(target, pulse).targetUsed;
+    const size = mapPartPoints(pulse.i.length, systemCostFactor({ target: used, system }));
+    const zero: GridAxis = { min: 0, max: 0, points: 1 };
+    const along = await this.mapInParts(used, pulse, detuning, zero, size, line, system, signal);
+    const across = await this.mapInParts(used, pulse, zero, amplitudeError, size, line, system, signal);
+    const cuts: Cuts = { detuning: axisValues(detuning), detuningInfidelity: along.infidelity, amplitudeError: axisValues(amplitudeError), amplitudeErrorInfidelity: across.infidelity };
+    if (along.leakage && across.leakage) {
+      cuts.detuningLeakage = along.leakage;
+      cuts.amplitudeErrorLeakage = across.leakage;
+    }
+    return cuts;
   }
 
   /** The comparison table and cuts. */

@@ -8,6 +8,7 @@ import { evaluateJudged } from '../../src/core/compare.ts';
 import { expose, type Endpoint } from 'comlink';
 import { bandRows, coarseAxis, CoreClient, designWorkerCount, mapPartPoints, mapParts, MAP_PART_NS, shareStarts, StoppedBeforeAnyPulse, type MapUpdate } from '../../src/worker/client.ts';
 import { QUBIT_NS, systemCostFactor } from '../../src/core/cost.ts';
+import { cuts as libraryCuts } from '../../src/core/robustness.ts';
 import { COPY_SLICE, sendable } from '../../src/worker/transfer.ts';
 import type { ProgressBatch, ProgressSink, TrialSink } from '../../src/worker/protocol.ts';
 import { closePorts, inRealmClient, serviceEndpoint } from './in-realm.ts';
@@ -134,6 +135,22 @@ describe('CoreClient over MessageChannels', () => {
     const direct = robustnessMap(target, pulse, detuning, amplitudeError, undefined, system);
     expect(Array.from(done.fine!.infidelity)).toEqual(Array.from(direct.infidelity));
     expect(Array.from(done.fine!.leakage!)).toEqual(Array.from(direct.leakage!));
+  });
+
+  it('computes the cuts in parts, the library\'s cuts bit for bit (qubit and ladder)', async () => {
+    const n = 2000;
+    const pulse: Pulse = { dt: 1e-11, i: new Float64Array(n).map((_, k) => 2.5e7 * Math.sin((Math.PI * (k + 0.5)) / n) ** 2), q: new Float64Array(n), metadata: {} };
+    const detuning = { min: -5e6, max: 5e6, points: 61 };
+    const amplitudeError = { min: -0.1, max: 0.1, points: 57 };
+    for (const system of [undefined, { levels: 3, anharmonicity: -2e8 }]) {
+      const target: Target = { kind: 'gate', axis: [1, 0, 0], angleRad: Math.PI };
+      const mine = await client.cuts(target, pulse, detuning, amplitudeError, undefined, system);
+      const direct = libraryCuts(target, pulse, detuning, amplitudeError, undefined, system);
+      for (const key of ['detuning', 'detuningInfidelity', 'amplitudeError', 'amplitudeErrorInfidelity', 'detuningLeakage', 'amplitudeErrorLeakage'] as const) {
+        expect(mine[key] === undefined ? undefined : Array.from(mine[key]!)).toEqual(direct[key] === undefined ? undefined : Array.from(direct[key]!));
+      }
+      if (system) expect(mine.detuningLeakage).toBeDefined();
+    }
   });
 
   it('sizes a part of an 8-level ladder\'s map of 20 000 samples at one point (one point is already past the budget)', () => {
