@@ -156,23 +156,29 @@ export function splitObjective(
  * Whether the next evaluation hands shares to the pool's threads or runs them all here:
  * both routes give the same bits, so the faster one is taken. The first WARM_UP
  * evaluations alternate; after them each evaluation takes the route whose last WINDOW
- * times have the lower median, and every EXPLORE_EVERY-th takes the other one, since the
- * machine's load changes (a busy machine can make the helper threads wait for a core and
- * two threads slower than one); an exploration that beats the current route's median is
- * repeated at once, so a change of load is followed within a few evaluations. Medians,
- * not running means: a helper's first evaluations can run 2 to 3.5 times slower (a cold
- * engine, a busy core), and a running mean of them kept a 1000 x 121 design on one thread
- * for all of its 150 iterations although two threads were 1.45 times faster.
+ * times have the lower median, and now and then the other one, since the machine's load
+ * changes (a busy machine can make the helper threads wait for a core and two threads
+ * slower than one): EXPLORE_EVERY evaluations after the last try, an interval that
+ * doubles (to EXPLORE_MOST) while the tries lose, as they cost most on a busy machine; a
+ * try that beats the current route's median is repeated at once, so a change of load is
+ * followed within a few evaluations. Medians, not running means: a helper's first
+ * evaluations can run 2 to 3.5 times slower (a cold engine, a busy core), and a running
+ * mean of them kept a 1000 x 121 design on one thread for all of its 150 iterations
+ * although two threads were 1.45 times faster.
  */
 export class ShareRoute {
-  static readonly WARM_UP = 10;
+  static readonly WARM_UP = 6;
   static readonly WINDOW = 5;
   static readonly EXPLORE_EVERY = 20;
+  static readonly EXPLORE_MOST = 320;
   private count = 0;
   private readonly pooled: number[] = [];
   private readonly alone: number[] = [];
   private exploring = false;
   private again = false;
+  private interval = ShareRoute.EXPLORE_EVERY;
+  /** The first try comes soon after the warm-up: a cold helper's slow first times can have decided it. */
+  private nextTry = ShareRoute.WARM_UP + ShareRoute.WINDOW;
   /** True: use the pool for the next evaluation. */
   next(): boolean {
     const k = this.count++;
@@ -181,7 +187,7 @@ export class ShareRoute {
       return k % 2 === 0;
     }
     const faster = lowerMedian(this.pooled) <= lowerMedian(this.alone);
-    this.exploring = this.again || k % ShareRoute.EXPLORE_EVERY === 0;
+    this.exploring = this.again || k >= this.nextTry;
     return this.exploring ? !faster : faster;
   }
   /** The time (ms) the last evaluation took on its route. */
@@ -189,7 +195,11 @@ export class ShareRoute {
     const times = pooled ? this.pooled : this.alone, other = pooled ? this.alone : this.pooled;
     times.push(ms);
     if (times.length > ShareRoute.WINDOW) times.shift();
-    this.again = this.exploring && ms < lowerMedian(other) && lowerMedian(times) > lowerMedian(other);
+    if (!this.exploring) return;
+    const won = ms < lowerMedian(other);
+    this.again = won && lowerMedian(times) > lowerMedian(other);
+    this.interval = won ? ShareRoute.EXPLORE_EVERY : Math.min(2 * this.interval, ShareRoute.EXPLORE_MOST);
+    this.nextTry = this.count + this.interval;
   }
 }
 

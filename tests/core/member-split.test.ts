@@ -104,23 +104,32 @@ describe('ShareRoute: the route of each evaluation, from the times each route to
   };
 
   it('takes the pool once it is faster, although its first evaluations were slow (a cold thread)', () => {
-    // The pool's first two evaluations 3.3 and 2 ms, then 0.6 ms; one thread 0.93 ms.
+    // The pool's first two evaluations 3.3 and 2.5 ms, then 0.6 ms; one thread 0.93 ms.
     const taken = routes(200, (pooled, k) => (pooled ? (k < 4 ? 3.3 - k * 0.4 : 0.6) : 0.93));
     expect(taken.slice(0, ShareRoute.WARM_UP)).toEqual(Array.from({ length: ShareRoute.WARM_UP }, (_, k) => k % 2 === 0));
-    const after = taken.slice(ShareRoute.WARM_UP);
-    // Every evaluation after the warm-up on the pool but the explorations of the other route.
-    const alone = after.map((p, j) => (p ? -1 : j + ShareRoute.WARM_UP)).filter((k) => k >= 0);
-    expect(alone).toEqual(alone.filter((k) => k % ShareRoute.EXPLORE_EVERY === 0));
-    expect(after.filter((p) => p).length).toBeGreaterThanOrEqual(after.length - Math.ceil(after.length / ShareRoute.EXPLORE_EVERY));
+    // The warm-up's median (2.5 ms) says one thread, the first try of the pool soon after says otherwise.
+    const firstPool = taken.findIndex((p, k) => p && k >= ShareRoute.WARM_UP);
+    expect(firstPool).toBe(ShareRoute.WARM_UP + ShareRoute.WINDOW);
+    expect(taken.slice(firstPool, firstPool + 20).every((p) => p)).toBe(true);
+    // From there on the pool, but for tries of the other route, which lose: spaced ever wider.
+    const alone = taken.map((p, k) => (p ? -1 : k)).filter((k) => k > firstPool);
+    expect(alone.length).toBeGreaterThan(0);
+    expect(alone.length).toBeLessThanOrEqual(3);
+    for (let j = 1; j < alone.length; j++) expect(alone[j] - alone[j - 1]).toBeGreaterThanOrEqual(2 * ShareRoute.EXPLORE_EVERY);
   });
 
-  it('stays on one thread while the pool is slower, and moves to the pool when the load changes', () => {
+  it('stays on one thread while the pool is slower, and moves to the pool within a few evaluations of its next try', () => {
     // The pool 2 ms (a helper waiting for a core) for the first 100 evaluations, then 0.6 ms.
-    const taken = routes(200, (pooled, k) => (pooled ? (k < 100 ? 2 : 0.6) : 0.93));
-    expect(taken.slice(ShareRoute.WARM_UP, 100).filter((p) => p).length).toBeLessThanOrEqual(Math.ceil(100 / ShareRoute.EXPLORE_EVERY));
-    // From the first exploration after the change, explorations follow each other until the pool's median is the lower.
-    const back = 100 + ShareRoute.EXPLORE_EVERY + ShareRoute.WINDOW;
-    expect(taken.slice(back).filter((p) => !p).length).toBeLessThanOrEqual(Math.ceil((200 - back) / ShareRoute.EXPLORE_EVERY));
+    const taken = routes(300, (pooled, k) => (pooled ? (k < 100 ? 2 : 0.6) : 0.93));
+    const tries = taken.map((p, k) => (p ? k : -1)).filter((k) => k >= ShareRoute.WARM_UP && k < 100);
+    expect(tries.length).toBeLessThanOrEqual(3);
+    // The first try after the change, then tries at once until the pool's median is the lower; the pool from there on.
+    const first = taken.findIndex((p, k) => p && k >= 100);
+    expect(first).toBeLessThanOrEqual(100 + 4 * ShareRoute.EXPLORE_EVERY);
+    const settled = first + (ShareRoute.WINDOW >> 1) + 1;
+    expect(taken.slice(first, settled).every((p) => p)).toBe(true);
+    const later = taken.slice(settled);
+    expect(later.filter((p) => !p).length).toBeLessThanOrEqual(Math.ceil(later.length / (2 * ShareRoute.EXPLORE_EVERY)) + 1);
   });
 });
 
