@@ -13,6 +13,17 @@ import { openPulse, openReady, screenshotLooks, useHarness } from './screens.ts'
 
 const reason = skipReason();
 
+/** Waits until the Bloch canvas shows a whole picture (not a preview while turning) of `paths` paths. */
+const picture = (page: Page, paths: number) =>
+  page.waitForFunction(
+    (paths) => {
+      const c = document.querySelector<HTMLCanvasElement>('[data-testid=bloch]');
+      return c?.dataset.paths === String(paths) && c.dataset.preview === 'false';
+    },
+    paths,
+    { timeout: 60_000 },
+  );
+
 /** A pulse file's text. */
 const pulseFile = (dt: number, i: number[], q: number[] = i.map(() => 0), name = 'pulse') => Buffer.from(JSON.stringify({ dt, i, q, metadata: { name } }));
 
@@ -172,14 +183,14 @@ describe.skipIf(reason !== null)('views in Chromium', () => {
         for (let k = 0; k < data.length; k += 4) if (data[k + 3]) set.add((data[k] << 16) | (data[k + 1] << 8) | data[k + 2]);
         return set.size;
       });
-    await page.waitForTimeout(200);
+    await picture(page, 25);
     const all = await colours();
     await screenshotLooks(page, 'views-bloch-all');
     await page.getByLabel('chosen members').check();
     await page.getByLabel('1: Δ = -1 MHz, ε = -10 %').check();
     await page.getByLabel('25: Δ = 1 MHz, ε = 10 %').check();
     await page.waitForFunction(() => document.querySelector('[data-testid=bloch-facts]')?.getAttribute('data-members') === '2');
-    await page.waitForTimeout(200);
+    await picture(page, 2);
     expect(all).toBeGreaterThan(await colours());
     await screenshot(page, 'views-bloch-chosen');
   }, 120_000);
@@ -205,7 +216,7 @@ describe.skipIf(reason !== null)('views in Chromium', () => {
         after,
         { timeout: 60_000 },
       );
-    const picture = () =>
+    const pixels = () =>
       page.evaluate(() => {
         const c = document.querySelector('[data-testid=bloch]') as HTMLCanvasElement;
         const data = c.getContext('2d')!.getImageData(0, 0, c.width, c.height).data;
@@ -220,17 +231,17 @@ describe.skipIf(reason !== null)('views in Chromium', () => {
     await page.getByLabel('chosen members').check();
     await page.getByLabel('1: Δ = -1 MHz, ε = -10 %').check();
     await page.waitForFunction(() => document.querySelector('[data-testid=bloch-facts]')?.getAttribute('data-members') === '1');
-    await whole(await frames());
-    const one = await picture();
+    await picture(page, 1);
+    const one = await pixels();
     await page.getByLabel('all 25 members').check();
     await page.waitForFunction(() => document.querySelector('[data-testid=bloch-facts]')?.getAttribute('data-members') === '25');
-    await whole(await frames());
-    const all = await picture();
+    await picture(page, 25);
+    const all = await pixels();
     // Every member's path in its own colour of the map's scale: far more colours than one path.
     expect(all.colours).toBeGreaterThan(2 * one.colours);
     await screenshotLooks(page, 'views-bloch-long', ['light', 'dark'], 3000);
     await whole(0);
-    await picture();
+    await pixels();
     // Turning: pictures come while the mouse moves (every n-th point), and the whole picture once it stops.
     const box = (await canvas.boundingBox())!;
     const start = await frames();
@@ -242,7 +253,7 @@ describe.skipIf(reason !== null)('views in Chromium', () => {
     await page.mouse.up();
     await whole(await frames());
     expect(previews).toBe('true');
-    expect((await picture()).changed).toBeGreaterThan(1000);
+    expect((await pixels()).changed).toBeGreaterThan(1000);
     await screenshot(page, 'views-bloch-long-turned');
   }, 180_000);
 

@@ -4,8 +4,8 @@
 // points, far too many to draw on the page's thread.
 //
 // Messages in: { paths, offsets } (new paths, moved), { style } (colours, target, theme,
-// size), { view } (the sphere turned). Out: { bitmap, ms, preview } (the picture, the
-// painter's time for it, and whether it shows every n-th point only).
+// size), { view } (the sphere turned). Out: a PainterFrame (the picture, the painter's time
+// for it, whether it shows every n-th point only, and how many paths it shows).
 // A picture too large for one frame is drawn in parts on a back canvas, giving way to newer
 // messages between parts; while the sphere is being turned such a scene shows every n-th point
 // (PREVIEW_POINTS a frame), and the whole picture follows once the turning pauses.
@@ -42,6 +42,8 @@ export interface PainterFrame {
   ms: number;
   /** True while turning a large scene: every n-th point only. */
   preview: boolean;
+  /** Paths in the picture. */
+  paths: number;
 }
 
 const post = (frame: PainterFrame) => (self as unknown as Worker).postMessage(frame, [frame.bitmap as unknown as Transferable]);
@@ -82,7 +84,7 @@ async function draw(): Promise<void> {
   const heavy = measured.points > PREVIEW_POINTS || measured.pixels > FRAME_PIXELS;
   if (heavy && turning) {
     paint(ctx, scene, view, { stride: Math.ceil(measured.points / PREVIEW_POINTS), pixels: measured.pixels }).step();
-    post({ bitmap: canvas.transferToImageBitmap(), ms: performance.now() - t0, preview: true });
+    post({ bitmap: canvas.transferToImageBitmap(), ms: performance.now() - t0, preview: true, paths: scene.offsets.length - 1 });
     settle = setTimeout(() => {
       if (generation !== mine) return;
       turning = false;
@@ -97,5 +99,5 @@ async function draw(): Promise<void> {
     await nextTask();
     if (generation !== mine) return;
   }
-  post({ bitmap: canvas.transferToImageBitmap(), ms: performance.now() - t0, preview: false });
+  post({ bitmap: canvas.transferToImageBitmap(), ms: performance.now() - t0, preview: false, paths: scene.offsets.length - 1 });
 }
