@@ -13,7 +13,7 @@
 // rounding only).
 
 import { vsplat } from './su2';
-import { MODE_GATE, blocksForward, blocksBackward } from './generated/qubit-sweeps';
+import { MODE_GATE, blocksForward, blocksBackward, blocksFigureForward } from './generated/qubit-sweeps';
 
 /** Lanes given to one member: four blocks of segments, two per v128 over two copies. */
 const BLOCKS: i32 = 4;
@@ -66,6 +66,27 @@ function startEnds(ends: usize, blocks: i32, targetPtr: usize): void {
 }
 
 /**
+ * The infidelity of one member from its block products (blocks of them in the ends
+ * records): L_b = P_b .. P_0 into scratch (32 bytes each), W = G A (A = L_{B-1}) into the
+ * element after the blocks' right products (blockEnds' layout of scratch).
+ */
+function blocksProductFigure(ends: usize, blocks: i32, targetPtr: usize, mode: i32, scratch: usize): f64 {
+  const left = scratch;
+  const x = scratch + (<usize>blocks << 6);
+  for (let b = 0; b < blocks; b++) {
+    const lb = left + (<usize>b << 5);
+    for (let k = 0; k < 4; k++) store<f64>(x + (<usize>k << 3), load<f64>(endAt(ends, b, <usize>k << 4)));
+    if (b == 0) memory.copy(lb, x, 32);
+    else qmul(lb, x, lb - 32);
+  }
+  qmul(x, targetPtr, left + (<usize>(blocks - 1) << 5));
+  const wui = load<f64>(x, 8), wvr = load<f64>(x, 16), wvi = load<f64>(x, 24);
+  let fig = wvr * wvr + wvi * wvi;
+  if (mode == MODE_GATE) fig = wui * wui + fig;
+  return fig;
+}
+
+/**
  * From the block products of one member (blocks of them in the ends records), its
  * infidelity (returned) and the backward vectors m, m' at each block's last segment
  * (written to the records), pre-scaled by the gradient's factors as in the one-lane sweep
@@ -74,13 +95,9 @@ function startEnds(ends: usize, blocks: i32, targetPtr: usize): void {
 function blockEnds(ends: usize, blocks: i32, c: f64, scale: f64, w: f64, targetPtr: usize, mode: i32, scratch: usize): f64 {
   const left = scratch, right = scratch + (<usize>blocks << 5);
   const x = right + (<usize>blocks << 5), y = x + 32;
-  // L_b = P_b .. P_0 into left[b]; R_b = P_{B-1} .. P_{b+1} into right[b].
-  for (let b = 0; b < blocks; b++) {
-    const lb = left + (<usize>b << 5);
-    for (let k = 0; k < 4; k++) store<f64>(x + (<usize>k << 3), load<f64>(endAt(ends, b, <usize>k << 4)));
-    if (b == 0) memory.copy(lb, x, 32);
-    else qmul(lb, x, lb - 32);
-  }
+  const fig = blocksProductFigure(ends, blocks, targetPtr, mode, scratch);
+  const wur = load<f64>(x), wui = load<f64>(x, 8);
+  // R_b = P_{B-1} .. P_{b+1} into right[b].
   for (let b = blocks - 1; b >= 0; b--) {
     const rb = right + (<usize>b << 5);
     if (b == blocks - 1) {
@@ -90,11 +107,6 @@ function blockEnds(ends: usize, blocks: i32, c: f64, scale: f64, w: f64, targetP
       qmul(rb, rb + 32, x);
     }
   }
-  // W = G A, A = L_{B-1}.
-  qmul(x, targetPtr, left + (<usize>(blocks - 1) << 5));
-  const wur = load<f64>(x), wui = load<f64>(x, 8), wvr = load<f64>(x, 16), wvi = load<f64>(x, 24);
-  let fig = wvr * wvr + wvi * wvi;
-  if (mode == MODE_GATE) fig = wui * wui + fig;
   const wcs2 = (w + w) * (scale * c);
   const fa = wcs2 * wur, fb = wcs2 * wui;
   for (let b = 0; b < blocks; b++) {
@@ -179,4 +191,26 @@ export function blocksGradient(
   drainRegion(work, gradIPtr, gradQPtr, n, h, 0);
   drainRegion(work + region, gradIPtr, gradQPtr, n, h, 2 * h);
   return fig * w;
+}
+
+/**
+ * ensembleFigure (qubit.ts) for member 0 by blocks of segments in the lanes (the members
+ * 1 .. m-1 zero-weight copies of member 0, distinctMembers == 1): its infidelity to every
+ * out[j], the weighted figure returned. work holds blocksWorkBytes(n).
+ */
+export function blocksFigure(
+  iPtr: usize, qPtr: usize, n: i32, c: f64,
+  scalePtr: usize, detPtr: usize, wPtr: usize, m: i32,
+  targetPtr: usize, mode: i32, outPtr: usize, work: usize, series: i32,
+): f64 {
+  const h = (n + BLOCKS - 1) / BLOCKS;
+  const region = <usize>h * 80;
+  const ends = work + 2 * region + <usize>h * 96;
+  fillRegion(work, iPtr, qPtr, n, h, 0);
+  fillRegion(work + region, iPtr, qPtr, n, h, 2 * h);
+  startEnds(ends, BLOCKS, targetPtr);
+  blocksFigureForward(work, region, h, c, 0, scalePtr, detPtr, ends, series);
+  const fig = blocksProductFigure(ends, BLOCKS, targetPtr, mode, ends + 320);
+  for (let j = 0; j < m; j++) store<f64>(outPtr + (<usize>j << 3), fig);
+  return fig * load<f64>(wPtr);
 }

@@ -91,6 +91,15 @@ export const MODE_STATE: i32 = 1;
     pz$ = vmad(c2a$, pz$, vmad(csn2$, fz$, vmul(sbp2$, bz$)));
 //#end
 
+// A <- U A for the segment propagator U = (uur, uui, uvr, uvi) (read all inputs first).
+//#snippet leftMultiply
+      const nur$ = qmulUr(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
+      const nui$ = qmulUi(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
+      const nvr$ = qmulVr(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
+      const nvi$ = qmulVi(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
+      aur$ = nur$; aui$ = nui$; avr$ = nvr$; avi$ = nvi$;
+//#end
+
 //#unroll figureQuad:2 figurePair:1
 /**
  * Infidelity of the members j.. of one group (written to out) added, weighted, to `mean`
@@ -121,28 +130,36 @@ export function __NAME__(
   const nbz$ = vneg(bz$);
   let aur$ = vsplat(hur), aui$ = vsplat(hui), avr$ = vsplat(hvr), avi$ = vsplat(hvi);
 
+  // Software-pipelined: each turn computes the propagator P of segment k while the
+  // product takes the one of the turn before, so the CPU overlaps the two chains.
+  let pur$ = vsplat(1.0), pui$ = vsplat(0.0), pvr$ = vsplat(0.0), pvi$ = vsplat(0.0);
   for (let k = 0; k < n; k++) {
-    const iS = load<f64>(iPtr + (<usize>k << 3));
-    const qS = load<f64>(qPtr + (<usize>k << 3));
-    const r2 = vsplat(c2 * (iS * iS + qS * qS));
-    const vni = vsplat(-iS), vq = vsplat(qS);
-    let x$ = vmad(s2$, r2, bz2$);
-    if (halv > 0) { x$ = vmul(x$, reduce); }
-    let co$ = seriesCos(x$, terms);
-    let si$ = seriesSinc(x$, terms);
-    for (let h = 0; h < halv; h++) {
-      const nc$ = vsub(one, vmul(vmul(two, x$), vmul(si$, si$)));
-      si$ = vmul(si$, co$);
-      co$ = nc$;
-      x$ = vmul(x$, four);
+    const uur$ = pur$, uui$ = pui$, uvr$ = pvr$, uvi$ = pvi$;
+    {
+      const iS = load<f64>(iPtr + (<usize>k << 3));
+      const qS = load<f64>(qPtr + (<usize>k << 3));
+      const r2 = vsplat(c2 * (iS * iS + qS * qS));
+      const vni = vsplat(-iS), vq = vsplat(qS);
+      let x$ = vmad(s2$, r2, bz2$);
+      if (halv > 0) { x$ = vmul(x$, reduce); }
+      let co$ = seriesCos(x$, terms);
+      let si$ = seriesSinc(x$, terms);
+      for (let h = 0; h < halv; h++) {
+        const nc$ = vsub(one, vmul(vmul(two, x$), vmul(si$, si$)));
+        si$ = vmul(si$, co$);
+        co$ = nc$;
+        x$ = vmul(x$, four);
+      }
+      const sig$ = vmul(si$, cs$);
+      pur$ = co$; pui$ = vmul(si$, nbz$); pvr$ = vmul(sig$, vq); pvi$ = vmul(sig$, vni);
     }
-    const sig$ = vmul(si$, cs$);
-    const uur$ = co$, uui$ = vmul(si$, nbz$), uvr$ = vmul(sig$, vq), uvi$ = vmul(sig$, vni);
-    const nur$ = qmulUr(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
-    const nui$ = qmulUi(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
-    const nvr$ = qmulVr(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
-    const nvi$ = qmulVi(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
-    aur$ = nur$; aui$ = nui$; avr$ = nvr$; avi$ = nvi$;
+    if (k > 0) {
+      //#insert leftMultiply
+    }
+  }
+  if (n > 0) {
+    const uur$ = pur$, uui$ = pui$, uvr$ = pvr$, uvi$ = pvi$;
+    //#insert leftMultiply
   }
   // W = G A
   const wui$ = qmulUi(gur, gui, gvr, gvi, aur$, aui$, avr$, avi$);
@@ -191,21 +208,29 @@ export function __NAME__(
 
   // Forward sweep: the product A = U_n ... U_1 H; cos a, S and T kept per segment.
   let aur$ = hur, aui$ = hui, avr$ = hvr, avi$ = hvi;
+  // Software-pipelined: each turn computes the propagator P of segment k while the
+  // product takes the one of the turn before, so the CPU overlaps the two chains.
+  let pur$ = vsplat(1.0), pui$ = vsplat(0.0), pvr$ = vsplat(0.0), pvi$ = vsplat(0.0);
   for (let k = 0; k < n; k++) {
-    const iS = load<f64>(iPtr + (<usize>k << 3));
-    const qS = load<f64>(qPtr + (<usize>k << 3));
-    const vni = vsplat(-iS), vq = vsplat(qS);
-    const full$ = vmad(s2$, vsplat(c2 * (iS * iS + qS * qS)), bz2$);
-    //#insert segmentSeries
-    const slot$ = work$ + <usize>k * 48;
-    v128.store(slot$, co$); v128.store(slot$, si$, 16); v128.store(slot$, tt$, 32);
-    const sig$ = vmul(si$, cs$);
-    const uur$ = co$, uui$ = vmul(si$, nbz$), uvr$ = vmul(sig$, vq), uvi$ = vmul(sig$, vni);
-    const nur$ = qmulUr(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
-    const nui$ = qmulUi(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
-    const nvr$ = qmulVr(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
-    const nvi$ = qmulVi(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
-    aur$ = nur$; aui$ = nui$; avr$ = nvr$; avi$ = nvi$;
+    const uur$ = pur$, uui$ = pui$, uvr$ = pvr$, uvi$ = pvi$;
+    {
+      const iS = load<f64>(iPtr + (<usize>k << 3));
+      const qS = load<f64>(qPtr + (<usize>k << 3));
+      const vni = vsplat(-iS), vq = vsplat(qS);
+      const full$ = vmad(s2$, vsplat(c2 * (iS * iS + qS * qS)), bz2$);
+      //#insert segmentSeries
+      const slot$ = work$ + <usize>k * 48;
+      v128.store(slot$, co$); v128.store(slot$, si$, 16); v128.store(slot$, tt$, 32);
+      const sig$ = vmul(si$, cs$);
+      pur$ = co$; pui$ = vmul(si$, nbz$); pvr$ = vmul(sig$, vq); pvi$ = vmul(sig$, vni);
+    }
+    if (k > 0) {
+      //#insert leftMultiply
+    }
+  }
+  if (n > 0) {
+    const uur$ = pur$, uui$ = pui$, uvr$ = pvr$, uvi$ = pvi$;
+    //#insert leftMultiply
   }
   const wur$ = qmulUr(gur, gui, gvr, gvi, aur$, aui$, avr$, avi$);
   const wui$ = qmulUi(gur, gui, gvr, gvi, aur$, aui$, avr$, avi$);
@@ -309,24 +334,90 @@ export function __NAME__(
   const bz2 = vmul(bz, bz);
   const nbz = vneg(bz);
   let aur$ = v128.load(e$), aui$ = v128.load(e$, 16), avr$ = v128.load(e$, 32), avi$ = v128.load(e$, 48);
+  // Software-pipelined: each turn computes the propagator P of segment t while the
+  // product takes the one of the turn before, so the CPU overlaps the two chains.
+  let pur$ = vsplat(1.0), pui$ = vsplat(0.0), pvr$ = vsplat(0.0), pvi$ = vsplat(0.0);
   for (let t = 0; t < h; t++) {
-    const sp$ = region$ + <usize>t * 48;
-    const vi$ = v128.load(sp$), vq$ = v128.load(sp$, 16), live$ = v128.load(sp$, 32);
-    const r2$ = vmul(c2, vmad(vi$, vi$, vmul(vq$, vq$)));
-    const full$ = vmad(s2, r2$, bz2);
-    //#insert segmentSeries
-    // A slot past the end of a block is the identity: cos a = 1, S = 0.
-    co$ = v128.bitselect(co$, one, live$);
-    si$ = v128.and(si$, live$);
-    const ws$ = cw$ + <usize>t * 48;
-    v128.store(ws$, co$); v128.store(ws$, si$, 16); v128.store(ws$, tt$, 32);
-    const sig$ = vmul(si$, cs);
-    const uur$ = co$, uui$ = vmul(si$, nbz), uvr$ = vmul(sig$, vq$), uvi$ = vmul(sig$, vneg(vi$));
-    const nur$ = qmulUr(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
-    const nui$ = qmulUi(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
-    const nvr$ = qmulVr(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
-    const nvi$ = qmulVi(uur$, uui$, uvr$, uvi$, aur$, aui$, avr$, avi$);
-    aur$ = nur$; aui$ = nui$; avr$ = nvr$; avi$ = nvi$;
+    const uur$ = pur$, uui$ = pui$, uvr$ = pvr$, uvi$ = pvi$;
+    {
+      const sp$ = region$ + <usize>t * 48;
+      const vi$ = v128.load(sp$), vq$ = v128.load(sp$, 16), live$ = v128.load(sp$, 32);
+      const r2$ = vmul(c2, vmad(vi$, vi$, vmul(vq$, vq$)));
+      const full$ = vmad(s2, r2$, bz2);
+      //#insert segmentSeries
+      // A slot past the end of a block is the identity: cos a = 1, S = 0.
+      co$ = v128.bitselect(co$, one, live$);
+      si$ = v128.and(si$, live$);
+      const ws$ = cw$ + <usize>t * 48;
+      v128.store(ws$, co$); v128.store(ws$, si$, 16); v128.store(ws$, tt$, 32);
+      const sig$ = vmul(si$, cs);
+      pur$ = co$; pui$ = vmul(si$, nbz); pvr$ = vmul(sig$, vq$); pvi$ = vmul(sig$, vneg(vi$));
+    }
+    if (t > 0) {
+      //#insert leftMultiply
+    }
+  }
+  if (h > 0) {
+    const uur$ = pur$, uui$ = pui$, uvr$ = pvr$, uvi$ = pvi$;
+    //#insert leftMultiply
+  }
+  v128.store(e$, aur$); v128.store(e$, aui$, 16); v128.store(e$, avr$, 32); v128.store(e$, avi$, 48);
+}
+//#end
+
+//#unroll blocksFigureForward:2
+/**
+ * The figure's forward sweep of member j, two blocks per copy (blocksForward without the
+ * stored cos a, S, T and without T): each lane's product back into ends.
+ */
+export function __NAME__(
+  samples: usize, step: usize, h: i32, c: f64, j: i32,
+  scalePtr: usize, detPtr: usize, ends: usize, series: i32,
+): void {
+  const terms = series & 0xff;
+  const halv = series >> 8;
+  const reduce = vsplat(1.0 / <f64>(<i64>1 << (2 * halv)));
+  const one = vsplat(1.0);
+  const two = vsplat(2.0);
+  const four = vsplat(4.0);
+  const c2 = vsplat(c * c);
+  const region$ = samples + <usize>$index * step;
+  const e$ = ends + <usize>$index * 160;
+  const s = vsplat(load<f64>(scalePtr + (<usize>j << 3)));
+  const s2 = vmul(s, s);
+  const cs = vmul(s, vsplat(c));
+  const bz = vmul(vsplat(load<f64>(detPtr + (<usize>j << 3))), vsplat(-c));
+  const bz2 = vmul(bz, bz);
+  const nbz = vneg(bz);
+  let aur$ = v128.load(e$), aui$ = v128.load(e$, 16), avr$ = v128.load(e$, 32), avi$ = v128.load(e$, 48);
+  // Software-pipelined like blocksForward.
+  let pur$ = vsplat(1.0), pui$ = vsplat(0.0), pvr$ = vsplat(0.0), pvi$ = vsplat(0.0);
+  for (let t = 0; t < h; t++) {
+    const uur$ = pur$, uui$ = pui$, uvr$ = pvr$, uvi$ = pvi$;
+    {
+      const sp$ = region$ + <usize>t * 48;
+      const vi$ = v128.load(sp$), vq$ = v128.load(sp$, 16), live$ = v128.load(sp$, 32);
+      let x$ = vmad(s2, vmul(c2, vmad(vi$, vi$, vmul(vq$, vq$))), bz2);
+      if (halv > 0) { x$ = vmul(x$, reduce); }
+      let co$ = seriesCos(x$, terms);
+      let si$ = seriesSinc(x$, terms);
+      for (let step = 0; step < halv; step++) {
+        const nc$ = vsub(one, vmul(vmul(two, x$), vmul(si$, si$)));
+        si$ = vmul(si$, co$); co$ = nc$; x$ = vmul(x$, four);
+      }
+      // A slot past the end of a block is the identity: cos a = 1, S = 0.
+      co$ = v128.bitselect(co$, one, live$);
+      si$ = v128.and(si$, live$);
+      const sig$ = vmul(si$, cs);
+      pur$ = co$; pui$ = vmul(si$, nbz); pvr$ = vmul(sig$, vq$); pvi$ = vmul(sig$, vneg(vi$));
+    }
+    if (t > 0) {
+      //#insert leftMultiply
+    }
+  }
+  if (h > 0) {
+    const uur$ = pur$, uui$ = pui$, uvr$ = pvr$, uvi$ = pvi$;
+    //#insert leftMultiply
   }
   v128.store(e$, aur$); v128.store(e$, aui$, 16); v128.store(e$, avr$, 32); v128.store(e$, avi$, 48);
 }

@@ -22,7 +22,7 @@
 import { seriesTerms, halvings } from './su2';
 import { figureQuad, figurePair, gradientQuad, gradientPair } from './generated/qubit-sweeps';
 import { Problem } from './problem';
-import { blocksGradient, blocksWorkBytes, distinctMembers } from './qubit-blocks';
+import { blocksFigure, blocksGradient, blocksWorkBytes, distinctMembers } from './qubit-blocks';
 
 /** Member parameters per member: scale (1 + amplitude error) and detuning. */
 export const QUBIT_PARAMS: i32 = 2;
@@ -65,14 +65,19 @@ export function seriesSettings(iPtr: usize, qPtr: usize, n: i32, c: f64, scalePt
 
 /**
  * Infidelity of each member (written to out[m]) and their weighted mean (returned).
- * m must be even (pad with zero-weight members).
+ * m must be even (pad with zero-weight members); work holds qubitWorkValues(n) f64. One
+ * member (not counting its zero-weight copies, the padding) runs blocks of segments in the
+ * lanes (qubit-blocks.ts), as the gradient does.
  */
 export function ensembleFigure(
   iPtr: usize, qPtr: usize, n: i32, dt: f64,
   scalePtr: usize, detPtr: usize, wPtr: usize, m: i32,
-  targetPtr: usize, mode: i32, outPtr: usize, series: i32,
+  targetPtr: usize, mode: i32, outPtr: usize, workPtr: usize, series: i32,
 ): f64 {
   const c = Math.PI * dt;
+  if (distinctMembers(scalePtr, detPtr, wPtr, m) == 1) {
+    return blocksFigure(iPtr, qPtr, n, c, scalePtr, detPtr, wPtr, m, targetPtr, mode, outPtr, workPtr, series);
+  }
   let mean: f64 = 0.0;
   const quads = m & ~3;
   for (let j = 0; j < quads; j += 4) {
@@ -118,7 +123,7 @@ export function qubitFigure(p: Problem): f64 {
   const scale = p.members, det = p.members + (<usize>m << 3);
   const c = Math.PI * p.driveDt;
   p.series = seriesSettings(p.driveI, p.driveQ, p.nDrive, c, scale, det, m);
-  return ensembleFigure(p.driveI, p.driveQ, p.nDrive, p.driveDt, scale, det, p.weight, m, p.target, p.mode, p.perMember, p.series);
+  return ensembleFigure(p.driveI, p.driveQ, p.nDrive, p.driveDt, scale, det, p.weight, m, p.target, p.mode, p.perMember, p.work, p.series);
 }
 
 /** The problem's ensemble figure and its gradient with respect to the drive (system seam: gradient). */

@@ -34,9 +34,12 @@ function irregularPulse(n: number, dt: number, rabi: number): Pulse {
 const rectangular = (angleDeg: number) => buildComposite('rectangular', { angleDeg, rabiMax: 1e6, dt: 1e-9 });
 
 describe('robustness map', () => {
-  // Source: the map is defined as the figure at each grid point (issue 3), so it must
-  // equal point-by-point evaluateMembers calls; the oracle is an independent propagation.
-  it('equals point-by-point evaluateMembers (1e-15) and the oracle (1e-13)', () => {
+  // Source: the map is defined as the figure at each grid point, so it must equal
+  // point-by-point evaluateMembers calls; the oracle is an independent propagation. One
+  // member alone runs blocks of segments in the lanes (assembly/qubit-blocks.ts), whose
+  // products are taken in another order: the two agree to rounding, 40 segments of a few
+  // eps each (16 eps).
+  it('equals point-by-point evaluateMembers (16 eps) and the oracle (1e-13)', () => {
     const pulse = irregularPulse(40, 5e-9, 8e6);
     const detuning = { min: -2e6, max: 3e6, points: 7 };
     const amplitudeError = { min: -0.2, max: 0.1, points: 5 };
@@ -45,7 +48,7 @@ describe('robustness map', () => {
       for (let d = 0; d < 7; d++) {
         const m = member(detuning.min + ((detuning.max - detuning.min) * d) / 6, amplitudeError.min + ((amplitudeError.max - amplitudeError.min) * a) / 4);
         const value = map.infidelity[a * 7 + d];
-        expectClose(value, evaluateMembers(X90, pulse, [m]).members[0].infidelity, { abs: 1e-15 }, `map[${a}, ${d}]`);
+        expectClose(value, evaluateMembers(X90, pulse, [m]).members[0].infidelity, { abs: ulps(16) }, `map[${a}, ${d}]`);
         expectClose(value, memberInfidelity(X90, pulse, m), { abs: 1e-13 }, `oracle[${a}, ${d}]`);
       }
     }
