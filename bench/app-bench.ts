@@ -18,17 +18,22 @@ import { mkdtemp, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { basename, join } from 'node:path';
 import { CHROMIUM, SCREENSHOTS, skipReason, startHarness, visit, type Harness } from '../tests/e2e/harness.ts';
+import { stopFigures } from './app-stop.ts';
 import { longTasksOfTrace, TASK_CATEGORIES, TRACE_CATEGORIES, type LongTask } from './long-tasks.ts';
 
 // `--large-only`: only the 100 000-sample figures, in one page (a quick look while working on them).
 const LARGE_ONLY = process.argv.includes('--large-only');
+// `--stop-only`: only the Stop figures at long core calls (app-stop.ts).
+const STOP_ONLY = process.argv.includes('--stop-only');
 // `--attribute`: trace the 100 000-sample phases and say what each long task ran.
 const ATTRIBUTE = process.argv.includes('--attribute');
 // Traces of an unminified build name the app's own functions.
 if (ATTRIBUTE) process.env.GATESMITH_READABLE_BUILD = '1';
-const REPEATS = LARGE_ONLY ? 0 : 5;
+const REPEATS = LARGE_ONLY || STOP_ONLY ? 0 : 5;
 /** Fresh pages for the 100 000-sample figures. */
-const LARGE_REPEATS = LARGE_ONLY ? 1 : 3;
+const LARGE_REPEATS = STOP_ONLY ? 0 : LARGE_ONLY ? 1 : 3;
+/** Fresh pages for each Stop case at long core calls. */
+const STOP_REPEATS = LARGE_ONLY ? 0 : Number(process.env.GATESMITH_STOP_REPEATS ?? 3);
 const LARGE_SAMPLES = 100_000;
 /** Bytes of the large pulse file (as a user reported: 62 MB). */
 const LARGE_FILE_BYTES = 62e6;
@@ -331,6 +336,8 @@ export interface AppFigures {
   /** The Bloch sphere with every member at 100 000 samples: painter ms for the whole picture, longest painter ms of a picture while turning. */
   blochWholeMs: number;
   blochTurnLongestMs: number;
+  /** Stop to the page saying so where one core call is long (app-stop.ts), by case. */
+  stopCasesMs: Record<string, number>;
   /** Steps that failed or ran out of time. */
   failures: string[];
 }
@@ -423,6 +430,7 @@ export async function appBenchmark(log: (line: string) => void = console.log): P
       }
     }
     await rm(dir, { recursive: true, force: true });
+    const stopCases = await stopFigures(harness, STOP_REPEATS, step);
 
     const row = (name: string, values: number[], unit = 'ms') =>
       log(`${name.padEnd(48)} ${median(values).toFixed(1).padStart(9)} ${unit}   (runs: ${values.map((v) => v.toFixed(1)).join(', ')})`);
@@ -439,6 +447,7 @@ export async function appBenchmark(log: (line: string) => void = console.log): P
     log(`${'  the same tasks over 50 ms of main-thread CPU'.padEnd(48)} ${String(demoCpuMs.filter((t) => t > 50).length).padStart(9)}      (longest ${Math.max(0, ...demoCpuMs).toFixed(0)} ms)`);
     row(`Stop to "stopped" (${LARGE_SAMPLES} samples x 25 members)`, largeStops);
     row(`open a ${LARGE_FILE_BYTES / 1e6} MB pulse file, to "Opened"`, fileTimes);
+    for (const [name, values] of stopCases) row(name, values);
     log(`${'progress shown while the file is read'.padEnd(48)} ${progressShown ? 'yes' : 'no'}`);
     row(`Bloch, all members at ${LARGE_SAMPLES} samples: whole picture (painter)`, blochTurns.map((b) => b.wholeMs));
     const turnMs = blochTurns.flatMap((b) => b.frameMs);
@@ -473,7 +482,7 @@ export async function appBenchmark(log: (line: string) => void = console.log): P
       stopMs: median(stops), map201CoarseMs: median(coarse), map201FullMs: median(full), longTasksMs, longTasksOver50: over.length, demoCpuLongTasksMs: demoCpuMs,
       stopLargeMs: median(largeStops), largeLongTasksMs: largeTasks.filter((t) => t > 50), largeCpuLongTasksMs: cpuOver.map(([, t]) => t.cpuMs), largeFileOpenMs: median(fileTimes),
       largeFileProgressShown: progressShown, blochWholeMs: median(blochTurns.map((b) => b.wholeMs)), blochTurnLongestMs: Math.max(0, ...turnMs.filter(Number.isFinite)),
-      failures: [...failures],
+      stopCasesMs: Object.fromEntries([...stopCases].map(([name, values]) => [name, median(values)])), failures: [...failures],
     };
   } finally {
     await harness.close();

@@ -18,8 +18,8 @@ export interface ShortestOptions {
   minSegments?: number;
   /** Most samples to try (default 8 times the spec's segments, at most MAX_SEGMENTS). */
   maxSegments?: number;
-  /** Called when a duration has been designed and judged. */
-  onTrial?: (trial: DurationTrial) => void;
+  /** Called when a duration has been designed and judged, with the pulse designed for it. */
+  onTrial?: (trial: DurationTrial, pulse: Pulse) => void;
   /** Progress of the design running at the moment (as design()'s onProgress). */
   onProgress?: (progress: Progress, segments: number) => void;
   /** Aborting it ends the design running now and the search after it; what was found is returned. */
@@ -163,7 +163,7 @@ export async function shortestDuration(spec: unknown, options: ShortestOptions):
     const trial: DurationTrial = { durationS: durationOf(next), segments: next, meanInfidelity: ev.meanInfidelity, worstInfidelity: ev.worstInfidelity, met };
     trials.push(trial);
     results.set(next, result);
-    options.onTrial?.(trial);
+    options.onTrial?.(trial, result.pulse);
     if (met) hi = next;
     else lo = next;
     if (hi <= lo + 1) break;

@@ -24,6 +24,7 @@ import type {
   Populations,
   ProgressBatch,
   ProgressPoint,
+  DurationTrial,
   ShortestOutcome,
   ShortestRequest,
   SpecCheck,
@@ -74,8 +75,16 @@ export function shareStarts(starts: number, workers: number): number[][] {
 
 export { axisValue };
 
-/** How long Stop waits for the kept pulse's figures before ending the design without its worst member. */
-export const STOP_EVALUATION_WAIT_MS = 40;
+/**
+ * What a design ended by Stop before any start reported a pulse rejects with: nothing is kept.
+ * (Its first iteration may take seconds on a big ladder; Stop does not wait for it.)
+ */
+export class StoppedBeforeAnyPulse extends Error {
+  override name = 'StoppedBeforeAnyPulse';
+  constructor() {
+    super('stopped before any start finished its first iteration; no pulse was kept');
+  }
+}
 
 /** The newest samples of a start with the progress report they were taken at. */
 export interface KeptPulse {
@@ -134,11 +143,43 @@ export function heldToBound(i: Float64Array, q: Float64Array, rabiMax: number, b
 /** A running design as the client follows it. */
 interface Running {
   spec: unknown;
-  problem: Problem;
+  /** Null until the spec is checked. */
+  problem: Problem | null;
+  /** True once the designers were given the job. */
+  started: boolean;
   t0: number;
   reported: ReportedPulses;
-  /** Ends the design at once with an outcome (after the designers were replaced). */
-  abandon: (outcome: DesignOutcome) => void;
+  /** Ends the design at once with an outcome, or with StoppedBeforeAnyPulse (after the designers were replaced). */
+  abandon: (outcome: DesignOutcome | StoppedBeforeAnyPulse) => void;
+}
+
+/** A running shortest-duration search as the client follows it: the durations tried so far and the pulses of those that met the goal. */
+interface Searching {
+  dt: number;
+  tried: DurationTrial[];
+  met: Map<number, Pulse>;
+  lowerBoundS: number;
+  /** True once the designer was given the job. */
+  started: boolean;
+  /** Ends the search at once with what was found (after the designers were replaced). */
+  abandon: (outcome: ShortestOutcome) => void;
+}
+
+/** The outcome of a search ended at once: the shortest duration that met the goal among those tried. */
+export function keptShortest(s: Pick<Searching, 'dt' | 'tried' | 'met' | 'lowerBoundS'>): ShortestOutcome {
+  const tried = [...s.tried].sort((a, b) => a.segments - b.segments);
+  const best = tried.find((t) => t.met && s.met.has(t.segments)) ?? null;
+  return {
+    durationS: best ? best.durationS : null,
+    segments: best ? best.segments : null,
+    meanInfidelity: best ? best.meanInfidelity : null,
+    worstInfidelity: best ? best.worstInfidelity : null,
+    pulse: best ? s.met.get(best.segments)! : null,
+    tried,
+    lowerBoundS: s.lowerBoundS,
+    dt: s.dt,
+    stopped: true,
+  };
 }
 
 /** The client over a pool: one worker for analysis, the others for designs. */
@@ -150,6 +191,9 @@ export class CoreClient {
   private designing = false;
   private stopRequested = false;
   private current: Running | null = null;
+  private searching: Searching | null = null;
+  /** Per designer, a promise that rejects when Stop ends that designer's worker (calls in flight on it never settle). */
+  private ended: Array<{ promise: Promise<never>; reject: (reason: Error) => void }> = [];
   /**
    * Most workers a map's bands run on at once. The browser client leaves one core to the
    * page: with every core busy with a map, the page's own tasks were stretched past 50 ms.
@@ -172,6 +216,7 @@ export class CoreClient {
     this.designerEndpoints = [...designers];
     this.designers = designers.map((endpoint) => wrap<CoreService>(endpoint));
     if (this.designers.length === 0) this.designers.push(this.analysis);
+    this.ended = this.designers.map(() => endedPromise());
   }
 
   /** Number of workers that run design starts. */
@@ -185,6 +230,12 @@ export class CoreClient {
     return this.readyPromise;
   }
 
+  /** The core loaded everywhere, then the spec checked on the analysis worker. */
+  private async readyAndChecked(spec: unknown): Promise<SpecCheck> {
+    await this.ready();
+    return this.analysis.checkSpec(spec);
+  }
+
   /** Validates a spec with the library's rules (first error, with its field). */
   checkSpec(spec: unknown): Promise<SpecCheck> {
     return this.analysis.checkSpec(spec);
@@ -196,14 +247,20 @@ export class CoreClient {
     this.designing = true;
     this.stopRequested = false;
     try {
-      await this.ready();
-      const check = await this.analysis.checkSpec(spec);
-      const t0 = performance.now();
-      const groups = shareStarts(starts, this.designers.length);
       const reported = new ReportedPulses();
-      let abandon: (outcome: DesignOutcome) => void = () => undefined;
-      const abandoned = new Promise<DesignOutcome>((resolve) => (abandon = resolve));
-      if (check.ok) this.current = { spec, problem: check.problem, t0, reported, abandon };
+      let abandon: (outcome: DesignOutcome | StoppedBeforeAnyPulse) => void = () => undefined;
+      const abandoned = new Promise<DesignOutcome>((resolve, reject) => (abandon = (o) => (o instanceof StoppedBeforeAnyPulse ? reject(o) : resolve(o))));
+      // Followed from the start: the spec's check waits its turn on the analysis worker, which
+      // may be busy with a long map, and Stop meanwhile ends the run at once.
+      const running: Running = { spec, problem: null, t0: performance.now(), reported, abandon, started: false };
+      this.current = running;
+      const check = await Promise.race([this.readyAndChecked(spec), abandoned.then(() => null as never)]);
+      if (!check.ok) this.current = null;
+      const t0 = performance.now();
+      running.problem = check.ok ? check.problem : null;
+      running.t0 = t0;
+      running.started = true;
+      const groups = shareStarts(starts, this.designers.length);
       const sink = proxy((batch: ProgressBatch) => {
         reported.add(batch);
         onProgress?.(batch);
@@ -244,7 +301,7 @@ export class CoreClient {
       if (this.stopRequested) void Promise.all(designers.map((d) => d.stop()));
       return await Promise.race([work, abandoned]);
     } catch (error) {
-      await this.stop();
+      if (!(error instanceof StoppedBeforeAnyPulse)) await this.stop();
       throw error;
     } finally {
       this.designing = false;
@@ -258,10 +315,27 @@ export class CoreClient {
     this.designing = true;
     this.stopRequested = false;
     try {
-      await this.ready();
-      return await this.designers[0].shortest(spec, request, onTrial ? proxy(onTrial) : undefined);
+      let abandon: (outcome: ShortestOutcome) => void = () => undefined;
+      const abandoned = new Promise<ShortestOutcome>((resolve) => (abandon = resolve));
+      const searching: Searching = { dt: NaN, tried: [], met: new Map(), lowerBoundS: NaN, abandon, started: false };
+      this.searching = searching;
+      const check = await Promise.race([this.readyAndChecked(spec), abandoned]);
+      if (!('ok' in check)) return check;
+      if (check.ok) searching.dt = check.problem.dt;
+      else this.searching = null;
+      searching.started = true;
+      const sink = proxy((trial: DurationTrial, lowerBoundS: number, pulse?: Pulse) => {
+        searching.tried.push(trial);
+        searching.lowerBoundS = lowerBoundS;
+        if (pulse) searching.met.set(trial.segments, pulse);
+        onTrial?.(trial, lowerBoundS, pulse);
+      });
+      const work = this.designers[0].shortest(spec, request, sink);
+      if (this.stopRequested) void this.stop();
+      return await Promise.race([work, abandoned]);
     } finally {
       this.designing = false;
+      this.searching = null;
     }
   }
 
@@ -271,48 +345,56 @@ export class CoreClient {
   }
 
   /**
-   * Ends the running design. With replaceable designers and a pulse reported, at once: the
-   * designers' workers are ended and replaced, and design() resolves with the best pulse
-   * reported so far (evaluated on the analysis worker); otherwise within one iteration of
-   * each designer, with the best pulse so far.
+   * Ends the running design or shortest search. With replaceable designers, at once, however
+   * long the core call running in them: their workers are ended and replaced, and design()
+   * resolves with the best pulse reported so far (its worst member left unknown, NaN, for the
+   * page to ask for: the analysis worker may be busy) or, when no start has reported one yet,
+   * rejects with StoppedBeforeAnyPulse; shortest() resolves with the durations tried so far.
+   * Without replaceable designers, within one iteration of each designer.
    */
   async stop(): Promise<void> {
     if (!this.designing) return;
     this.stopRequested = true;
     const running = this.current;
-    const best = running?.reported.best();
-    if (!this.replace || !running || !best) {
+    const searching = this.searching;
+    if (!this.replace || (!running && !searching)) {
       await Promise.all(this.designers.map((d) => d.stop()));
       return;
     }
     this.current = null;
-    let outcome: DesignOutcome;
-    try {
-      outcome = await this.keptOutcome(running, best);
-    } catch {
-      // Nothing kept could be made an outcome: the designers end their iteration instead.
-      await Promise.all(this.designers.map((d) => d.stop()));
+    this.searching = null;
+    // Designers not yet given the job have nothing to end.
+    if (running?.started || searching?.started) this.replaceDesigners();
+    if (searching) {
+      searching.abandon(keptShortest(searching));
       return;
     }
-    this.replaceDesigners();
-    running.abandon(outcome);
+    const best = running!.reported.best();
+    running!.abandon(best ? this.keptOutcome(running!, best) : new StoppedBeforeAnyPulse());
   }
 
   private replaceDesigners(): void {
     for (let w = 0; w < this.designers.length; w++) {
       if (this.designers[w] === this.analysis) continue;
-      // Not released: its calls in flight never settle, and releasing would reject them.
+      // Not released: its calls in flight never settle, and releasing would reject them; a
+      // map band waiting on one is told by `ended` and computed elsewhere.
       const endpoint = this.replace!(this.designerEndpoints[w]);
       this.designerEndpoints[w] = endpoint;
       this.designers[w] = wrap<CoreService>(endpoint);
+      this.ended[w].reject(new Error('the worker was replaced'));
+      this.ended[w] = endedPromise();
       // The new worker loads its core now, not when the next job arrives.
       void this.designers[w].ready().catch(() => undefined);
     }
   }
 
-  /** The outcome of a design ended at once: the best reported pulse, every start's newest figures. */
-  private async keptOutcome(running: Running, best: KeptPulse): Promise<DesignOutcome> {
-    const { problem } = running;
+  /**
+   * The outcome of a design ended at once: the best reported pulse with the mean of its report
+   * and the worst member unknown (NaN), every start's newest figures.
+   */
+  private keptOutcome(running: Running, best: KeptPulse): DesignOutcome {
+    // A pulse is reported only after the check found the problem.
+    const problem = running.problem!;
     const pulseOf = (kept: KeptPulse): Pulse => {
       const i = kept.live.i.slice();
       const q = kept.live.q.slice();
@@ -331,11 +413,9 @@ export class CoreClient {
     }));
     const chosen = starts.find((s) => s.start === best.live.start)!;
     const pulse = chosen.pulse;
-    // The analysis worker may be busy with a long map: Stop does not wait for it. Then the
-    // worst member is left unknown (NaN) for the page to ask for later.
-    const late = new Promise<null>((resolve) => setTimeout(() => resolve(null), STOP_EVALUATION_WAIT_MS));
-    const evaluated = await Promise.race([sendable(pulse).then((sent) => this.analysis.evaluate(running.spec, sent)).catch(() => null), late]);
-    const evaluation: Evaluation = evaluated ?? { members: [], meanInfidelity: best.point.meanInfidelity, worstInfidelity: NaN, worstIndex: -1 };
+    // Stop does not wait for an evaluation: on a big ladder one takes longer than Stop may,
+    // and the analysis worker may be busy with a long map. The page asks for the worst member.
+    const evaluation: Evaluation = { members: [], meanInfidelity: best.point.meanInfidelity, worstInfidelity: NaN, worstIndex: -1 };
     pulse.metadata.figures = {
       meanInfidelity: evaluation.meanInfidelity,
       worstInfidelity: evaluation.worstInfidelity,
@@ -370,7 +450,7 @@ export class CoreClient {
       bands.map(async ([first, last], b) => {
         const rows: GridAxis = { min: axisValue(amplitudeError, first), max: axisValue(amplitudeError, last), points: last - first + 1 };
         if (amplitudeError.points === 1) Object.assign(rows, amplitudeError);
-        const part = await workers[b].map(target, await sendable(pulse), detuning, rows, line, system);
+        const part = await this.onSurvivor(workers[b], async (worker) => worker.map(target, await sendable(pulse), detuning, rows, line, system));
         infidelity.set(part.infidelity, first * detuning.points);
         if (fine.leakage && part.leakage) fine.leakage.set(part.leakage, first * detuning.points);
         update.fine = fine;
@@ -380,6 +460,21 @@ export class CoreClient {
     update.complete = true;
     onUpdate?.({ ...update });
     return update;
+  }
+
+  /**
+   * A job on `worker`; when that worker is a designer that Stop ends meanwhile, the job runs
+   * again on the analysis worker (a map band must not wait for ever on a worker that is gone).
+   */
+  private async onSurvivor<T>(worker: Remote<CoreService>, job: (worker: Remote<CoreService>) => Promise<T>): Promise<T> {
+    const w = this.designers.indexOf(worker);
+    if (w < 0 || worker === this.analysis) return job(worker);
+    try {
+      return await Promise.race([job(worker), this.ended[w].promise]);
+    } catch (error) {
+      if (this.designers[w] === worker) throw error;
+      return job(this.analysis);
+    }
   }
 
   /** Cuts through zero error over the grid's ranges. */
@@ -447,6 +542,14 @@ export class CoreClient {
     for (const remote of new Set([this.analysis, ...this.designers])) remote[releaseProxy]();
     this.onDispose();
   }
+}
+
+/** A promise that only ever rejects, and its reject (nobody failing to catch it is an error). */
+function endedPromise(): { promise: Promise<never>; reject: (reason: Error) => void } {
+  let reject: (reason: Error) => void = () => undefined;
+  const promise = new Promise<never>((_, no) => (reject = no));
+  promise.catch(() => undefined);
+  return { promise, reject };
 }
 
 /**

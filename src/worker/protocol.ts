@@ -135,8 +135,12 @@ export interface ShortestRequest {
   maxSegments?: number;
 }
 
-/** Each duration tried, as soon as its design ends, with the rectangular pulse's time (theta / (2 pi peak Rabi)) to draw beside it. */
-export type TrialSink = (trial: DurationTrial, lowerBoundS: number) => void;
+/**
+ * Each duration tried, as soon as its design ends, with the rectangular pulse's time (theta /
+ * (2 pi peak Rabi)) to draw beside it and, for a duration that met the goal, its pulse (what a
+ * search ended at once keeps).
+ */
+export type TrialSink = (trial: DurationTrial, lowerBoundS: number, pulse?: Pulse) => void;
 
 /** The search's result without the winning design's per-start record (the pulse and figures are kept). */
 export type ShortestOutcome = Omit<ShortestResult, 'design'>;

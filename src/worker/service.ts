@@ -240,7 +240,9 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
           maxSegments,
           signal: controller.signal,
           // A page that has gone away must not fail the search.
-          onTrial: onTrial ? (trial) => void pending.push(Promise.resolve(onTrial({ ...trial }, lowerBoundS)).catch(() => undefined)) : undefined,
+          onTrial: onTrial
+            ? (trial, pulse) => void pending.push(Promise.resolve(onTrial({ ...trial }, lowerBoundS, trial.met ? moved(pulse) : undefined)).catch(() => undefined))
+            : undefined,
         });
         // Every trial reaches the page before the result (one channel keeps the order).
         await Promise.all(pending);

@@ -5,9 +5,10 @@ import { design as libraryDesign, robustnessMap } from '../../src/core/api.ts';
 import type { Pulse, Target } from '../../src/core/types.ts';
 import { demoSpec } from '../../src/app/demo.ts';
 import { evaluateJudged } from '../../src/core/compare.ts';
-import { bandRows, coarseAxis, CoreClient, designWorkerCount, shareStarts, type MapUpdate } from '../../src/worker/client.ts';
+import { expose, type Endpoint } from 'comlink';
+import { bandRows, coarseAxis, CoreClient, designWorkerCount, shareStarts, StoppedBeforeAnyPulse, type MapUpdate } from '../../src/worker/client.ts';
 import { COPY_SLICE, sendable } from '../../src/worker/transfer.ts';
-import type { ProgressBatch } from '../../src/worker/protocol.ts';
+import type { ProgressBatch, ProgressSink, TrialSink } from '../../src/worker/protocol.ts';
 import { closePorts, inRealmClient, serviceEndpoint } from './in-realm.ts';
 
 const client = inRealmClient();
@@ -103,6 +104,139 @@ describe('CoreClient over MessageChannels', () => {
     expect(fine.some(Number.isNaN)).toBe(false);
     // Bands place their rows by their own end points: equal to rounding of the axis values.
     for (let k = 0; k < fine.length; k++) expect(Math.abs(fine[k] - direct.infidelity[k])).toBeLessThanOrEqual(1e-13 + 1e-9 * direct.infidelity[k]);
+  });
+});
+
+/**
+ * A designer whose core call never returns (as one evaluation of a big ladder seems to Stop),
+ * after doing `first` with the call's callbacks; it counts its calls.
+ */
+function stuckDesigner(first: { design?: (sink: ProgressSink) => void; shortest?: (sink: TrialSink) => void } = {}): { endpoint: Endpoint; calls: string[] } {
+  const calls: string[] = [];
+  const channel = new MessageChannel();
+  const never = () => new Promise<never>(() => undefined);
+  expose(
+    {
+      ready: async () => ({ composites: [] }),
+      design: (_spec: unknown, _starts: number[], sink: ProgressSink) => (calls.push('design'), first.design?.(sink), never()),
+      shortest: (_spec: unknown, _request: unknown, sink: TrialSink) => (calls.push('shortest'), first.shortest?.(sink), never()),
+      map: () => (calls.push('map'), never()),
+      checkSpec: () => never(),
+      stop: () => (calls.push('stop'), 0),
+    },
+    channel.port1,
+  );
+  stuckPorts.push(channel.port1, channel.port2);
+  return { endpoint: channel.port2, calls };
+}
+const stuckPorts: MessagePort[] = [];
+afterAll(() => stuckPorts.forEach((p) => p.close()));
+
+/** Waits until `ready` holds, a message round at a time. */
+async function until(ready: () => boolean): Promise<void> {
+  while (!ready()) await new Promise((resolve) => setTimeout(resolve, 5));
+}
+
+// The designers' core calls cannot be interrupted (one L-BFGS iteration calls the objective from
+// inside the core); Stop ends the workers instead, however long the call running in them.
+describe('Stop while a designer is inside one long core call', () => {
+  const spec = () => ({ ...demoSpec(), segments: 4, duration: 4e-8, optimizer: { starts: 1, seed: 1 } });
+
+  it('ends the design at once, keeping nothing, when no start has reported a pulse', async () => {
+    const stuck = stuckDesigner();
+    let replaced = 0;
+    const own = new CoreClient(serviceEndpoint(), [stuck.endpoint], () => undefined, () => (replaced++, stuckDesigner().endpoint));
+    const run = own.design(spec(), 1);
+    await until(() => stuck.calls.includes('design'));
+    await own.stop();
+    await expect(run).rejects.toBeInstanceOf(StoppedBeforeAnyPulse);
+    expect(replaced).toBe(1);
+    expect(own.running).toBe(false);
+    own.dispose();
+  });
+
+  it('ends the design at once with the reported pulse and its report\'s mean, the worst member left to ask for', async () => {
+    const i = Float64Array.from([1e6, 2e6, 3e6, 4e6]);
+    const q = Float64Array.from([0, -1e6, 0, 1e6]);
+    const point = { start: 0, iteration: 3, objective: 0.25, meanInfidelity: 0.25, elapsedS: 0.1 };
+    const stuck = stuckDesigner({ design: (sink) => void sink({ points: [point] as ProgressBatch['points'], live: [{ start: 0, iteration: 3, i, q }] }) });
+    const own = new CoreClient(serviceEndpoint(), [stuck.endpoint], () => undefined, () => stuckDesigner().endpoint);
+    let reported = false;
+    const run = own.design(spec(), 1, () => (reported = true));
+    await until(() => reported);
+    await own.stop();
+    const outcome = await run;
+    expect(outcome.stopped).toBe(true);
+    expect(Array.from(outcome.pulse.i)).toEqual(Array.from(i));
+    expect(Array.from(outcome.pulse.q)).toEqual(Array.from(q));
+    expect(outcome.best.iterations).toBe(3);
+    expect(outcome.evaluation.meanInfidelity).toBe(0.25);
+    expect(outcome.evaluation.worstInfidelity).toBeNaN();
+    own.dispose();
+  });
+
+  it('ends a shortest search at once with the shortest duration that met the goal so far', async () => {
+    const pulse = { dt: 1e-9, i: Float64Array.from([1, 2, 3]), q: new Float64Array(3), metadata: {} };
+    const trial = (segments: number, met: boolean) => ({ durationS: segments * 1e-9, segments, meanInfidelity: met ? 1e-5 : 1e-2, worstInfidelity: met ? 2e-5 : 2e-2, met });
+    const stuck = stuckDesigner({
+      shortest: (sink) => {
+        void sink(trial(6, true), 2.5e-9);
+        void sink(trial(3, true), 2.5e-9, pulse);
+        void sink(trial(2, false), 2.5e-9);
+      },
+    });
+    const own = new CoreClient(serviceEndpoint(), [stuck.endpoint], () => undefined, () => stuckDesigner().endpoint);
+    let seen = 0;
+    const search = own.shortest(spec(), { goalMean: 1e-4 }, () => seen++);
+    await until(() => seen === 3);
+    await own.stop();
+    const outcome = await search;
+    expect(outcome.stopped).toBe(true);
+    expect(outcome.tried.map((t) => t.segments)).toEqual([2, 3, 6]);
+    // 6 met too, but its pulse never came: the shortest met with a pulse is kept.
+    expect([outcome.segments, outcome.meanInfidelity, outcome.worstInfidelity, outcome.lowerBoundS]).toEqual([3, 1e-5, 2e-5, 2.5e-9]);
+    expect(Array.from(outcome.pulse!.i)).toEqual([1, 2, 3]);
+    expect(outcome.dt).toBe(1e-8);
+    own.dispose();
+  });
+
+  it('ends a design and a search at once while the spec\'s check waits on a busy analysis worker, starting no designer', async () => {
+    // An analysis worker inside a long map: it answers nothing.
+    const busy = stuckDesigner();
+    const stuck = stuckDesigner();
+    let replaced = 0;
+    const own = new CoreClient(busy.endpoint, [stuck.endpoint], () => undefined, () => (replaced++, stuckDesigner().endpoint));
+    const run = own.design(spec(), 1);
+    await own.stop();
+    await expect(run).rejects.toBeInstanceOf(StoppedBeforeAnyPulse);
+    const search = own.shortest(spec(), { goalMean: 1e-4 });
+    await own.stop();
+    const outcome = await search;
+    expect([outcome.stopped, outcome.segments, outcome.tried.length]).toEqual([true, null, 0]);
+    expect(stuck.calls).toEqual([]);
+    expect(replaced).toBe(0);
+    own.dispose();
+  });
+
+  it('computes a map band again on the analysis worker when Stop ends the designer it was on', async () => {
+    const stuck = stuckDesigner();
+    const own = new CoreClient(serviceEndpoint(), [stuck.endpoint], () => undefined, () => stuckDesigner().endpoint);
+    const target: Target = { kind: 'gate', axis: [1, 0, 0], angleRad: Math.PI / 2 };
+    const pulse: Pulse = { dt: 1e-9, i: new Float64Array(25).fill(1e7), q: new Float64Array(25), metadata: {} };
+    const detuning = { min: -2e6, max: 2e6, points: 9 };
+    const amplitudeError = { min: -0.2, max: 0.2, points: 8 };
+    const map = own.map(target, pulse, detuning, amplitudeError);
+    await until(() => stuck.calls.includes('map'));
+    const run = own.design(spec(), 1);
+    await until(() => stuck.calls.includes('design'));
+    await own.stop();
+    await expect(run).rejects.toBeInstanceOf(StoppedBeforeAnyPulse);
+    const done = await map;
+    const direct = robustnessMap(target, pulse, detuning, amplitudeError);
+    // The band of the second half, computed again by its own end points (as bands are): equal to rounding.
+    const fine = done.fine!.infidelity;
+    for (let k = 0; k < fine.length; k++) expect(Math.abs(fine[k] - direct.infidelity[k])).toBeLessThanOrEqual(1e-13 + 1e-9 * direct.infidelity[k]);
+    own.dispose();
   });
 });
 

@@ -10,7 +10,8 @@ import { formatClock } from '../units.ts';
 import { newPulseId, type PulseEntry, type Session } from './session.svelte.ts';
 
 /** Where a run is. */
-export type RunStatus = 'idle' | 'running' | 'stopping' | 'done' | 'failed';
+/** Where a run stands; `stopped-empty`: stopped before any start reported a pulse, so nothing was kept. */
+export type RunStatus = 'idle' | 'running' | 'stopping' | 'done' | 'stopped-empty' | 'failed';
 
 /** The samples shown while a run goes on, with the figures of those very samples. */
 export interface LiveWaveform {
@@ -134,6 +135,10 @@ export class DesignRun {
       if (session.notice?.kind === 'error' && session.notice.text.startsWith(DESIGN_FAILED)) session.notice = null;
       return outcome;
     } catch (error) {
+      if ((error as Error).name === 'StoppedBeforeAnyPulse') {
+        this.status = 'stopped-empty';
+        return null;
+      }
       this.status = 'failed';
       this.error = `${(error as Error).name}: ${(error as Error).message}`;
       session.notice = { kind: 'error', text: `${DESIGN_FAILED} ${(error as Error).message}` };

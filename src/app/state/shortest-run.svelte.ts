@@ -66,7 +66,8 @@ export class ShortestRun {
       });
       this.trials = outcome.tried;
       this.outcome = outcome;
-      this.lowerBoundS = outcome.lowerBoundS;
+      // Unknown (NaN) when Stop ended the search before its first duration was judged.
+      this.lowerBoundS = Number.isFinite(outcome.lowerBoundS) ? outcome.lowerBoundS : null;
       if (outcome.pulse && outcome.durationS !== null && outcome.segments !== null) {
         const named = (spec as { name?: unknown }).name;
         const name = typeof named === 'string' ? named : 'design';
