@@ -20,8 +20,8 @@ const BLOCKS: i32 = 4;
 
 /**
  * Bytes of work the block sweeps need for n segments: with h = ceil(n/4) slots, two
- * sample regions of 80 h, the backward factors of two copies (128 h), two ends of 160 and
- * the combining scratch (320): at most 72 n + 856.
+ * sample regions of 80 h, cos a, S, T of two copies (96 h), two ends of 160 and the
+ * combining scratch (320): at most 64 n + 832.
  */
 export function blocksWorkBytes(n: i32): usize { return <usize>((n + BLOCKS - 1) / BLOCKS) * 256 + 640; }
 
@@ -162,7 +162,7 @@ function drainRegion(region: usize, gradIPtr: usize, gradQPtr: usize, n: i32, h:
   const zero = vsplat(0.0);
   for (let t = 0; t < h; t++) {
     const gp = region + <usize>h * 48 + <usize>t * 32;
-    // + 0: the sum the paired path starts from (it turns a -0 into +0), so the bits are its.
+    // + 0, as when the sweep added to a cleared sum: a -0 reads +0, so the bits stay those.
     const gI = vadd(v128.load(gp), zero), gQ = vadd(v128.load(gp, 16), zero);
     const k0 = first + t, k1 = first + h + t;
     if (t < full) {
