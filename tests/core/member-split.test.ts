@@ -5,7 +5,8 @@
 import { describe, expect, it } from 'vitest';
 import { design } from '../../src/core/api.ts';
 import { BUFFER, readBuffer } from '../../src/core/block.ts';
-import { evaluationSeconds, memberShares, MIN_SHARE_SECONDS, sumShares, type ShareResult } from '../../src/core/member-split.ts';
+import { evaluationSeconds, memberShares, MIN_SHARE_SECONDS, ShareRoute, sumShares, threadShares, type ShareResult } from '../../src/core/member-split.ts';
+import { startSharePool } from '../../src/core/share-threads.ts';
 import { StartRun } from '../../src/core/run.ts';
 import { parseSpec } from '../../src/core/spec.ts';
 import { designInThreads, memberThreads } from '../../src/core/threads.ts';
@@ -38,20 +39,46 @@ describe('memberShares', () => {
       expect(shares[s].start).toBe(shares[s - 1].end);
       expect(shares[s].start % 4).toBe(0);
     }
+    // The halves of the 4 shares are as even as cuts at multiples of 4 allow: 60 + 61.
+    expect(shares).toEqual([{ start: 0, end: 32 }, { start: 32, end: 60 }, { start: 60, end: 92 }, { start: 92, end: 121 }]);
+    // 25 members: 12 + 13 in the halves, no share empty at 13 members.
+    expect(memberShares(parseSpec({ ...LARGE, segments: 4000, ensemble: { detuning: { min: -1e5, max: 1e5, points: 25 } } }))).toEqual(
+      [{ start: 0, end: 8 }, { start: 8, end: 12 }, { start: 12, end: 20 }, { start: 20, end: 25 }]);
+    expect(memberShares(parseSpec({ ...LARGE, segments: 4000, ensemble: { detuning: { min: -1e5, max: 1e5, points: 13 } } }))).toEqual(
+      [{ start: 0, end: 4 }, { start: 4, end: 8 }, { start: 8, end: 12 }, { start: 12, end: 13 }]);
     // Never more shares than groups of 4 members.
     expect(memberShares(parseSpec({ ...LARGE, segments: 100000, ensemble: { detuning: { min: -1e5, max: 1e5, points: 5 } } })).length).toBe(2);
   });
 
-  it('sums the shares in share order, whatever order they arrive in', () => {
-    // 1 + 2^-53 + 2^-53: left to right it stays 1, the other way it does not.
+  it('cuts a transmon ladder at single members (it takes them one at a time), so that two threads get near-equal parts', () => {
+    // 3 levels x 5 members x 200 samples: about 0.47 ms per evaluation (cost.ts), so 4 shares.
+    const ladder = parseSpec({ ...LARGE, segments: 200, duration: 4e-8, rabiMax: 5e7, system: { levels: 3, anharmonicity: -2e8 },
+      ensemble: { amplitudeError: { min: -0.05, max: 0.05, points: 5 } } });
+    expect(memberShares(ladder)).toEqual([{ start: 0, end: 1 }, { start: 1, end: 3 }, { start: 3, end: 4 }, { start: 4, end: 5 }]);
+    // Two shares: 3 + 2 members, not 4 + 1.
+    expect(memberShares(ladder, evaluationSeconds(ladder) / 3)).toEqual([{ start: 0, end: 3 }, { start: 3, end: 5 }]);
+  });
+
+  it('sums the shares pairwise, (s0 + s1) + (s2 + s3), and a thread\'s block first gives the same bits', () => {
+    // 2^-53 + 1 rounds to 1, 2^-53 + 2^-53 does not: pairwise the sum is 1 + 2^-52, left to right it is 1.
     const tiny = 2 ** -53;
-    const r = (mean: number): ShareResult => ({ mean, gradI: new Float64Array([mean]), gradQ: new Float64Array([0]) });
+    const r = (mean: number): ShareResult => ({ mean, gradI: new Float64Array([mean]), gradQ: new Float64Array([-mean]) });
+    const parts = [r(tiny), r(1), r(tiny), r(tiny)];
     const gI = new Float64Array(1), gQ = new Float64Array(1);
-    const mean = sumShares(new Map([[2, r(tiny)], [0, r(1)], [1, r(tiny)]]), 3, gI, gQ);
-    expect(mean).toBe((1 + tiny) + tiny);
-    expect(mean).toBe(1);
-    expect(gI[0]).toBe(1);
-    expect(() => sumShares(new Map([[0, r(1)]]), 2, gI, gQ)).toThrow(/share 1 of 2/);
+    const mean = sumShares(parts, gI, gQ);
+    expect(mean).toBe((tiny + 1) + (tiny + tiny));
+    expect(mean).toBe(1 + 2 ** -52);
+    expect(mean).not.toBe(((tiny + 1) + tiny) + tiny);
+    expect([gI[0], gQ[0]]).toEqual([mean, -mean]);
+    // Two threads: each block of two summed first, then the blocks' sums (the first in place).
+    const hI = new Float64Array(1), hQ = new Float64Array(1), pI = new Float64Array(1), pQ = new Float64Array(1);
+    const own = sumShares(parts.slice(0, 2), hI, hQ);
+    const helper = sumShares(parts.slice(2), pI, pQ);
+    expect(sumShares([{ mean: own, gradI: hI, gradQ: hQ }, { mean: helper, gradI: pI, gradQ: pQ }], hI, hQ)).toBe(mean);
+    expect([hI[0], hQ[0]]).toEqual([mean, -mean]);
+    expect(() => sumShares(parts.slice(0, 3), gI, gQ)).toThrow(/3 parts/);
+    expect(threadShares(4, 2, 1)).toEqual([2, 3]);
+    expect(() => threadShares(4, 3, 0)).toThrow(/4 shares do not divide among 3 threads/);
   });
 
   it('threads per start: starts over threads while there are enough starts, member shares for a start alone', () => {
@@ -59,7 +86,50 @@ describe('memberShares', () => {
     expect(memberThreads(large, 4, 2)).toBe(1);
     expect(memberThreads(large, 1, 2)).toBe(2);
     expect(memberThreads(large, 1, 8)).toBe(4);
+    // Three threads for 4 shares: 2 (each takes a whole block of them).
+    expect(memberThreads(large, 1, 3)).toBe(2);
     expect(memberThreads(small, 1, 2)).toBe(1);
+  });
+});
+
+describe('ShareRoute: the route of each evaluation, from the times each route took', () => {
+  /** The routes of `count` evaluations, each route taking the time `ms` gives for its evaluation index. */
+  const routes = (count: number, ms: (pooled: boolean, k: number) => number): boolean[] => {
+    const route = new ShareRoute();
+    return Array.from({ length: count }, (_, k) => {
+      const pooled = route.next();
+      route.took(pooled, ms(pooled, k));
+      return pooled;
+    });
+  };
+
+  it('takes the pool once it is faster, although its first evaluations were slow (a cold thread)', () => {
+    // The pool's first two evaluations 3.3 and 2.5 ms, then 0.6 ms; one thread 0.93 ms.
+    const taken = routes(200, (pooled, k) => (pooled ? (k < 4 ? 3.3 - k * 0.4 : 0.6) : 0.93));
+    expect(taken.slice(0, ShareRoute.WARM_UP)).toEqual(Array.from({ length: ShareRoute.WARM_UP }, (_, k) => k % 2 === 0));
+    // The warm-up's median (2.5 ms) says one thread, the first try of the pool soon after says otherwise.
+    const firstPool = taken.findIndex((p, k) => p && k >= ShareRoute.WARM_UP);
+    expect(firstPool).toBe(ShareRoute.WARM_UP + ShareRoute.WINDOW);
+    expect(taken.slice(firstPool, firstPool + 20).every((p) => p)).toBe(true);
+    // From there on the pool, but for tries of the other route, which lose: spaced ever wider.
+    const alone = taken.map((p, k) => (p ? -1 : k)).filter((k) => k > firstPool);
+    expect(alone.length).toBeGreaterThan(0);
+    expect(alone.length).toBeLessThanOrEqual(3);
+    for (let j = 1; j < alone.length; j++) expect(alone[j] - alone[j - 1]).toBeGreaterThanOrEqual(2 * ShareRoute.EXPLORE_EVERY);
+  });
+
+  it('stays on one thread while the pool is slower, and moves to the pool within a few evaluations of its next try', () => {
+    // The pool 2 ms (a helper waiting for a core) for the first 100 evaluations, then 0.6 ms.
+    const taken = routes(300, (pooled, k) => (pooled ? (k < 100 ? 2 : 0.6) : 0.93));
+    const tries = taken.map((p, k) => (p ? k : -1)).filter((k) => k >= ShareRoute.WARM_UP && k < 100);
+    expect(tries.length).toBeLessThanOrEqual(3);
+    // The first try after the change, then tries at once until the pool's median is the lower; the pool from there on.
+    const first = taken.findIndex((p, k) => p && k >= 100);
+    expect(first).toBeLessThanOrEqual(100 + 4 * ShareRoute.EXPLORE_EVERY);
+    const settled = first + (ShareRoute.WINDOW >> 1) + 1;
+    expect(taken.slice(first, settled).every((p) => p)).toBe(true);
+    const later = taken.slice(settled);
+    expect(later.filter((p) => !p).length).toBeLessThanOrEqual(Math.ceil(later.length / (2 * ShareRoute.EXPLORE_EVERY)) + 1);
   });
 });
 
@@ -126,6 +196,32 @@ describe('the split objective', () => {
       expect(Array.from(r.pulse.i)).toEqual(Array.from(inProcess.pulse.i));
       expect(Array.from(r.pulse.q)).toEqual(Array.from(inProcess.pulse.q));
       expect(r.best.evaluations).toBe(inProcess.best.evaluations);
+    }
+  });
+
+  it('every evaluation on helper threads gives the pulse of one thread, bit for bit', async () => {
+    const problem = parseSpec(LARGE);
+    const alone = await design(LARGE);
+    const pool = await startSharePool(problem, memberShares(problem), 2, { always: true });
+    try {
+      const pooled = await design(LARGE, { sharePool: pool });
+      expect(pool.posted).toBe(pooled.best.evaluations);
+      expect(Array.from(pooled.pulse.i)).toEqual(Array.from(alone.pulse.i));
+      expect(Array.from(pooled.pulse.q)).toEqual(Array.from(alone.pulse.q));
+      expect(pooled.best.evaluations).toBe(alone.best.evaluations);
+    } finally {
+      pool.close();
+    }
+    // The same with the helpers sleeping between evaluations (no polling), and with one share per thread on four.
+    for (const [threads, spinMs] of [[2, { helper: 0, collect: 0 }], [4, undefined]] as const) {
+      const other = await startSharePool(problem, memberShares(problem), threads, { always: true, ...(spinMs ? { spinMs } : {}) });
+      try {
+        const pooled = await design(LARGE, { sharePool: other });
+        expect(Array.from(pooled.pulse.i)).toEqual(Array.from(alone.pulse.i));
+        expect(Array.from(pooled.pulse.q)).toEqual(Array.from(alone.pulse.q));
+      } finally {
+        other.close();
+      }
     }
   });
 
