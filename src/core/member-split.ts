@@ -154,49 +154,62 @@ export function splitObjective(
 
 /**
  * Whether the next evaluation hands shares to the pool's threads or runs them all here:
- * both routes give the same bits, so the faster one is taken. The first WARM_UP
- * evaluations alternate; after them each evaluation takes the route whose last WINDOW
- * times have the lower median, and now and then the other one, since the machine's load
- * changes (a busy machine can make the helper threads wait for a core and two threads
- * slower than one): EXPLORE_EVERY evaluations after the last try, an interval that
- * doubles (to EXPLORE_MOST) while the tries lose, as they cost most on a busy machine; a
- * try that beats the current route's median is repeated at once, so a change of load is
- * followed within a few evaluations. Medians, not running means: a helper's first
- * evaluations can run 2 to 3.5 times slower (a cold engine, a busy core), and a running
- * mean of them kept a 1000 x 121 design on one thread for all of its 150 iterations
- * although two threads were 1.45 times faster.
+ * both routes give the same bits, so the faster one is taken. The first WINDOW
+ * evaluations go to the pool and the next WINDOW run here (a run of each: a helper's
+ * engine warms up over its first evaluations); after them each evaluation takes the route
+ * whose last WINDOW times have the lower median, and now and then a try of the
+ * other one, since the machine's load changes (a busy machine can make the helper threads
+ * wait for a core and two threads slower than one): a try of this thread is one
+ * evaluation, judged by its time; a try of the pool is a burst of WINDOW evaluations,
+ * judged by their median, since helpers that sat idle for a while are slow over their
+ * first evaluations (measured in a 1000 x 121 design: 1.5 ms for the first after idling,
+ * 0.9 ms over bursts of 3, 0.65-0.75 ms in a long run, against 0.8-1.1 ms on one
+ * thread), and single tries of the pool always lost and kept designs on one thread. Tries come
+ * EXPLORE_EVERY evaluations after the last, an interval that doubles (to EXPLORE_MOST)
+ * while they lose, as they cost most on a busy machine; a try that wins while the medians
+ * still say otherwise is followed by another at once, so a change of load is followed
+ * within a few evaluations.
  */
 export class ShareRoute {
-  static readonly WARM_UP = 6;
   static readonly WINDOW = 5;
+  static readonly WARM_UP = 2 * ShareRoute.WINDOW;
   static readonly EXPLORE_EVERY = 20;
   static readonly EXPLORE_MOST = 320;
   private count = 0;
   private readonly pooled: number[] = [];
   private readonly alone: number[] = [];
-  private exploring = false;
+  /** Evaluations left in the current burst, its route, and whether the last one taken ends it. */
+  private burstLeft = 0;
+  private burstRoute = false;
+  private judging = false;
   private again = false;
   private interval = ShareRoute.EXPLORE_EVERY;
-  /** The first try comes soon after the warm-up: a cold helper's slow first times can have decided it. */
+  /** The first burst comes soon after the warm-up: a cold helper's slow first times can have decided it. */
   private nextTry = ShareRoute.WARM_UP + ShareRoute.WINDOW;
   /** True: use the pool for the next evaluation. */
   next(): boolean {
     const k = this.count++;
-    if (k < ShareRoute.WARM_UP) {
-      this.exploring = false;
-      return k % 2 === 0;
+    this.judging = false;
+    if (k < ShareRoute.WARM_UP) return k < ShareRoute.WINDOW;
+    if (this.burstLeft === 0 && (this.again || k >= this.nextTry)) {
+      this.burstRoute = !(lowerMedian(this.pooled) <= lowerMedian(this.alone));
+      this.burstLeft = this.burstRoute ? ShareRoute.WINDOW : 1;
+      this.again = false;
     }
-    const faster = lowerMedian(this.pooled) <= lowerMedian(this.alone);
-    this.exploring = this.again || k >= this.nextTry;
-    return this.exploring ? !faster : faster;
+    if (this.burstLeft > 0) {
+      this.judging = --this.burstLeft === 0;
+      return this.burstRoute;
+    }
+    return lowerMedian(this.pooled) <= lowerMedian(this.alone);
   }
   /** The time (ms) the last evaluation took on its route. */
   took(pooled: boolean, ms: number): void {
     const times = pooled ? this.pooled : this.alone, other = pooled ? this.alone : this.pooled;
     times.push(ms);
     if (times.length > ShareRoute.WINDOW) times.shift();
-    if (!this.exploring) return;
-    const won = ms < lowerMedian(other);
+    if (!this.judging) return;
+    // A burst on the pool fills its window and is judged by its median; a try of this thread by its time.
+    const won = (pooled ? lowerMedian(times) : ms) < lowerMedian(other);
     this.again = won && lowerMedian(times) > lowerMedian(other);
     this.interval = won ? ShareRoute.EXPLORE_EVERY : Math.min(2 * this.interval, ShareRoute.EXPLORE_MOST);
     this.nextTry = this.count + this.interval;
