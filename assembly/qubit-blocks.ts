@@ -12,7 +12,7 @@
 // the same M_k as in the one-lane sweep and the gradient is exact (the two differ by
 // rounding only).
 
-import { vsplat } from './su2';
+import { vadd, vsplat } from './su2';
 import { MODE_GATE, blocksForward, blocksBackward, blocksFigureForward } from './generated/qubit-sweeps';
 
 /** Lanes given to one member: four blocks of segments, two per v128 over two copies. */
@@ -132,11 +132,20 @@ function blockEnds(ends: usize, blocks: i32, c: f64, scale: f64, w: f64, targetP
 
 /**
  * Lay out the samples of one region: slot t holds segments first + t and first + h + t
- * (0 and not live past n), and clear the region's gradient.
+ * (0 and not live past n). The backward sweep writes the region's gradient.
  */
 function fillRegion(region: usize, iPtr: usize, qPtr: usize, n: i32, h: i32, first: i32): void {
   const ones = i64x2.splat(-1);
-  for (let t = 0; t < h; t++) {
+  // Slots whose two segments are both below n (all but the last block's tail) go without tests.
+  const full = max(0, min(h, n - first - h));
+  for (let t = 0; t < full; t++) {
+    const sp = region + <usize>t * 48;
+    const o0 = <usize>(first + t) << 3, o1 = <usize>(first + h + t) << 3;
+    v128.store(sp, f64x2.replace_lane(vsplat(load<f64>(iPtr + o0)), 1, load<f64>(iPtr + o1)));
+    v128.store(sp, f64x2.replace_lane(vsplat(load<f64>(qPtr + o0)), 1, load<f64>(qPtr + o1)), 16);
+    v128.store(sp, ones, 32);
+  }
+  for (let t = full; t < h; t++) {
     const sp = region + <usize>t * 48;
     const k0 = first + t, k1 = first + h + t;
     const i0 = k0 < n ? load<f64>(iPtr + (<usize>k0 << 3)) : 0.0, q0 = k0 < n ? load<f64>(qPtr + (<usize>k0 << 3)) : 0.0;
@@ -145,15 +154,25 @@ function fillRegion(region: usize, iPtr: usize, qPtr: usize, n: i32, h: i32, fir
     v128.store(sp, f64x2.replace_lane(vsplat(q0), 1, q1), 16);
     v128.store(sp, i64x2.replace_lane(i64x2.replace_lane(ones, 0, k0 < n ? -1 : 0), 1, k1 < n ? -1 : 0), 32);
   }
-  memory.fill(region + <usize>h * 48, 0, <usize>h * 32);
 }
 
 /** Copy a region's gradient to gradI, gradQ (segments first + t and first + h + t below n). */
 function drainRegion(region: usize, gradIPtr: usize, gradQPtr: usize, n: i32, h: i32, first: i32): void {
+  const full = max(0, min(h, n - first - h));
+  const zero = vsplat(0.0);
   for (let t = 0; t < h; t++) {
     const gp = region + <usize>h * 48 + <usize>t * 32;
-    const gI = v128.load(gp), gQ = v128.load(gp, 16);
+    // + 0, as when the sweep added to a cleared sum: a -0 reads +0, so the bits stay those.
+    const gI = vadd(v128.load(gp), zero), gQ = vadd(v128.load(gp, 16), zero);
     const k0 = first + t, k1 = first + h + t;
+    if (t < full) {
+      const o0 = <usize>k0 << 3, o1 = <usize>k1 << 3;
+      store<f64>(gradIPtr + o0, f64x2.extract_lane(gI, 0));
+      store<f64>(gradQPtr + o0, f64x2.extract_lane(gQ, 0));
+      store<f64>(gradIPtr + o1, f64x2.extract_lane(gI, 1));
+      store<f64>(gradQPtr + o1, f64x2.extract_lane(gQ, 1));
+      continue;
+    }
     if (k0 < n) {
       store<f64>(gradIPtr + (<usize>k0 << 3), f64x2.extract_lane(gI, 0));
       store<f64>(gradQPtr + (<usize>k0 << 3), f64x2.extract_lane(gQ, 0));

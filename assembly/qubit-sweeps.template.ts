@@ -42,21 +42,34 @@ export const MODE_STATE: i32 = 1;
     }
 //#end
 
-// One segment of the backward sweep for a gate: its gradient (gI, gQ) from m, then m
-// rotated by U_k^-1 (qubit.ts), from cos a, S, T (co, si, tt) and b (bx, by, bz).
-//#snippet backwardGate
+// The factors of one segment that the backward sweep needs, from cos a, S, T (co, si, tt):
+// S^2, cos a S, kappa = cos a T + S^2 and cos 2a (ss, csn, kap, c2a).
+//#snippet backwardFactors
       const ss$ = vmul(si$, si$);
       const csn$ = vmul(co$, si$);
+      const kap$ = vmad(co$, tt$, ss$);
+      const c2a$ = vsub(vmul(vadd(co$, co$), co$), one);
+//#end
+
+// One segment of the backward sweep for a gate: its gradient (gI, gQ) from m
+// (backwardGateGradient), then m rotated by U_k^-1 (backwardGateRotate; qubit.ts), from the
+// segment's factors (backwardFactors) and b (bx, by, bz).
+//#snippet backwardGateGradient
       const ex$ = vsub(vmul(my$, bz$), vmul(mz$, by$));
       const ey$ = vsub(vmul(mz$, bx$), vmul(mx$, bz$));
       const ez$ = vsub(vmul(mx$, by$), vmul(my$, bx$));
       const bm$ = vmad(bx$, mx$, vmad(by$, my$, vmul(bz$, mz$)));
-      const kbm$ = vmul(vmad(co$, tt$, ss$), bm$);
+      const kbm$ = vmul(kap$, bm$);
       const gI$ = vmad(bx$, kbm$, vmad(csn$, mx$, vmul(ss$, ex$)));
       const gQ$ = vmad(by$, kbm$, vmad(csn$, my$, vmul(ss$, ey$)));
-      const c2a$ = vsub(vmul(vadd(co$, co$), co$), one);
+//#end
+
+// The rest of a gate's backward step: m rotated by U_k^-1 (after backwardGateGradient).
+// 2 S^2 (b.m) as (S^2 + S^2) b.m, the same bits as S^2 (b.m + b.m), one add shorter on
+// the chain from m to the next m.
+//#snippet backwardGateRotate
       const csn2$ = vadd(csn$, csn$);
-      const sbm2$ = vmul(ss$, vadd(bm$, bm$));
+      const sbm2$ = vmul(vadd(ss$, ss$), bm$);
       mx$ = vmad(c2a$, mx$, vmad(csn2$, ex$, vmul(sbm2$, bx$)));
       my$ = vmad(c2a$, my$, vmad(csn2$, ey$, vmul(sbm2$, by$)));
       mz$ = vmad(c2a$, mz$, vmad(csn2$, ez$, vmul(sbm2$, bz$)));
@@ -64,10 +77,6 @@ export const MODE_STATE: i32 = 1;
 
 // The same for a state: m and m' (p) together.
 //#snippet backwardState
-    const ss$ = vmul(si$, si$);
-    const csn$ = vmul(co$, si$);
-    const kap$ = vmad(co$, tt$, ss$);
-    const c2a$ = vsub(vmul(vadd(co$, co$), co$), one);
     const csn2$ = vadd(csn$, csn$);
     const ex$ = vsub(vmul(my$, bz$), vmul(mz$, by$));
     const ey$ = vsub(vmul(mz$, bx$), vmul(mx$, bz$));
@@ -81,11 +90,11 @@ export const MODE_STATE: i32 = 1;
     const kbp$ = vmul(kap$, bp$);
     const gI$ = vadd(vmad(bx$, kbm$, vmad(csn$, mx$, vmul(ss$, ex$))), vmad(bx$, kbp$, vmad(csn$, px$, vmul(ss$, fx$))));
     const gQ$ = vadd(vmad(by$, kbm$, vmad(csn$, my$, vmul(ss$, ey$))), vmad(by$, kbp$, vmad(csn$, py$, vmul(ss$, fy$))));
-    const sbm2$ = vmul(ss$, vadd(bm$, bm$));
+    const sbm2$ = vmul(vadd(ss$, ss$), bm$);
     mx$ = vmad(c2a$, mx$, vmad(csn2$, ex$, vmul(sbm2$, bx$)));
     my$ = vmad(c2a$, my$, vmad(csn2$, ey$, vmul(sbm2$, by$)));
     mz$ = vmad(c2a$, mz$, vmad(csn2$, ez$, vmul(sbm2$, bz$)));
-    const sbp2$ = vmul(ss$, vadd(bp$, bp$));
+    const sbp2$ = vmul(vadd(ss$, ss$), bp$);
     px$ = vmad(c2a$, px$, vmad(csn2$, fx$, vmul(sbp2$, bx$)));
     py$ = vmad(c2a$, py$, vmad(csn2$, fy$, vmul(sbp2$, by$)));
     pz$ = vmad(c2a$, pz$, vmad(csn2$, fz$, vmul(sbp2$, bz$)));
@@ -267,7 +276,9 @@ export function __NAME__(
       const vi = vsplat(iS), vq = vsplat(qS);
       const bx$ = vmul(cs$, vi);
       const by$ = vmul(cs$, vq);
-      //#insert backwardGate
+      //#insert backwardFactors
+      //#insert backwardGateGradient
+      //#insert backwardGateRotate
       const gIp = gradIPtr + (<usize>k << 3);
       const gQp = gradQPtr + (<usize>k << 3);
       store<f64>(gIp, load<f64>(gIp) + vsum(JOIN(vadd, gI$)));
@@ -287,6 +298,7 @@ export function __NAME__(
     const vi = vsplat(iS), vq = vsplat(qS);
     const bx$ = vmul(cs$, vi);
     const by$ = vmul(cs$, vq);
+    //#insert backwardFactors
     //#insert backwardState
     const gIp = gradIPtr + (<usize>k << 3);
     const gQp = gradQPtr + (<usize>k << 3);
@@ -426,7 +438,8 @@ export function __NAME__(
 //#unroll blocksBackward:2
 /**
  * Backward sweep of member j, two blocks per copy, from the vectors m (and m' for states) that ends
- * holds at each lane's last segment; each slot's gradient is added to its region's.
+ * holds at each lane's last segment; each slot's gradient is written to its region's (one
+ * member: every slot is written once, and drainRegion adds the +0 a cleared sum would).
  */
 export function __NAME__(
   samples: usize, step: usize, h: i32, c: f64, j: i32,
@@ -448,11 +461,14 @@ export function __NAME__(
       const gp$ = grads$ + <usize>t * 32;
       const ws$ = cw$ + <usize>t * 48;
       const co$ = v128.load(ws$), si$ = v128.load(ws$, 16), tt$ = v128.load(ws$, 32);
+      //#insert backwardFactors
       const bx$ = vmul(cs, v128.load(sp$));
       const by$ = vmul(cs, v128.load(sp$, 16));
-      //#insert backwardGate
-      v128.store(gp$, vadd(v128.load(gp$), gI$));
-      v128.store(gp$, vadd(v128.load(gp$, 16), gQ$), 16);
+      //#insert backwardGateGradient
+      // Stored before the rotation, so that gI, gQ free their registers.
+      v128.store(gp$, gI$);
+      v128.store(gp$, gQ$, 16);
+      //#insert backwardGateRotate
     }
     return;
   }
@@ -462,11 +478,12 @@ export function __NAME__(
     const gp$ = grads$ + <usize>t * 32;
     const ws$ = cw$ + <usize>t * 48;
     const co$ = v128.load(ws$), si$ = v128.load(ws$, 16), tt$ = v128.load(ws$, 32);
+    //#insert backwardFactors
     const bx$ = vmul(cs, v128.load(sp$));
     const by$ = vmul(cs, v128.load(sp$, 16));
     //#insert backwardState
-    v128.store(gp$, vadd(v128.load(gp$), gI$));
-    v128.store(gp$, vadd(v128.load(gp$, 16), gQ$), 16);
+    v128.store(gp$, gI$);
+    v128.store(gp$, gQ$, 16);
   }
 }
 //#end

@@ -151,6 +151,19 @@ async function largePulseFile(bytes: number, dir: string): Promise<string> {
   return path;
 }
 
+/** Mouse moves of the drag that turns the Bloch sphere (30 ms apart). */
+const BLOCH_DRAG_STEPS = 30;
+
+/** The Bloch sphere with every member at 100 000 samples: the painter's time for the whole picture and for each picture shown while turning. */
+interface BlochTurn {
+  wholeMs: number;
+  turnFrames: number;
+  turnSeconds: number;
+  frameMs: number[];
+  settledMs: number;
+}
+const NO_BLOCH: BlochTurn = { wholeMs: NaN, turnFrames: 0, turnSeconds: NaN, frameMs: [], settledMs: NaN };
+
 /** The long tasks of one phase: their durations, and what ran in them when traced. */
 interface Phase {
   name: string;
@@ -159,9 +172,9 @@ interface Phase {
 }
 
 /** Figures at 100 000 samples in one fresh page: Stop latency and every long task of a run, the views, a reload and a large file. */
-async function largeFigures(harness: Harness, file: string): Promise<{ stopMs: number; phases: Phase[]; fileMs: number; progressShown: boolean }> {
+async function largeFigures(harness: Harness, file: string): Promise<{ stopMs: number; phases: Phase[]; fileMs: number; progressShown: boolean; bloch: BlochTurn }> {
   const { page, context } = await visit(harness);
-  const out = { stopMs: NaN, phases: [] as Phase[], fileMs: NaN, progressShown: false };
+  const out = { stopMs: NaN, phases: [] as Phase[], fileMs: NaN, progressShown: false, bloch: { ...NO_BLOCH } };
   /** Runs a step and files the long tasks seen during it under its name (traced with --attribute). */
   const measured = async (name: string, timeoutMs: number, body: () => Promise<void>) => {
     // Every phase is traced: the trace gives each task's main-thread CPU time, which a busy
@@ -221,7 +234,47 @@ async function largeFigures(harness: Harness, file: string): Promise<{ stopMs: n
       await page.waitForTimeout(1500);
       await page.locator('input[name=b-show][value=all]').check();
       await page.waitForFunction(() => Number(document.querySelector('[data-testid=bloch-facts]')?.getAttribute('data-members')) > 1, undefined, { timeout: 50_000 });
+      // The paths went to the painter as the figures were shown.
+      const before = await page.getByTestId('bloch').getAttribute('data-frames');
+      // Until the whole picture of every member is on the canvas.
+      await page.waitForFunction(
+        (before) => {
+          const c = document.querySelector('[data-testid=bloch]') as HTMLCanvasElement | null;
+          return c !== null && c.dataset.frames !== before && c.dataset.preview === 'false';
+        },
+        before,
+        { timeout: 50_000 },
+      );
+      out.bloch.wholeMs = Number(await page.getByTestId('bloch').getAttribute('data-frame-ms'));
       await page.waitForTimeout(500);
+    });
+    await measured('Bloch view, turning all members', 60_000, async () => {
+      // Every picture's painter time, as the page receives it.
+      await page.evaluate(() => {
+        const c = document.querySelector('[data-testid=bloch]') as HTMLCanvasElement;
+        const w = window as unknown as { __frames: Array<[number, boolean, number]> };
+        w.__frames = [];
+        new MutationObserver(() => w.__frames.push([Number(c.dataset.frameMs), c.dataset.preview === 'true', performance.now()])).observe(c, { attributes: true, attributeFilter: ['data-frames'] });
+      });
+      const box = (await page.getByTestId('bloch').boundingBox())!;
+      const t0 = await page.evaluate(() => performance.now());
+      await page.mouse.move(box.x + box.width / 2, box.y + box.height / 2);
+      await page.mouse.down();
+      for (let k = 1; k <= BLOCH_DRAG_STEPS; k++) {
+        await page.mouse.move(box.x + box.width / 2 + 4 * k, box.y + box.height / 2 + k, { steps: 1 });
+        await page.waitForTimeout(30);
+      }
+      await page.mouse.up();
+      const t1 = await page.evaluate(() => performance.now());
+      // The whole picture follows once the turning pauses.
+      await page.waitForFunction((t1) => (window as unknown as { __frames: Array<[number, boolean, number]> }).__frames.some(([, p, at]) => !p && at > t1), t1, { timeout: 50_000 });
+      const frames = await page.evaluate(() => (window as unknown as { __frames: Array<[number, boolean, number]> }).__frames);
+      const during = frames.filter(([, , at]) => at <= t1 + 1);
+      out.bloch.turnFrames = during.length;
+      out.bloch.turnSeconds = (t1 - t0) / 1000;
+      out.bloch.frameMs = during.map(([ms]) => ms);
+      out.bloch.settledMs = frames.filter(([, p, at]) => !p && at > t1).map(([ms]) => ms)[0] ?? NaN;
+      await page.waitForTimeout(300);
     });
     await measured('spectrum view', 90_000, async () => {
       await view('Alt+7', () => page.waitForFunction(() => /0 dB =/.test(document.querySelector('[data-testid=spectrum-status]')?.textContent ?? ''), undefined, { timeout: 80_000 }));
@@ -270,6 +323,8 @@ export interface AppFigures {
   map201FullMs: number;
   longTasksMs: number[];
   longTasksOver50: number;
+  /** Main-thread CPU time of the demo designs' wall-clock long tasks (from a trace). */
+  demoCpuLongTasksMs: number[];
   /** Stop to "stopped" at 100 000 samples. */
   stopLargeMs: number;
   /** Main-thread tasks over 50 ms at 100 000 samples: a run and its Stop, every view, a 62 MB file. */
@@ -278,6 +333,9 @@ export interface AppFigures {
   largeCpuLongTasksMs: number[];
   largeFileOpenMs: number;
   largeFileProgressShown: boolean;
+  /** The Bloch sphere with every member at 100 000 samples: painter ms for the whole picture, longest painter ms of a picture while turning. */
+  blochWholeMs: number;
+  blochTurnLongestMs: number;
   /** Stop to the page saying so where one core call is long (app-stop.ts), by case. */
   stopCasesMs: Record<string, number>;
   /** Steps that failed or ran out of time. */
@@ -301,11 +359,19 @@ export async function appBenchmark(log: (line: string) => void = console.log): P
     const coarse: number[] = [];
     const full: number[] = [];
     let longTasksMs: number[] = [];
+    /** Main-thread CPU time of each wall-clock long task of the demo designs. */
+    let demoCpuMs: number[] = [];
     for (let r = 0; r < REPEATS; r++) {
       const { page, context } = await visit(harness);
       try {
         loads.push(await step('load', 60_000, NaN, () => runEnabled(page)));
+        // Traced, for each long task's main-thread CPU time (the design's workers share the two cores with the page).
+        await harness.browser.startTracing(page, { categories: TASK_CATEGORIES });
+        await page.waitForTimeout(500);
+        await page.evaluate(() => performance.mark('gatesmith-phase'));
         const run = await step('demo design', 120_000, { firstPointMs: NaN, designMs: NaN, longTasks: [] as number[] }, () => timedRun(page));
+        const designTrace = await harness.browser.stopTracing();
+        demoCpuMs = demoCpuMs.concat(longTasksOfTrace(designTrace, 50, 'gatesmith-phase').map((t) => t.cpuMs));
         firstPoints.push(run.firstPointMs);
         designs.push(run.designMs);
         longTasksMs = longTasksMs.concat(run.longTasks);
@@ -349,12 +415,14 @@ export async function appBenchmark(log: (line: string) => void = console.log): P
     const fileTimes: number[] = [];
     let progressShown = true;
     const phases = new Map<string, number[][]>();
+    const blochTurns: BlochTurn[] = [];
     const attributed: Array<[string, LongTask]> = [];
     for (let r = 0; r < LARGE_REPEATS; r++) {
       const large = await largeFigures(harness, file);
       largeStops.push(large.stopMs);
       fileTimes.push(large.fileMs);
       progressShown &&= large.progressShown;
+      blochTurns.push(large.bloch);
       for (const phase of large.phases) {
         largeTasks = largeTasks.concat(phase.tasks);
         phases.set(phase.name, [...(phases.get(phase.name) ?? []), phase.tasks]);
@@ -376,10 +444,17 @@ export async function appBenchmark(log: (line: string) => void = console.log): P
     row('201 x 201 map: first coarse image', coarse);
     row('201 x 201 map: full resolution', full);
     tasks('main-thread tasks over 50 ms, demo designs', longTasksMs);
+    log(`${'  the same tasks over 50 ms of main-thread CPU'.padEnd(48)} ${String(demoCpuMs.filter((t) => t > 50).length).padStart(9)}      (longest ${Math.max(0, ...demoCpuMs).toFixed(0)} ms)`);
     row(`Stop to "stopped" (${LARGE_SAMPLES} samples x 25 members)`, largeStops);
     row(`open a ${LARGE_FILE_BYTES / 1e6} MB pulse file, to "Opened"`, fileTimes);
     for (const [name, values] of stopCases) row(name, values);
     log(`${'progress shown while the file is read'.padEnd(48)} ${progressShown ? 'yes' : 'no'}`);
+    row(`Bloch, all members at ${LARGE_SAMPLES} samples: whole picture (painter)`, blochTurns.map((b) => b.wholeMs));
+    const turnMs = blochTurns.flatMap((b) => b.frameMs);
+    log(
+      `${'Bloch, turning it: pictures shown'.padEnd(48)} ${blochTurns.map((b) => `${b.turnFrames} in ${b.turnSeconds.toFixed(2)} s`).join(', ')}; painter ms a picture: median ${median(turnMs).toFixed(1)}, longest ${Math.max(0, ...turnMs.filter(Number.isFinite)).toFixed(1)}`,
+    );
+    row('Bloch, whole picture after the turning pauses', blochTurns.map((b) => b.settledMs));
     tasks(`main-thread tasks over 50 ms at ${LARGE_SAMPLES} samples`, largeTasks);
     const cpuOver = attributed.filter(([, t]) => t.cpuMs > 50);
     log(`${`tasks over 50 ms of main-thread CPU at ${LARGE_SAMPLES} samples`.padEnd(48)} ${String(cpuOver.length).padStart(9)}      (longest ${Math.max(0, ...attributed.map(([, t]) => t.cpuMs)).toFixed(0)} ms)`);
@@ -404,9 +479,10 @@ export async function appBenchmark(log: (line: string) => void = console.log): P
     const over = longTasksMs.filter((t) => t > 50);
     return {
       loadToInteractiveMs: median(loads), firstConvergencePointMs: median(firstPoints), demoDesignMs: median(designs),
-      stopMs: median(stops), map201CoarseMs: median(coarse), map201FullMs: median(full), longTasksMs, longTasksOver50: over.length,
+      stopMs: median(stops), map201CoarseMs: median(coarse), map201FullMs: median(full), longTasksMs, longTasksOver50: over.length, demoCpuLongTasksMs: demoCpuMs,
       stopLargeMs: median(largeStops), largeLongTasksMs: largeTasks.filter((t) => t > 50), largeCpuLongTasksMs: cpuOver.map(([, t]) => t.cpuMs), largeFileOpenMs: median(fileTimes),
-      largeFileProgressShown: progressShown, stopCasesMs: Object.fromEntries([...stopCases].map(([name, values]) => [name, median(values)])), failures: [...failures],
+      largeFileProgressShown: progressShown, blochWholeMs: median(blochTurns.map((b) => b.wholeMs)), blochTurnLongestMs: Math.max(0, ...turnMs.filter(Number.isFinite)),
+      stopCasesMs: Object.fromEntries([...stopCases].map(([name, values]) => [name, median(values)])), failures: [...failures],
     };
   } finally {
     await harness.close();

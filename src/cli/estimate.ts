@@ -14,6 +14,9 @@ const EVALUATIONS_PER_ITERATION = 1.2;
 const GRADIENT_OVER_FIGURE = 2.6;
 /** Cost per member-sample of a qubit gradient evaluation assumed before measuring (s); a generous guess. */
 export const ASSUMED_SECONDS_PER_MEMBER_SAMPLE = 2e-8;
+/** The two pulse lengths (samples) whose evaluation times give the cost per member-sample. */
+const SLOPE_SMALL_SAMPLES = 256;
+const SLOPE_LARGE_SAMPLES = 4096;
 
 /** The time a design may take and what the figure rests on. */
 export interface DesignEstimate {
@@ -45,26 +48,36 @@ export function estimateDesign(problem: Problem, threads: number, qubitSecondsPe
 }
 
 /**
- * The qubit's gradient cost per member-sample on this machine: a figure-only evaluation of a
- * small qubit job timed for about 20 ms, scaled by the gradient's known cost ratio (another
+ * The qubit's gradient cost per member-sample on this machine: figure-only evaluations of a
+ * small and a large qubit job timed for about 20 ms, the slope between them scaled by the
+ * gradient's known cost ratio (another
  * system's cost follows from it by systemCostFactor, without timing a slow job).
  */
 export function measureSecondsPerMemberSample(evaluateMembers: (target: Problem['target'], pulse: Pulse, members: Member[]) => unknown): number {
-  const n = 256;
   const members: Member[] = Array.from({ length: 16 }, (_, k) => ({ detuning: 1e5 * (k - 8), amplitudeError: 0.01 * (k % 4), weight: 1 }));
-  const i = new Float64Array(n).fill(1e6);
-  const q = new Float64Array(n).fill(5e5);
-  const pulse: Pulse = { dt: 1e-9, i, q, metadata: {} };
   const target: Problem['target'] = { kind: 'gate', axis: [1, 0, 0], angleRad: Math.PI / 2 };
-  evaluateMembers(target, pulse, members); // loads and warms the core
-  let runs = 0;
+  const job = (n: number): Pulse => ({ dt: 1e-9, i: new Float64Array(n).fill(1e6), q: new Float64Array(n).fill(5e5), metadata: {} });
+  // One call carries a fixed cost (checks, copies, the worst member) of about a tenth of a
+  // millisecond, as large as the small job itself: the cost per member-sample is the slope
+  // between a small and a large job, each timed for about 10 ms in alternating turns.
+  const [small, large] = [job(SLOPE_SMALL_SAMPLES), job(SLOPE_LARGE_SAMPLES)];
+  evaluateMembers(target, small, members); // loads and warms the core
+  evaluateMembers(target, large, members);
+  const spent = [0, 0];
+  const runs = [0, 0];
   const t0 = performance.now();
   while (performance.now() - t0 < 20) {
-    evaluateMembers(target, pulse, members);
-    runs++;
+    for (const [k, pulse] of [small, large].entries()) {
+      const t = performance.now();
+      evaluateMembers(target, pulse, members);
+      spent[k] += performance.now() - t;
+      runs[k]++;
+    }
   }
-  const perRun = (performance.now() - t0) / 1000 / runs;
-  return (GRADIENT_OVER_FIGURE * perRun) / (n * members.length);
+  const [perSmall, perLarge] = [spent[0] / runs[0], spent[1] / runs[1]];
+  // A busy machine can make the slope come out small or negative: never below a quarter of the whole large job's share.
+  const slope = Math.max((perLarge - perSmall) / (SLOPE_LARGE_SAMPLES - SLOPE_SMALL_SAMPLES), perLarge / SLOPE_LARGE_SAMPLES / 4);
+  return (GRADIENT_OVER_FIGURE * slope) / 1000 / members.length;
 }
 
 /** A duration for people: "45 s", "12 min", "3.2 h". */

@@ -134,12 +134,15 @@ function startFromProgress(problem: Problem, p: Progress, t0: number): StartResu
 /**
  * Threads per start: starts over threads while there are at least as many starts as
  * threads (no waiting at all); with fewer, a problem in member shares (member-split.ts)
- * gives each start the threads left over, up to its number of shares. The result is the
- * same either way: the shares are the problem's, not the threads'.
+ * gives each start the threads left over, up to its number of shares (1, 2 or 4, so that
+ * each takes a whole block of them). The result is the same either way: the shares are
+ * the problem's, not the threads'.
  */
 export function memberThreads(problem: Problem, starts: number, threads: number): number {
   if (starts >= threads) return 1;
-  return Math.max(1, Math.min(memberShares(problem).length, Math.floor(threads / starts)));
+  // A power of two, as the shares' count (1, 2 or 4), so that each thread takes a whole block of them.
+  const most = Math.min(memberShares(problem).length, Math.floor(threads / starts));
+  return most >= 4 ? 4 : most >= 2 ? 2 : 1;
 }
 
 function runThread(

@@ -244,12 +244,16 @@ export interface ShareResult {
 
 /** Member shares evaluated by other threads (src/core/member-split.ts): handed the drive, then waited for (share-threads.ts). */
 export interface SharePool {
-  /** Share indices this thread evaluates itself; the pool's threads take the others. */
+  /** Share indices this thread evaluates itself (the first block); the pool's threads take the next blocks. */
   readonly local: readonly number[];
+  /** True: every evaluation uses the pool; false: the faster route, by measured times (member-split.ts ShareRoute). */
+  readonly always: boolean;
+  /** Evaluations handed to the pool so far. */
+  readonly posted: number;
   /** Hand the drive to the pool's threads; they start at once. */
   post(driveI: Float64Array, driveQ: Float64Array): void;
-  /** Wait for the pool's threads: the result of each of their shares, by share index. */
-  collect(): ReadonlyMap<number, ShareResult>;
+  /** Wait for the pool's threads: each helper's sum of its block of shares, in thread order (views valid until the next post). */
+  collect(): readonly ShareResult[];
   /** End the pool's threads. */
   close(): void;
 }

@@ -573,9 +573,9 @@ export class CoreClient {
     return this.analysis.drive(await sendable(pulse), line);
   }
 
-  /** Bloch paths of several members, each thinned to at most `maxPoints` points. */
-  async ensembleTrajectories(pulse: Pulse, members: Member[], from: Vec3, maxPoints = 600, line?: Line): Promise<EnsemblePaths> {
-    return this.analysis.ensembleTrajectories(await sendable(pulse), members, from, maxPoints, line);
+  /** Bloch paths of several members, each within `tolerance` (unit sphere) of the full path. */
+  async ensembleTrajectories(pulse: Pulse, members: Member[], from: Vec3, tolerance: number, line?: Line): Promise<EnsemblePaths> {
+    return this.analysis.ensembleTrajectories(await sendable(pulse), members, from, tolerance, line);
   }
 
   /** The held pulse's spectrum over a span of detunings, computed in the analysis worker. */

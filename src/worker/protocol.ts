@@ -155,14 +155,14 @@ export type ShortestOutcome = Omit<ShortestResult, 'design'>;
 
 export type { DurationTrial } from '../core/shortest.ts';
 
-/** Bloch paths of several members, each thinned to at most a given number of points. */
+/** Bloch paths of several members, each thinned for drawing (service.ts decimatePath). */
 export interface EnsemblePaths {
-  /** Every member's path one after the other, 3 values per point. */
-  paths: Float64Array;
-  /** Points in each member's path (the start, then samples at even steps, the end always kept). */
-  pointsPerPath: number;
-  /** Index of the step (sample, or fine step through a line) after which each point lies (0 for the start). */
-  sampleIndex: Int32Array;
+  /** Every member's kept points one after the other, 3 values per point (single precision: for drawing). */
+  paths: Float32Array;
+  /** Member m's points are offsets[m] to offsets[m + 1] - 1 (members + 1 values). */
+  offsets: Int32Array;
+  /** Every member's final Bloch vector in full precision, 3 values each (for the figures). */
+  ends: Float64Array;
 }
 
 /** Names the starts outpaced at a comparison of the starts (best-start.ts Referee.report). */
@@ -197,8 +197,8 @@ export interface CoreService {
   trajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line, system?: LadderSystem): Promise<Float64Array>;
   /** Population of every level after each sample of the drive through the line, for one member. */
   populations(pulse: Pulse, member: Member, system: LadderSystem, from: Vec3, line?: Line): Promise<Populations>;
-  /** Bloch paths of several members from one initial state (through the line when given), thinned to at most `maxPoints` points each. */
-  ensembleTrajectories(pulse: Pulse, members: Member[], from: Vec3, maxPoints: number, line?: Line): Promise<EnsemblePaths>;
+  /** Bloch paths of several members from one initial state (through the line when given), each thinned so that it stays within `tolerance` (unit sphere) of the full path. */
+  ensembleTrajectories(pulse: Pulse, members: Member[], from: Vec3, tolerance: number, line?: Line): Promise<EnsemblePaths>;
   /** |X(D)| of the held pulse over a span of detunings (src/core/spectrum.ts). */
   spectrum(pulse: Pulse, request: SpectrumRequest): Promise<Spectrum>;
   /** The drive the qubit sees when the pulse is played through the line (the one library function, qubitDrive). */

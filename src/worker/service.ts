@@ -105,12 +105,43 @@ class ProgressBatcher {
   }
 }
 
-/** Sample indices kept when a path of n samples is drawn with at most `maxPoints` points: 0, even steps, n. */
-export function thinnedIndices(samples: number, maxPoints: number): Int32Array {
-  const count = Math.max(2, Math.min(samples + 1, Math.floor(maxPoints)));
-  const out = new Int32Array(count);
-  for (let k = 0; k < count; k++) out[k] = Math.round((k * samples) / (count - 1));
-  return out;
+/** Most points kept of one member's path: beyond it the tolerance is widened for that path (a picture that dense is saturated). */
+export const MAX_PATH_POINTS = 1 << 18;
+
+/**
+ * A Bloch path (3 values a point) thinned for drawing: a point is kept when it lies farther
+ * than `tolerance` from the last point kept, and the last point always. Every point left out
+ * lies within `tolerance` of the last kept one, so the drawn polyline and the full one are
+ * within `tolerance` of each other everywhere (each dropped run stays in a ball of that
+ * radius around its kept point); a projection onto the screen only shortens distances, so
+ * the picture moves by at most `tolerance` times the sphere's radius, whatever the view.
+ * Points come back as single precision (far below a pixel), with the kept sample indices.
+ */
+export function decimatePath(path: Float64Array, tolerance: number): { points: Float32Array; index: Int32Array } {
+  const n = path.length / 3;
+  const kept = new Int32Array(n);
+  const pass = (tol: number): number => {
+    const t2 = tol * tol;
+    let count = 0;
+    let lx = path[0], ly = path[1], lz = path[2];
+    kept[count++] = 0;
+    for (let k = 1; k < n; k++) {
+      const x = path[3 * k], y = path[3 * k + 1], z = path[3 * k + 2];
+      const dx = x - lx, dy = y - ly, dz = z - lz;
+      if (dx * dx + dy * dy + dz * dz > t2 || k === n - 1) {
+        kept[count++] = k;
+        lx = x;
+        ly = y;
+        lz = z;
+      }
+    }
+    return count;
+  };
+  let count = n > 0 ? pass(tolerance) : 0;
+  for (let tol = tolerance; count > MAX_PATH_POINTS; ) count = pass((tol *= 2));
+  const points = new Float32Array(3 * count);
+  for (let p = 0; p < count; p++) points.set(path.subarray(3 * kept[p], 3 * kept[p] + 3), 3 * p);
+  return { points, index: kept.slice(0, count) };
 }
 
 /** Fraction of a file read between two progress reports. */
@@ -277,22 +308,22 @@ export function createCoreService(library: CoreLibrary, options: ServiceOptions 
       return withCore(() => moved(library.qubitDrive(pulse, line)));
     },
 
-    ensembleTrajectories(pulse, members, from, maxPoints, line) {
+    ensembleTrajectories(pulse, members, from, tolerance, line) {
       return withCore((): EnsemblePaths => {
-        // Through a line the path has a point per fine step, not per sample: thin by its own length.
-        let keep: Int32Array | null = null;
-        let paths = new Float64Array(0);
+        // Through a line the path has a point per fine step, not per sample: thinned by its own shape.
+        const parts: Float32Array[] = [];
+        const offsets = new Int32Array(members.length + 1);
+        const ends = new Float64Array(3 * members.length);
         members.forEach((member, m) => {
           const path = library.blochTrajectory(pulse, member, from, line);
-          if (!keep) {
-            keep = thinnedIndices(path.length / 3 - 1, maxPoints);
-            paths = new Float64Array(3 * keep.length * members.length);
-          }
-          const kept = keep;
-          kept.forEach((k, p) => paths.set(path.subarray(3 * k, 3 * k + 3), 3 * (m * kept.length + p)));
+          ends.set(path.subarray(path.length - 3), 3 * m);
+          const { points } = decimatePath(path, tolerance);
+          parts.push(points);
+          offsets[m + 1] = offsets[m] + points.length / 3;
         });
-        const sampleIndex = keep ?? new Int32Array(0);
-        return moved({ paths, pointsPerPath: sampleIndex.length, sampleIndex });
+        const paths = new Float32Array(3 * offsets[members.length]);
+        parts.forEach((points, m) => paths.set(points, 3 * offsets[m]));
+        return moved({ paths, offsets, ends });
       });
     },
 

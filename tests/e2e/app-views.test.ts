@@ -13,6 +13,17 @@ import { openPulse, openReady, screenshotLooks, useHarness } from './screens.ts'
 
 const reason = skipReason();
 
+/** Waits until the Bloch canvas shows a whole picture (not a preview while turning) of `paths` paths. */
+const picture = (page: Page, paths: number) =>
+  page.waitForFunction(
+    (paths) => {
+      const c = document.querySelector<HTMLCanvasElement>('[data-testid=bloch]');
+      return c?.dataset.paths === String(paths) && c.dataset.preview === 'false';
+    },
+    paths,
+    { timeout: 60_000 },
+  );
+
 /** A pulse file's text. */
 const pulseFile = (dt: number, i: number[], q: number[] = i.map(() => 0), name = 'pulse') => Buffer.from(JSON.stringify({ dt, i, q, metadata: { name } }));
 
@@ -172,17 +183,79 @@ describe.skipIf(reason !== null)('views in Chromium', () => {
         for (let k = 0; k < data.length; k += 4) if (data[k + 3]) set.add((data[k] << 16) | (data[k + 1] << 8) | data[k + 2]);
         return set.size;
       });
-    await page.waitForTimeout(200);
+    await picture(page, 25);
     const all = await colours();
     await screenshotLooks(page, 'views-bloch-all');
     await page.getByLabel('chosen members').check();
     await page.getByLabel('1: Δ = -1 MHz, ε = -10 %').check();
     await page.getByLabel('25: Δ = 1 MHz, ε = 10 %').check();
     await page.waitForFunction(() => document.querySelector('[data-testid=bloch-facts]')?.getAttribute('data-members') === '2');
-    await page.waitForTimeout(200);
+    await picture(page, 2);
     expect(all).toBeGreaterThan(await colours());
     await screenshot(page, 'views-bloch-chosen');
   }, 120_000);
+
+  it('draws 25 members at 100 000 samples whole, shows every n-th point while the sphere turns, then the whole picture again', async () => {
+    const page = await open();
+    // 200 us of a smooth drive of a few MHz: each member turns hundreds of times, millions of points in all.
+    const n = 100_000;
+    const i = Array.from({ length: n }, (_, k) => Math.round(4e6 * Math.sin((2 * Math.PI * 3 * k) / n) + 1e6));
+    const q = Array.from({ length: n }, (_, k) => Math.round(3e6 * Math.cos((2 * Math.PI * 2 * k) / n)));
+    await openPulse(page, 'long.json', pulseFile(2e-9, i, q));
+    await page.keyboard.press('Alt+5');
+    const canvas = page.getByTestId('bloch');
+    await canvas.waitFor();
+    const frames = async () => Number(await canvas.getAttribute('data-frames'));
+    /** Waits for a whole picture (not a preview) after picture number `after`. */
+    const whole = (after: number) =>
+      page.waitForFunction(
+        (after) => {
+          const c = document.querySelector('[data-testid=bloch]') as HTMLCanvasElement;
+          return Number(c.dataset.frames) > after && c.dataset.preview === 'false';
+        },
+        after,
+        { timeout: 60_000 },
+      );
+    const pixels = () =>
+      page.evaluate(() => {
+        const c = document.querySelector('[data-testid=bloch]') as HTMLCanvasElement;
+        const data = c.getContext('2d')!.getImageData(0, 0, c.width, c.height).data;
+        const w = window as unknown as { __bloch?: Uint8ClampedArray };
+        let changed = 0;
+        if (w.__bloch) for (let k = 0; k < data.length; k++) if (data[k] !== w.__bloch[k]) changed++;
+        w.__bloch = data;
+        const colours = new Set<number>();
+        for (let k = 0; k < data.length; k += 4) if (data[k + 3]) colours.add((data[k] << 16) | (data[k + 1] << 8) | data[k + 2]);
+        return { colours: colours.size, changed };
+      });
+    await page.getByLabel('chosen members').check();
+    await page.getByLabel('1: Δ = -1 MHz, ε = -10 %').check();
+    await page.waitForFunction(() => document.querySelector('[data-testid=bloch-facts]')?.getAttribute('data-members') === '1');
+    await picture(page, 1);
+    const one = await pixels();
+    await page.getByLabel('all 25 members').check();
+    await page.waitForFunction(() => document.querySelector('[data-testid=bloch-facts]')?.getAttribute('data-members') === '25');
+    await picture(page, 25);
+    const all = await pixels();
+    // Every member's path in its own colour of the map's scale: far more colours than one path.
+    expect(all.colours).toBeGreaterThan(2 * one.colours);
+    await screenshotLooks(page, 'views-bloch-long', ['light', 'dark'], 3000);
+    await whole(0);
+    await pixels();
+    // Turning: pictures come while the mouse moves (every n-th point), and the whole picture once it stops.
+    const box = (await canvas.boundingBox())!;
+    const start = await frames();
+    await page.mouse.move(box.x + box.width / 2, box.y + box.height / 2);
+    await page.mouse.down();
+    for (let k = 1; k <= 8; k++) await page.mouse.move(box.x + box.width / 2 + 10 * k, box.y + box.height / 2 + 4 * k);
+    await page.waitForFunction((start) => Number(document.querySelector<HTMLCanvasElement>('[data-testid=bloch]')!.dataset.frames) > start, start);
+    const previews = await page.evaluate(() => document.querySelector<HTMLCanvasElement>('[data-testid=bloch]')!.dataset.preview);
+    await page.mouse.up();
+    await whole(await frames());
+    expect(previews).toBe('true');
+    expect((await pixels()).changed).toBeGreaterThan(1000);
+    await screenshot(page, 'views-bloch-long-turned');
+  }, 180_000);
 
   it('shows where one pulse beats another: its contour over the map, both maps side by side, and the ratio', async () => {
     const page = await open();

@@ -197,6 +197,16 @@ describe.skipIf(reason !== null)('the app in Chromium', () => {
     await page.keyboard.press('Alt+5');
     const canvas = page.getByTestId('bloch');
     await canvas.waitFor();
+    // The painter worker sends pictures; the canvas counts those it shows (data-frames).
+    const pictureAfter = (count: number) =>
+      page.waitForFunction((count) => Number(document.querySelector<HTMLCanvasElement>('[data-testid=bloch]')?.dataset.frames ?? 0) > count, count, { timeout: 30_000 });
+    const frames = async () => Number((await canvas.getAttribute('data-frames')) ?? 0);
+    // The first whole picture with the path.
+    await page.waitForFunction(() => {
+      const c = document.querySelector<HTMLCanvasElement>('[data-testid=bloch]');
+      return c?.dataset.paths === '1' && c.dataset.preview === 'false';
+    }, undefined, { timeout: 30_000 });
+    await page.waitForTimeout(300);
     // Pixels stay in the page: the first picture is kept there, the second compared with it.
     const snapshot = () => page.evaluate(() => {
       const c = document.querySelector('[data-testid=bloch]') as HTMLCanvasElement;
@@ -212,11 +222,13 @@ describe.skipIf(reason !== null)('the app in Chromium', () => {
     // Not blank: the sphere, its axes and the trajectory give many distinct colours.
     expect((await snapshot()).colours).toBeGreaterThan(20);
     const box = (await canvas.boundingBox())!;
+    const before = await frames();
     await page.mouse.move(box.x + box.width / 2, box.y + box.height / 2);
     await page.mouse.down();
     await page.mouse.move(box.x + box.width / 2 + 80, box.y + box.height / 2 + 30, { steps: 8 });
     await page.mouse.up();
-    await page.waitForTimeout(100);
+    await pictureAfter(before);
+    await page.waitForTimeout(300);
     const { changed } = await snapshot();
     expect(changed).toBeGreaterThan(1000);
     await screenshot(page, 'e2e-13-bloch');

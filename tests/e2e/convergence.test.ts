@@ -35,7 +35,7 @@ interface Curve {
   points: number;
   largestGap: number;
   /** The mark at the curve's end: its style and radius (0: none). */
-  endStyle: string;
+  endStyle: string | undefined;
   endRadius: number;
 }
 
@@ -52,9 +52,9 @@ function startsTable(page: Page): Promise<Row[]> {
 /** The convergence chart's curves as drawn (read from the chart on the canvas). */
 function drawnCurves(page: Page): Promise<Curve[]> {
   return page.evaluate(() => {
-    type Set = { label: string; data: { x: number }[]; pointStyle: string | string[]; pointRadius: number | number[] };
+    // The mark at a curve's end: its dataset's endMark, drawn at the last point (ConvergenceChart.svelte).
+    type Set = { label: string; data: { x: number }[]; endMark?: { style: string; radius: number } | null };
     const chart = (document.querySelector('[data-testid=convergence-chart]') as unknown as { gatesmithChart: { data: { datasets: Set[] } } }).gatesmithChart;
-    const at = <T,>(v: T | T[], k: number): T => (Array.isArray(v) ? v[k] : v);
     return chart.data.datasets.map((d) => {
       const xs = d.data.map((p) => p.x);
       const end = xs.length - 1;
@@ -64,8 +64,8 @@ function drawnCurves(page: Page): Promise<Curve[]> {
         last: xs[end],
         points: xs.length,
         largestGap: Math.max(0, ...xs.slice(1).map((x, k) => x - xs[k])),
-        endStyle: at(d.pointStyle, end),
-        endRadius: at(d.pointRadius, end),
+        endStyle: d.endMark?.style,
+        endRadius: d.endMark?.radius ?? 0,
       };
     });
   });

@@ -8,9 +8,41 @@ import { parseSpec } from '../../src/core/spec.ts';
 import type { Pulse, Target } from '../../src/core/types.ts';
 import { demoSpec } from '../../src/app/demo.ts';
 import { library } from '../../src/worker/library.ts';
-import { thinnedIndices } from '../../src/worker/service.ts';
+import { decimatePath } from '../../src/worker/service.ts';
 import type { CoreService, ProgressBatch } from '../../src/worker/protocol.ts';
 import { closePorts, serviceEndpoint } from './in-realm.ts';
+
+/** Distance from point p to the segment a-b (3D). */
+function toSegment(p: ArrayLike<number>, a: ArrayLike<number>, b: ArrayLike<number>): number {
+  const ab = [b[0] - a[0], b[1] - a[1], b[2] - a[2]];
+  const ap = [p[0] - a[0], p[1] - a[1], p[2] - a[2]];
+  const len2 = ab[0] ** 2 + ab[1] ** 2 + ab[2] ** 2;
+  const t = len2 > 0 ? Math.max(0, Math.min(1, (ap[0] * ab[0] + ap[1] * ab[1] + ap[2] * ab[2]) / len2)) : 0;
+  return Math.hypot(ap[0] - t * ab[0], ap[1] - t * ab[1], ap[2] - t * ab[2]);
+}
+
+/** Largest distance from a point of either polyline (its vertices and 4 points along each segment) to the other polyline: a brute-force Hausdorff distance. */
+function hausdorff(a: ArrayLike<number>, b: ArrayLike<number>): number {
+  const points = (path: ArrayLike<number>): number[][] => {
+    const out: number[][] = [];
+    for (let k = 0; 3 * k + 2 < path.length; k++) {
+      for (const f of 3 * k + 5 < path.length ? [0, 0.25, 0.5, 0.75] : [0]) {
+        out.push([0, 1, 2].map((c) => path[3 * k + c] + f * ((path[3 * k + 3 + c] ?? 0) - path[3 * k + c])));
+      }
+    }
+    return out;
+  };
+  const worst = (from: number[][], to: ArrayLike<number>) => {
+    let max = 0;
+    for (const p of from) {
+      let best = Infinity;
+      for (let k = 0; 3 * k + 5 < to.length; k++) best = Math.min(best, toSegment(p, [to[3 * k], to[3 * k + 1], to[3 * k + 2]], [to[3 * k + 3], to[3 * k + 4], to[3 * k + 5]]));
+      max = Math.max(max, best);
+    }
+    return max;
+  };
+  return Math.max(worst(points(a), b), worst(points(b), a));
+}
 
 const connect = (): Remote<CoreService> => wrap<CoreService>(serviceEndpoint());
 afterAll(closePorts);
@@ -172,23 +204,49 @@ describe('worker service over a MessageChannel', () => {
     expect(path[17]).toBeCloseTo(Math.SQRT1_2, 12);
   });
 
-  it('gives the paths of several members in one job, thinned but ending where the full path ends', async () => {
-    const pulse = rectangular(Math.PI / 2, 1e7, 10);
+  it('gives the paths of several members in one job, thinned within the tolerance, with their exact ends', async () => {
+    // One and a half turns in 3000 samples: steps of pi/1000 on a great circle (0.0031 of the radius).
+    const pulse = rectangular(3 * Math.PI, 1e7, 3000);
     const members = [
       { detuning: 0, amplitudeError: 0, weight: 1 },
       { detuning: 2e6, amplitudeError: 0.1, weight: 1 },
     ];
-    const result = await core.ensembleTrajectories(pulse, members, [0, 0, 1], 4);
-    expect(result.pointsPerPath).toBe(4);
-    expect(Array.from(result.sampleIndex)).toEqual([0, 3, 7, 10]);
+    const tolerance = 0.02;
+    const result = await core.ensembleTrajectories(pulse, members, [0, 0, 1], tolerance);
+    expect(result.offsets).toHaveLength(3);
+    expect(result.offsets[0]).toBe(0);
     for (const [m, member] of members.entries()) {
       const full = library.blochTrajectory(pulse, member, [0, 0, 1]);
-      for (const [p, k] of Array.from(result.sampleIndex).entries()) {
-        // The same numbers as the library's own path at those samples.
-        expect(Array.from(result.paths.subarray(3 * (m * 4 + p), 3 * (m * 4 + p) + 3))).toEqual(Array.from(full.subarray(3 * k, 3 * k + 3)));
-      }
+      const kept = result.paths.subarray(3 * result.offsets[m], 3 * result.offsets[m + 1]);
+      // Far fewer points: steps of 0.0031 against a tolerance of 0.02 keep about one in seven.
+      expect(kept.length / 3).toBeLessThan(full.length / 3 / 5);
+      // The same numbers as the library's own path (to single precision), first and last kept.
+      expect(Array.from(kept.subarray(0, 3))).toEqual(Array.from(Float32Array.from(full.subarray(0, 3))));
+      expect(Array.from(kept.subarray(kept.length - 3))).toEqual(Array.from(Float32Array.from(full.subarray(full.length - 3))));
+      // The end in full precision, for the figures.
+      expect(Array.from(result.ends.subarray(3 * m, 3 * m + 3))).toEqual(Array.from(full.subarray(full.length - 3)));
+      expect(hausdorff(full, kept)).toBeLessThanOrEqual(tolerance + 1e-6);
     }
-    expect(thinnedIndices(3, 600)).toEqual(Int32Array.from([0, 1, 2, 3]));
+  });
+
+  it('thins a path so that the full and the thinned polylines stay within the tolerance of each other', () => {
+    // A path that doubles back and wanders (invariant: every point of either polyline lies within
+    // the tolerance of the other, so the drawn picture moves by at most that much in any view).
+    const n = 1201;
+    const path = new Float64Array(3 * n);
+    for (let k = 0; k < n; k++) {
+      const t = k / (n - 1);
+      const a = 40 * Math.PI * t * t, b = Math.sin(7 * Math.PI * t);
+      path.set([Math.cos(a) * Math.cos(b), Math.sin(a) * Math.cos(b), Math.sin(b)], 3 * k);
+    }
+    for (const tolerance of [3e-3, 2e-2, 5e-2]) {
+      const { points, index } = decimatePath(path, tolerance);
+      expect(index[0]).toBe(0);
+      expect(index[index.length - 1]).toBe(n - 1);
+      expect(hausdorff(path, points)).toBeLessThanOrEqual(tolerance + 1e-6);
+    }
+    // Steps longer than the tolerance are all kept.
+    expect(decimatePath(path, 1e-6).points.length).toBe(path.length);
   });
 
   it('computes the spectrum in the worker: a rectangle gives A T at zero detuning (sinc(0) = 1)', async () => {

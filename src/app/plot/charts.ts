@@ -11,7 +11,7 @@ import {
   PointElement,
   Tooltip,
 } from 'chart.js';
-import type { TooltipItem } from 'chart.js';
+import type { Plugin, TooltipItem } from 'chart.js';
 import { engineeringUnit, formatFigure, type Quantity } from '../units.ts';
 
 Chart.register(LineController, LineElement, PointElement, LinearScale, LogarithmicScale, Tooltip, Legend, Decimation);
@@ -200,6 +200,8 @@ export interface LineChartSpec {
   decimate?: boolean;
   /** Called with the x-axis value under the pointer as it moves over the chart. */
   onHover?: (x: number) => void;
+  /** The chart's own drawing steps (chart.js inline plugins). */
+  plugins?: Plugin<'line'>[];
 }
 
 /** The property of a chart's canvas that holds the chart: the page's tests read its scales and data there. */
@@ -212,6 +214,7 @@ export function lineChart(canvas: HTMLCanvasElement, spec: LineChartSpec): Chart
   const chart = new Chart(canvas, {
     type: 'line',
     data: { datasets: [] },
+    plugins: spec.plugins ?? [],
     options: {
       color: colours.text,
       parsing: false,
