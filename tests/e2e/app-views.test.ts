@@ -9,7 +9,7 @@ import { demoSpec } from '../../src/app/demo.ts';
 import { parseSpec } from '../../src/core/spec.ts';
 import { pulsePropagator, spinorToBloch } from '../reference/oracle.ts';
 import { runToEnd, screenshot, skipReason, type Visit } from './harness.ts';
-import { openPulse, openReady, screenshotLooks, useHarness } from './screens.ts';
+import { blochPixels, openPulse, openReady, screenshotLooks, useHarness } from './screens.ts';
 
 const reason = skipReason();
 
@@ -216,18 +216,7 @@ describe.skipIf(reason !== null)('views in Chromium', () => {
         after,
         { timeout: 60_000 },
       );
-    const pixels = () =>
-      page.evaluate(() => {
-        const c = document.querySelector('[data-testid=bloch]') as HTMLCanvasElement;
-        const data = c.getContext('2d')!.getImageData(0, 0, c.width, c.height).data;
-        const w = window as unknown as { __bloch?: Uint8ClampedArray };
-        let changed = 0;
-        if (w.__bloch) for (let k = 0; k < data.length; k++) if (data[k] !== w.__bloch[k]) changed++;
-        w.__bloch = data;
-        const colours = new Set<number>();
-        for (let k = 0; k < data.length; k += 4) if (data[k + 3]) colours.add((data[k] << 16) | (data[k + 1] << 8) | data[k + 2]);
-        return { colours: colours.size, changed };
-      });
+    const pixels = () => blochPixels(page, true);
     await page.getByLabel('chosen members').check();
     await page.getByLabel('1: Δ = -1 MHz, ε = -10 %').check();
     await page.waitForFunction(() => document.querySelector('[data-testid=bloch-facts]')?.getAttribute('data-members') === '1');

@@ -4,6 +4,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import { runToEnd, screenshot, skipReason, startHarness, typeInto, visit, type Harness, type Visit } from './harness.ts';
+import { blochPixels } from './screens.ts';
 
 const reason = skipReason();
 if (reason) console.warn(`browser tests skipped: ${reason}`);
@@ -208,17 +209,7 @@ describe.skipIf(reason !== null)('the app in Chromium', () => {
     }, undefined, { timeout: 30_000 });
     await page.waitForTimeout(300);
     // Pixels stay in the page: the first picture is kept there, the second compared with it.
-    const snapshot = () => page.evaluate(() => {
-      const c = document.querySelector('[data-testid=bloch]') as HTMLCanvasElement;
-      const data = c.getContext('2d')!.getImageData(0, 0, c.width, c.height).data;
-      const w = window as unknown as { __bloch?: Uint8ClampedArray };
-      let changed = 0;
-      if (w.__bloch) for (let k = 0; k < data.length; k++) if (data[k] !== w.__bloch[k]) changed++;
-      w.__bloch = data;
-      const colours = new Set<number>();
-      for (let k = 0; k < data.length; k += 4) colours.add((data[k] << 16) | (data[k + 1] << 8) | data[k + 2]);
-      return { colours: colours.size, changed };
-    });
+    const snapshot = () => blochPixels(page);
     // Not blank: the sphere, its axes and the trajectory give many distinct colours.
     expect((await snapshot()).colours).toBeGreaterThan(20);
     const box = (await canvas.boundingBox())!;

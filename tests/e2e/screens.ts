@@ -92,3 +92,22 @@ export async function screenshotLooks(page: Page, name: string, schemes: readonl
   }
   await page.setViewportSize({ width: 1440, height });
 }
+
+/**
+ * The Bloch canvas's pixels, compared with those of the call before (kept in the page, so
+ * that no picture crosses to the test): how many bytes changed, and how many colours it
+ * shows (of the drawn pixels only when `drawnOnly`, not the transparent background).
+ */
+export function blochPixels(page: Page, drawnOnly = false): Promise<{ colours: number; changed: number }> {
+  return page.evaluate((drawnOnly) => {
+    const c = document.querySelector('[data-testid=bloch]') as HTMLCanvasElement;
+    const data = c.getContext('2d')!.getImageData(0, 0, c.width, c.height).data;
+    const w = window as unknown as { __bloch?: Uint8ClampedArray };
+    let changed = 0;
+    if (w.__bloch) for (let k = 0; k < data.length; k++) if (data[k] !== w.__bloch[k]) changed++;
+    w.__bloch = data;
+    const colours = new Set<number>();
+    for (let k = 0; k < data.length; k += 4) if (!drawnOnly || data[k + 3]) colours.add((data[k] << 16) | (data[k + 1] << 8) | data[k + 2]);
+    return { colours: colours.size, changed };
+  }, drawnOnly);
+}
