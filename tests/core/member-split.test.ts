@@ -153,19 +153,25 @@ describe('ShareRoute: the route of each evaluation, from the times each route to
   });
 });
 
+/** The objective and gradient of a start's block at its current variables, and the drive's gradient. */
+function objectiveAt(run: StartRun, segments: number): { f: number; g: Float64Array; gI: Float64Array; gQ: Float64Array } {
+  const core = getCore(), ex = core.exports;
+  const nVar = ex.problemVariables(run.block);
+  const x = core.read(ex.optVariables(run.block), nVar);
+  return core.job(() => {
+    const xp = core.put(x), gp = core.alloc(nVar);
+    const f = ex.objective(run.block, xp, gp);
+    return { f, g: core.read(gp, nVar), gI: readBuffer(core, run.block, BUFFER.gradI, segments), gQ: readBuffer(core, run.block, BUFFER.gradQ, segments) };
+  });
+}
+
 describe('the split objective', () => {
   it('gives the whole objective and gradient to rounding, and the oracle figure and gradient', () => {
     const problem = parseSpec(LARGE);
     const run = new StartRun(problem, 0);
-    const core = getCore(), ex = core.exports;
+    const ex = getCore().exports;
     try {
-      const nVar = ex.problemVariables(run.block);
-      const x = core.read(ex.optVariables(run.block), nVar);
-      const at = () => core.job(() => {
-        const xp = core.put(x), gp = core.alloc(nVar);
-        const f = ex.objective(run.block, xp, gp);
-        return { f, g: core.read(gp, nVar), gI: readBuffer(core, run.block, BUFFER.gradI, problem.segments), gQ: readBuffer(core, run.block, BUFFER.gradQ, problem.segments) };
-      });
+      const at = () => objectiveAt(run, problem.segments);
       const split = at();
       ex.problemSetShares(run.block, 0);
       const whole = at();
@@ -190,14 +196,9 @@ describe('the split objective', () => {
       ensemble: { detuning: { min: -1e6, max: 1e6, points: 3 }, amplitudeError: { min: -0.05, max: 0.05, points: 3 } } });
     expect(memberShares(problem).length).toBe(2);
     const run = new StartRun(problem, 0);
-    const core = getCore(), ex = core.exports;
+    const ex = getCore().exports;
     try {
-      const nVar = ex.problemVariables(run.block);
-      const x = core.read(ex.optVariables(run.block), nVar);
-      const at = () => core.job(() => {
-        const xp = core.put(x), gp = core.alloc(nVar);
-        return { f: ex.objective(run.block, xp, gp), g: core.read(gp, nVar) };
-      });
+      const at = () => objectiveAt(run, problem.segments);
       const split = at();
       ex.problemSetShares(run.block, 0);
       const whole = at();
