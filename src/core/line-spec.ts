@@ -1,7 +1,7 @@
 // The spec's `line` section (docs/physics.md section 5, "The line"): validated into a
 // Line, written back as JSON for pulse files, and its discrete kernel on the fine grid.
 // No wasm here: the app's page validates specs with it.
-import { SpecError } from './errors.ts';
+import { ArgumentError, SpecError } from './errors.ts';
 import { discreteKernel, MAX_KERNEL_TAPS, type DiscreteKernel } from './line-kernel.ts';
 import { checkNumber, childPath, isObject, readArray, readChoice, readNumber, readObject, type JsonObject } from './spec-fields.ts';
 import type { Line, LineResponse } from './types.ts';
@@ -113,6 +113,36 @@ export function kernelOf(line: Line, fine: number): DiscreteKernel {
   let k = byFine.get(fine);
   if (!k) byFine.set(fine, (k = discreteKernel(line.response, fine)));
   return k;
+}
+
+/**
+ * Fine steps per sample of `dt` through a line: its oversampling for the spec's own dt;
+ * for another dt (an exported waveform) the whole number nearest dt / fineStep (at least
+ * 1), where a Gaussian or RC response is discretised afresh. A measured impulse response
+ * is given on its own fine step, so dt must be a whole number of them.
+ */
+export function lineOversample(line: Line, dt: number): number {
+  if (line.fineStep === undefined) return line.oversample;
+  const r = dt / line.fineStep;
+  const whole = Math.round(r);
+  if (whole >= 1 && Math.abs(r - whole) <= 1e-9 * r) return whole;
+  if (line.response?.kind === 'impulse') {
+    throw new ArgumentError(`pulse.dt: ${dt} s is not allowed through the measured impulse response, given on fine steps of ${line.fineStep} s; ` +
+      'the pulse\'s samples must last a whole number of them');
+  }
+  return Math.max(1, whole);
+}
+
+/**
+ * Samples of the drive the qubit sees when n samples of dt play through `line`: the held
+ * samples on the fine grid and the response's tails (lineLayout's drive; n without a line).
+ */
+export function driveSamples(line: Line | undefined, n: number, dt: number): number {
+  if (!line) return n;
+  const oversample = lineOversample(line, dt);
+  // The last sample starts (n - 1) oversample fine steps in; the kernel combined with
+  // holding (heldKernel) adds its taps + oversample - 1 from there.
+  return (n - 1) * oversample + kernelOf(line, dt / oversample).h.length + oversample - 1;
 }
 
 /** The kernel combined with holding: c = h * box(oversample), length L + oversample - 1. */

@@ -6,9 +6,11 @@
 import { BUFFER, createBlock, DRIVE_LINE, readBuffer, setSamples, type DriveLayout } from './block.ts';
 import { encodeMembers } from './encode.ts';
 import { ArgumentError } from './errors.ts';
-import { heldKernel, kernelOf, lineJson, MAX_DRIVE_SAMPLES } from './line-spec.ts';
+import { heldKernel, kernelOf, lineJson, lineOversample, MAX_DRIVE_SAMPLES } from './line-spec.ts';
 import type { Line, Pulse } from './types.ts';
 import { getCore } from './wasm.ts';
+
+export { lineOversample };
 
 /** Weight of the exterior penalty that holds the drive bound ("boundOn": "both"). */
 export const DRIVE_BOUND_WEIGHT = 1e4;
@@ -29,24 +31,6 @@ export function lineUsesFft(n: number, heldLength: number, fftSize: number): boo
 export interface LineLayout extends DriveLayout {
   /** When the drive's first sample starts, relative to the programmed pulse's start (s). */
   startS: number;
-}
-
-/**
- * Fine steps per sample of `dt` through a line: its oversampling for the spec's own dt;
- * for another dt (an exported waveform) the whole number nearest dt / fineStep (at least
- * 1), where a Gaussian or RC response is discretised afresh. A measured impulse response
- * is given on its own fine step, so dt must be a whole number of them.
- */
-export function lineOversample(line: Line, dt: number): number {
-  if (line.fineStep === undefined) return line.oversample;
-  const r = dt / line.fineStep;
-  const whole = Math.round(r);
-  if (whole >= 1 && Math.abs(r - whole) <= 1e-9 * r) return whole;
-  if (line.response?.kind === 'impulse') {
-    throw new ArgumentError(`pulse.dt: ${dt} s is not allowed through the measured impulse response, given on fine steps of ${line.fineStep} s; ` +
-      'the pulse\'s samples must last a whole number of them');
-  }
-  return Math.max(1, whole);
 }
 
 /** The drive map of a line for a block of n samples of dt; `method` forces the direct sum or the FFT (tests, benchmark). */

@@ -6,6 +6,7 @@ import { proxy, releaseProxy, wrap, type Endpoint, type Remote } from 'comlink';
 import { mergeDesigns, mergePruned, prunes, Referee, startsToContinue, type Checkpoint } from '../core/best-start.ts';
 import { QUBIT_NS, systemCostFactor } from '../core/cost.ts';
 import { axisValue, axisValues } from '../core/grid.ts';
+import { driveSamples } from '../core/line-spec.ts';
 import { chooseTarget } from '../core/target-choice.ts';
 import type { QubitDrive } from '../core/line.ts';
 import type { DesignResult, Evaluation, GridAxis, LadderSystem, Line, Member, Problem, Pulse, StartResult, Target, Vec3 } from '../core/types.ts';
@@ -71,11 +72,20 @@ export function bandRows(rows: number, bands: number): Array<[number, number]> {
  */
 export const MAP_PART_NS = 50e6;
 
-/** Grid points per part of a map of a pulse of `segments` samples on a system `costFactor` times the qubit's cost: about MAP_PART_NS of core time, at least one. */
-export function mapPartPoints(segments: number, costFactor: number): number {
-  const points = Math.floor(MAP_PART_NS / (Math.max(1, segments) * QUBIT_NS * costFactor));
+/** Grid points per part of a map of a drive of `samples` samples on a system `costFactor` times the qubit's cost: about MAP_PART_NS of core time, at least one. */
+export function mapPartPoints(samples: number, costFactor: number): number {
+  const points = Math.floor(MAP_PART_NS / (Math.max(1, samples) * QUBIT_NS * costFactor));
   // Whole groups of four members fill the qubit kernels' lanes.
   return points >= 8 ? points - (points % 4) : Math.max(1, points);
+}
+
+/**
+ * Grid points per part of a map of `pulse` against `target`: sized by the drive the core
+ * evaluates, which through a line is the held samples on the line's fine grid with the
+ * response's tails, several times the programmed samples.
+ */
+export function mapPartSize(pulse: Pulse, target: Target, line?: Line, system?: LadderSystem): number {
+  return mapPartPoints(driveSamples(line, pulse.i.length, pulse.dt), systemCostFactor({ target, system }));
 }
 
 /** `total` grid points in consecutive parts of at most `size` points: [first point, count]. */
@@ -475,7 +485,7 @@ export class CoreClient {
    * The values are those of the library's robustnessMap bit for bit.
    */
   async map(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, onUpdate?: (update: MapUpdate) => void, line?: Line, system?: LadderSystem, signal?: AbortSignal): Promise<MapUpdate> {
-    const size = mapPartPoints(pulse.i.length, systemCostFactor({ target, system }));
+    const size = mapPartSize(pulse, target, line, system);
     const coarse = await this.mapInParts(target, pulse, coarseAxis(detuning), coarseAxis(amplitudeError), size, line, system, signal);
     const update: MapUpdate = { coarse, complete: false };
     onUpdate?.({ ...update });
@@ -541,7 +551,7 @@ export class CoreClient {
    */
   async cuts(target: Target, pulse: Pulse, detuning: GridAxis, amplitudeError: GridAxis, line?: Line, system?: LadderSystem, signal?: AbortSignal): Promise<Cuts> {
     const used = chooseTarget(target, pulse).targetUsed;
-    const size = mapPartPoints(pulse.i.length, systemCostFactor({ target: used, system }));
+    const size = mapPartSize(pulse, used, line, system);
     const zero: GridAxis = { min: 0, max: 0, points: 1 };
     const along = await this.mapInParts(used, pulse, detuning, zero, size, line, system, signal);
     const across = await this.mapInParts(used, pulse, zero, amplitudeError, size, line, system, signal);

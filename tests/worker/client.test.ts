@@ -4,9 +4,12 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { design as libraryDesign, robustnessMap } from '../../src/core/api.ts';
 import type { Pulse, Target } from '../../src/core/types.ts';
 import { demoSpec } from '../../src/app/demo.ts';
+import { qubitDrive } from '../../src/core/line.ts';
+import { driveSamples } from '../../src/core/line-spec.ts';
+import { parseSpec } from '../../src/core/spec.ts';
 import { evaluateJudged } from '../../src/core/compare.ts';
 import { expose, type Endpoint } from 'comlink';
-import { bandRows, coarseAxis, CoreClient, designWorkerCount, mapPartPoints, mapParts, MAP_PART_NS, shareStarts, StoppedBeforeAnyPulse, type MapUpdate } from '../../src/worker/client.ts';
+import { bandRows, coarseAxis, CoreClient, designWorkerCount, mapPartPoints, mapParts, mapPartSize, MAP_PART_NS, shareStarts, StoppedBeforeAnyPulse, type MapUpdate } from '../../src/worker/client.ts';
 import { QUBIT_NS, systemCostFactor } from '../../src/core/cost.ts';
 import { cuts as libraryCuts } from '../../src/core/robustness.ts';
 import { COPY_SLICE, sendable } from '../../src/worker/transfer.ts';
@@ -119,6 +122,31 @@ describe('CoreClient over MessageChannels', () => {
     const done = await client.map(target, pulse, detuning, amplitudeError, (u) => updates.push(u));
     expect(updates.filter((u) => u.fine).length).toBeGreaterThanOrEqual(5);
     expect(Array.from(done.fine!.infidelity)).toEqual(Array.from(robustnessMap(target, pulse, detuning, amplitudeError).infidelity));
+  });
+
+  it('sizes a map\'s parts through a line by the drive the core evaluates, and keeps the library\'s values bit for bit', async () => {
+    // The demo spec (100 samples of 2 ns) through a 300 MHz Gaussian line on 8 fine steps a sample.
+    const problem = parseSpec({ ...demoSpec(), line: { oversample: 8, response: { gaussian: { bandwidth: 3e8 } } } });
+    const line = problem.line!;
+    const n = problem.segments;
+    const pulse: Pulse = { dt: problem.dt, i: new Float64Array(n).map((_, k) => 2.5e6 * Math.sin((Math.PI * (k + 0.5)) / n) ** 2), q: new Float64Array(n), metadata: {} };
+    const drive = qubitDrive(pulse, line);
+    // The drive the qubit sees: n samples held on 8 fine steps each, and the response's two tails.
+    expect(driveSamples(line, n, pulse.dt)).toBe(drive.i.length);
+    expect(drive.i.length).toBeGreaterThan(8 * n);
+    // Held samples alone (no response): exactly n x oversample fine steps.
+    expect(driveSamples({ ...line, response: null }, n, pulse.dt)).toBe(8 * n);
+    expect(driveSamples({ ...line, response: null }, n, pulse.dt)).toBe(qubitDrive(pulse, { ...line, response: null }).i.length);
+    const size = mapPartSize(pulse, problem.target, line);
+    expect(size).toBe(mapPartPoints(drive.i.length, 1));
+    // A part's cost by the model (core/cost.ts) over the drive's samples stays within the budget.
+    expect(size * drive.i.length * QUBIT_NS).toBeLessThanOrEqual(MAP_PART_NS);
+    expect(size).toBeLessThan(mapPartPoints(n, 1) / 8);
+    expect(mapPartSize(pulse, problem.target)).toBe(mapPartPoints(n, 1));
+    const detuning = { min: -2e6, max: 2e6, points: 21 };
+    const amplitudeError = { min: -0.2, max: 0.2, points: 17 };
+    const done = await client.map(problem.target, pulse, detuning, amplitudeError, undefined, line);
+    expect(Array.from(done.fine!.infidelity)).toEqual(Array.from(robustnessMap(problem.target, pulse, detuning, amplitudeError, line).infidelity));
   });
 
   it('computes a ladder\'s map and leakage in parts equal to the library\'s bit for bit', async () => {
