@@ -54,7 +54,7 @@ export function pathWidth(scene: BlochScene, pixels: number): number {
   return scene.offsets.length - 1 > 3 ? 1.3 : 2;
 }
 
-/** A drawing in steps: the sphere first, then the paths in parts (`steps`), then the marks. */
+/** A drawing in steps: the sphere first, then the paths in parts (`steps`), then the marks and the labels above them. */
 export interface Painting {
   /** Draws the next part; false once everything is drawn. */
   step(): boolean;
@@ -81,7 +81,7 @@ export function paint(ctx: OffscreenCanvasRenderingContext2D | CanvasRenderingCo
     const p = project(v, view);
     return { x: cx + r * p.x, y: cy - r * p.y, depth: p.depth };
   };
-  drawFrame(ctx, at, cx, cy, r, colours, scene.target);
+  drawFrame(ctx, at, cx, cy, r, colours);
 
   const count = offsets.length - 1;
   const pixels = options.pixels ?? sceneSize(scene).pixels;
@@ -132,6 +132,8 @@ export function paint(ctx: OffscreenCanvasRenderingContext2D | CanvasRenderingCo
       ctx.fillStyle = scene.colours[m];
       ctx.fillRect(e.x - 2.5, e.y - 2.5, 5, 5);
     }
+    // Labels and the target's ring last: many members' paths would hide them.
+    drawLabels(ctx, at, colours, scene.target);
   };
   return {
     step(): boolean {
@@ -166,7 +168,7 @@ export function paint(ctx: OffscreenCanvasRenderingContext2D | CanvasRenderingCo
   };
 }
 
-/** The sphere's outline, equator and meridians (dashed behind), axes with labels, and the target ring. */
+/** The sphere's outline, equator and meridians (dashed behind), and the axes. */
 function drawFrame(
   ctx: OffscreenCanvasRenderingContext2D | CanvasRenderingContext2D,
   at: (v: Vec3) => { x: number; y: number; depth: number },
@@ -174,7 +176,6 @@ function drawFrame(
   cy: number,
   r: number,
   colours: SphereColours,
-  target: Vec3 | null,
 ): void {
   ctx.strokeStyle = colours.muted;
   ctx.lineWidth = 1.2;
@@ -202,30 +203,45 @@ function drawFrame(
   circle((t) => [Math.cos(t), 0, Math.sin(t)]);
   circle((t) => [0, Math.cos(t), Math.sin(t)]);
 
-  ctx.font = '13px system-ui, sans-serif';
-  ctx.textAlign = 'center';
-  ctx.textBaseline = 'middle';
-  for (const [v, label] of [
-    [[1, 0, 0], 'x'],
-    [[0, 1, 0], 'y'],
-    [[0, 0, 1], '|0⟩ z'],
-    [[0, 0, -1], '|1⟩'],
-    [[-1, 0, 0], '−x'],
-    [[0, -1, 0], '−y'],
-  ] as [Vec3, string][]) {
+  for (const [v] of AXES) {
     const o = at([0, 0, 0]);
     const e = at(v);
-    const l = at([v[0] * 1.16, v[1] * 1.16, v[2] * 1.16]);
     ctx.strokeStyle = colours.muted;
     ctx.globalAlpha = e.depth < 0 ? 0.4 : 0.9;
     ctx.beginPath();
     ctx.moveTo(o.x, o.y);
     ctx.lineTo(e.x, e.y);
     ctx.stroke();
-    ctx.fillStyle = colours.text;
-    ctx.fillText(label, l.x, l.y);
   }
   ctx.globalAlpha = 1;
+}
+
+/** The axes' ends and their labels. */
+const AXES: [Vec3, string][] = [
+  [[1, 0, 0], 'x'],
+  [[0, 1, 0], 'y'],
+  [[0, 0, 1], '|0⟩ z'],
+  [[0, 0, -1], '|1⟩'],
+  [[-1, 0, 0], '−x'],
+  [[0, -1, 0], '−y'],
+];
+
+/** The axes' labels and the target's ring with its label, drawn over the paths. */
+function drawLabels(
+  ctx: OffscreenCanvasRenderingContext2D | CanvasRenderingContext2D,
+  at: (v: Vec3) => { x: number; y: number; depth: number },
+  colours: SphereColours,
+  target: Vec3 | null,
+): void {
+  ctx.font = '13px system-ui, sans-serif';
+  ctx.textAlign = 'center';
+  ctx.textBaseline = 'middle';
+  ctx.fillStyle = colours.text;
+  for (const [v, label] of AXES) {
+    const l = at([v[0] * 1.16, v[1] * 1.16, v[2] * 1.16]);
+    ctx.globalAlpha = at(v).depth < 0 ? 0.4 : 0.9;
+    ctx.fillText(label, l.x, l.y);
+  }
 
   if (target) {
     const t = at(target);
