@@ -35,7 +35,7 @@ describe('the Bloch sphere drawing', () => {
     }
     const colours = Array.from({ length: members }, (_, m) => `rgb(${m}, 100, 200)`);
     const target: Vec3 = [0, -1, 0];
-    const scene: BlochScene = { paths, offsets, colours, target, theme: { text: '#111', muted: '#777', grid: '#ccc' }, size: 400, dpr: 1 };
+    const scene: BlochScene = { paths, offsets, colours, target, theme: { text: '#111', muted: '#777', grid: '#ccc', panel: '#fff' }, size: 400, dpr: 1 };
     const { ctx, calls } = recorder();
     const painting = paint(ctx, scene, { yaw: 0.6, pitch: 0.35 }, { partPixels: 50 });
     while (painting.step());
@@ -43,6 +43,9 @@ describe('the Bloch sphere drawing', () => {
     const lastPath = last((c) => c.call === 'stroke' && colours.includes(c.stroke));
     expect(lastPath).toBeGreaterThan(0);
     const targetLabel = calls.findIndex((c) => c.call === 'fillText' && c.args[0] === 'target');
+    // Whole (not faded with a target behind the sphere), on a rim of the panel's colour.
+    expect(calls[targetLabel].alpha).toBe(1);
+    expect(calls.some((c, k) => c.call === 'strokeText' && c.args[0] === 'target' && c.stroke === '#fff' && k > lastPath && k < targetLabel)).toBe(true);
     const targetRing = calls.findIndex((c) => c.call === 'stroke' && c.stroke === '#d55e00');
     const axisLabels = calls.filter((c) => c.call === 'fillText' && c.args[0] !== 'target').map((c) => calls.indexOf(c));
     expect(targetLabel).toBeGreaterThan(lastPath);

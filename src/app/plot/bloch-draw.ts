@@ -12,6 +12,8 @@ export interface SphereColours {
   text: string;
   muted: string;
   grid: string;
+  /** The panel behind the canvas: a rim around a label keeps it readable over the paths. */
+  panel: string;
 }
 
 /** What the canvas shows, apart from the view: every member's path, its colour, the target point. */
@@ -251,8 +253,13 @@ function drawLabels(
     ctx.beginPath();
     ctx.arc(t.x, t.y, 9, 0, 2 * Math.PI);
     ctx.stroke();
+    // The label whole, on a rim of the panel's colour, over the paths' ends around the target.
+    ctx.globalAlpha = 1;
+    ctx.strokeStyle = colours.panel;
+    ctx.lineWidth = 3;
+    ctx.lineJoin = 'round';
+    ctx.strokeText('target', t.x + 30, t.y - 12);
     ctx.fillStyle = '#d55e00';
     ctx.fillText('target', t.x + 30, t.y - 12);
-    ctx.globalAlpha = 1;
   }
 }

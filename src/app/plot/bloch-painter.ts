@@ -25,7 +25,7 @@ const PART_PIXELS = 300_000;
 /** Quiet time after the last turn before the whole picture is drawn (ms). */
 const SETTLE_MS = 150;
 
-let scene: BlochScene = { paths: new Float32Array(0), offsets: new Int32Array(1), colours: [], target: null, theme: { text: '#222', muted: '#666', grid: '#ddd' }, size: 420, dpr: 1 };
+let scene: BlochScene = { paths: new Float32Array(0), offsets: new Int32Array(1), colours: [], target: null, theme: { text: '#222', muted: '#666', grid: '#ddd', panel: '#fff' }, size: 420, dpr: 1 };
 let measured = { points: 0, pixels: 0 };
 let view: View = { ...DEFAULT_VIEW };
 let styled = false;

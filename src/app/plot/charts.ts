@@ -32,6 +32,8 @@ export interface ThemeColours {
   text: string;
   muted: string;
   grid: string;
+  /** Background of the panels the charts sit on. */
+  panel: string;
   i: string;
   q: string;
   limit: string;
@@ -74,6 +76,7 @@ function readTheme(): ThemeColours {
     text: read('--text', '#222'),
     muted: read('--muted', '#666'),
     grid: read('--grid', 'rgba(0,0,0,0.1)'),
+    panel: read('--panel', '#fff'),
     i: read('--series-i', '#0072b2'),
     q: read('--series-q', '#d55e00'),
     limit: read('--limit', '#777'),
