@@ -7,7 +7,7 @@
 import { describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import { runToEnd, screenshot, skipReason, type Visit } from './harness.ts';
-import { FAST_LOBE, FAST_TRANSMON, openPulse, openReady, useHarness } from './screens.ts';
+import { FAST_LOBE, FAST_TRANSMON, openPulse, openReady, screenshotLooks, useHarness } from './screens.ts';
 
 const reason = skipReason();
 
@@ -106,6 +106,54 @@ async function invisibleStops(page: Page, limit = 160): Promise<{ stops: number;
     else if (!info.focusShown) bad.push(`${info.key}: shows no focus`);
   }
   return { stops, bad };
+}
+
+/**
+ * Fields whose help bubble covers another control of the field's own form (the spec, the
+ * map's ranges, the export settings; in a view without a form, the view): each visible
+ * field of the page focused in turn from the keyboard's side (focus(), no pointer), its
+ * bubble's box against the boxes of the form's other fields, buttons and labelled choices.
+ */
+function coveredByHelp(page: Page): Promise<{ fields: number; covering: string[] }> {
+  return page.evaluate(async () => {
+    const frame = () => new Promise((resolve) => requestAnimationFrame(() => resolve(null)));
+    type Box = { left: number; top: number; right: number; bottom: number };
+    const overlap = (a: Box, b: Box) => a.left < b.right && b.left < a.right && a.top < b.bottom && b.top < a.bottom;
+    const visible = (el: Element) => {
+      const r = el.getBoundingClientRect();
+      return r.width > 0 && r.height > 0;
+    };
+    // What the user sees of a control: within the window and within every ancestor that clips its overflow (the spec column scrolls).
+    const shown = (el: Element): Box => {
+      const r = el.getBoundingClientRect();
+      let b: Box = { left: r.left, top: r.top, right: r.right, bottom: r.bottom };
+      const cut = (c: Box) => (b = { left: Math.max(b.left, c.left), top: Math.max(b.top, c.top), right: Math.min(b.right, c.right), bottom: Math.min(b.bottom, c.bottom) });
+      cut({ left: 0, top: 0, right: document.documentElement.clientWidth, bottom: document.documentElement.clientHeight });
+      for (let a = el.parentElement; a && a !== document.body; a = a.parentElement) if (getComputedStyle(a).overflowY !== 'visible') cut(a.getBoundingClientRect());
+      return b;
+    };
+    const controls = [...document.querySelectorAll('input, select, textarea, button, label')].filter(
+      (el) => visible(el) && !el.closest('[data-testid=field-help], dialog') && (!(el instanceof HTMLLabelElement) || el.querySelector('input') !== null),
+    );
+    const fields = controls.filter((el) => ['INPUT', 'SELECT', 'TEXTAREA'].includes(el.tagName) && (el as HTMLInputElement).type !== 'file') as HTMLElement[];
+    const bubble = document.querySelector('[data-testid=field-help]') as HTMLElement;
+    const covering: string[] = [];
+    let count = 0;
+    for (const field of fields) {
+      field.focus();
+      await frame();
+      if (getComputedStyle(bubble).display === 'none') continue;
+      count++;
+      const form = field.closest('form') ?? field.closest('fieldset') ?? field.closest('section, aside');
+      const own = new Set<Element>([field, ...((field as HTMLInputElement).labels ?? [])]);
+      const box = bubble.getBoundingClientRect();
+      const hidden = controls.filter((c) => !own.has(c) && !c.contains(field) && form?.contains(c) && overlap(box, shown(c)));
+      const name = (el: Element) => `${el.tagName.toLowerCase()}#${el.id || (el as HTMLInputElement).name || el.textContent?.trim().slice(0, 20)}`;
+      if (hidden.length) covering.push(`${name(field)} covers ${hidden.map(name).join(', ')}`);
+    }
+    (document.activeElement as HTMLElement | null)?.blur();
+    return { fields: count, covering };
+  });
 }
 
 describe.skipIf(reason !== null)('layout and keyboard', () => {
@@ -266,6 +314,43 @@ describe.skipIf(reason !== null)('layout and keyboard', () => {
       await page.context().close();
     }
   }, 180_000);
+
+  it('places every field\'s help where it covers no other control of the field\'s form, in every view at 1440 and 800 px', async () => {
+    for (const width of [1440, 800]) {
+      const page = await openAt(width);
+      await page.getByTestId('run').click();
+      await runToEnd(page);
+      await page.locator('details summary', { hasText: 'Spec JSON' }).click();
+      let fields = 0;
+      for (let view = 1; view <= 7; view++) {
+        await page.keyboard.press(`Alt+${view}`);
+        await page.waitForTimeout(400);
+        if (view === 2) await page.getByTestId('samples').locator('summary').click();
+        const found = await coveredByHelp(page);
+        fields += found.fields;
+        expect(found.covering, `${width} px, view ${view}`).toEqual([]);
+      }
+      expect(fields).toBeGreaterThan(60);
+      // The map's point counts: the threshold beside them stays in view while one is typed into.
+      await page.keyboard.press('Alt+3');
+      for (const id of ['m-d-n', 'm-a-n']) {
+        await page.locator(`#${id}`).focus();
+        await page.waitForTimeout(100);
+        const bubble = (await page.getByTestId('field-help').boundingBox())!;
+        const threshold = (await page.locator('#m-threshold').boundingBox())!;
+        const apart = bubble.x + bubble.width <= threshold.x || threshold.x + threshold.width <= bubble.x || bubble.y + bubble.height <= threshold.y || threshold.y + threshold.height <= bubble.y;
+        expect(apart, `${id} at ${width} px`).toBe(true);
+      }
+      if (width === 800) {
+        // Each look (1440 and 800 px, light and dark) places the bubble afresh as the window is resized.
+        await page.locator('#m-a-n').focus();
+        await screenshotLooks(page, 'layout-help-map-points');
+        await page.locator('#f-rabi').focus();
+        await screenshotLooks(page, 'layout-help-spec');
+      }
+      await page.context().close();
+    }
+  }, 300_000);
 
   it('left no error in the console of any page', () => {
     expect(visits.flatMap((v) => v.consoleErrors)).toEqual([]);
