@@ -163,6 +163,12 @@ describe.skipIf(reason !== null)('Stop and the form', () => {
     await page.keyboard.press('Alt+2');
     await page.getByTestId('drive-note').waitFor();
     expect((await text(page, 'drive-note')).replace(/\s+/g, ' ')).toContain('It starts 3 ns before the first sample: the line\'s response is centred on each sample');
+    // The time axis starts where that drive starts, and ends where its trailing tail ends: the
+    // kernel is symmetric (the same 7.0345 sigma on each side), so lead after the last sample's end.
+    await page.waitForFunction(() => document.querySelector<HTMLCanvasElement>('[data-testid=waveform-chart]')?.dataset.timeSpan?.startsWith('-'));
+    const [from, to] = (await page.getByTestId('waveform-chart').getAttribute('data-time-span'))!.split(' ').map(Number);
+    expect(from).toBeCloseTo(-lead, 15);
+    expect(to).toBeCloseTo(200e-9 + lead, 15);
     // A delay of the lead's length: the drive starts at the first sample, and neither note shows.
     await page.keyboard.press('Alt+1');
     await page.locator('#f-line-delay').fill('3 ns');
