@@ -229,6 +229,7 @@ export class CoreClient {
   private readonly designers: Remote<CoreService>[];
   private readonly designerEndpoints: Endpoint[];
   private readyPromise: Promise<CoreInfo> | null = null;
+  private designersPromise: Promise<void> | null = null;
   private designing = false;
   private stopRequested = false;
   private current: Running | null = null;
@@ -265,15 +266,25 @@ export class CoreClient {
     return this.designers.length;
   }
 
-  /** Loads the core in every worker; resolves with what it can build. */
+  /**
+   * Loads the core in the analysis worker, which answers the page's questions (checks,
+   * figures, maps); resolves with what it can build. The design workers load with
+   * `designersReady`, or with their first job.
+   */
   ready(): Promise<CoreInfo> {
-    this.readyPromise ??= Promise.all([this.analysis.ready(), ...this.designers.map((d) => d.ready())]).then(([info]) => info);
+    this.readyPromise ??= this.analysis.ready();
     return this.readyPromise;
+  }
+
+  /** Loads the core in every design worker (a worker started late starts now). */
+  designersReady(): Promise<void> {
+    this.designersPromise ??= Promise.all(this.designers.map((d) => d.ready())).then(() => undefined);
+    return this.designersPromise;
   }
 
   /** The core loaded everywhere, then the spec checked on the analysis worker. */
   private async readyAndChecked(spec: unknown): Promise<SpecCheck> {
-    await this.ready();
+    await Promise.all([this.ready(), this.designersReady()]);
     return this.analysis.checkSpec(spec);
   }
 
@@ -642,21 +653,76 @@ export function designWorkerCount(hardwareConcurrency: number | undefined): numb
   return Math.max(1, Math.min(4, (hardwareConcurrency || 2) - 1));
 }
 
-/** The client over real Web Workers (browser only); Stop ends a design worker and starts a fresh one. */
+type Listener = Parameters<Endpoint['addEventListener']>[1];
+
+/**
+ * An endpoint whose worker is started by the first message sent to it: comlink can wrap it
+ * at once, and the worker costs nothing until it is given something to do.
+ */
+export class LateWorker implements Endpoint {
+  private worker: Worker | null = null;
+  private ended = false;
+  private readonly listeners: Array<[string, Listener, Parameters<Endpoint['addEventListener']>[2]]> = [];
+
+  constructor(private readonly create: () => Worker) {}
+
+  /** True once the worker was started. */
+  get started(): boolean {
+    return this.worker !== null;
+  }
+
+  postMessage(message: unknown, transfer?: Transferable[]): void {
+    if (this.ended) return;
+    if (!this.worker) {
+      this.worker = this.create();
+      for (const [type, listener, options] of this.listeners) this.worker.addEventListener(type, listener, options);
+    }
+    this.worker.postMessage(message, transfer ?? []);
+  }
+
+  addEventListener(type: string, listener: Listener, options?: Parameters<Endpoint['addEventListener']>[2]): void {
+    this.listeners.push([type, listener, options]);
+    this.worker?.addEventListener(type, listener, options);
+  }
+
+  removeEventListener(type: string, listener: Listener, options?: Parameters<Endpoint['removeEventListener']>[2]): void {
+    const k = this.listeners.findIndex(([t, l]) => t === type && l === listener);
+    if (k >= 0) this.listeners.splice(k, 1);
+    this.worker?.removeEventListener(type, listener, options);
+  }
+
+  terminate(): void {
+    this.ended = true;
+    this.worker?.terminate();
+  }
+}
+
+/**
+ * The client over real Web Workers (browser only); Stop ends a design worker and starts a
+ * fresh one. The analysis worker starts at once; the design workers start with their first
+ * call (the page asks for them once its restored session is drawn: on two cores, a design
+ * worker compiling its code beside the page's start stretched the page's first tasks).
+ */
 export function createBrowserClient(): CoreClient {
-  const workers = new Set<Worker>();
+  const workers = new Set<Worker | LateWorker>();
+  const create = () => new Worker(new URL('./worker.ts', import.meta.url), { type: 'module', name: 'gatesmith-core' });
   const start = () => {
-    const worker = new Worker(new URL('./worker.ts', import.meta.url), { type: 'module', name: 'gatesmith-core' });
+    const worker = create();
+    workers.add(worker);
+    return worker;
+  };
+  const startLate = () => {
+    const worker = new LateWorker(create);
     workers.add(worker);
     return worker;
   };
   const replace = (old: Endpoint) => {
-    (old as Worker).terminate();
-    workers.delete(old as Worker);
+    (old as Worker | LateWorker).terminate();
+    workers.delete(old as Worker | LateWorker);
     return start();
   };
   const analysis = start();
-  const designers = Array.from({ length: designWorkerCount(navigator.hardwareConcurrency) }, start);
+  const designers = Array.from({ length: designWorkerCount(navigator.hardwareConcurrency) }, startLate);
   const client = new CoreClient(analysis, designers, () => workers.forEach((w) => w.terminate()), replace);
   client.mapWorkers = designWorkerCount(navigator.hardwareConcurrency);
   return client;

@@ -286,6 +286,44 @@ describe.skipIf(reason !== null)('the app in Chromium', () => {
     await recordViolations(page);
   }, 120_000);
 
+  it('draws the restored view first, and starts the design worker only after it', async () => {
+    const { page } = await fresh();
+    await page.getByTestId('run').click();
+    await runToEnd(page);
+    await page.keyboard.press('Alt+2');
+    await page.getByTestId('samples').waitFor();
+    await page.waitForTimeout(800);
+    // The order of the page's start, recorded from its first script on: workers created, the
+    // views panel's first content, and whether the design view's chart was ever made.
+    await page.addInitScript(() => {
+      const log: string[] = [];
+      (window as unknown as { __startLog: string[] }).__startLog = log;
+      const Native = window.Worker;
+      window.Worker = class extends Native {
+        constructor(url: string | URL, options?: WorkerOptions) {
+          super(url, options);
+          log.push(`worker ${options?.name ?? ''}`);
+        }
+      };
+      new MutationObserver(() => {
+        const panel = document.getElementById('view-panel');
+        if (document.querySelector('[data-testid=convergence]') && !log.includes('convergence chart')) log.push('convergence chart');
+        if (panel?.querySelector('[data-testid=views-waiting]') && !log.includes('waiting')) log.push('waiting');
+        if (panel?.querySelector('[data-testid=samples]') && !log.includes('waveform view')) log.push('waveform view');
+      }).observe(document, { subtree: true, childList: true });
+    });
+    await page.reload();
+    await page.getByTestId('samples').waitFor();
+    await page.waitForFunction(() => (window as unknown as { __startLog: string[] }).__startLog.filter((e) => e === 'worker gatesmith-core').length >= 2, undefined, { timeout: 20_000 });
+    const log = await page.evaluate(() => (window as unknown as { __startLog: string[] }).__startLog);
+    // The analysis worker starts with the page; the views wait for the saved session, then show
+    // the saved view (never the design view first); the design worker starts after that.
+    expect(log.indexOf('worker gatesmith-core')).toBeLessThan(log.indexOf('waveform view'));
+    expect(log).not.toContain('convergence chart');
+    expect(log.lastIndexOf('worker gatesmith-core')).toBeGreaterThan(log.indexOf('waveform view'));
+    await screenshot(page, 'e2e-07b-restored-waveform');
+  }, 120_000);
+
   it('refuses a malformed project file and changes nothing, and opens a saved one', async () => {
     const { page } = await fresh();
     await typeInto(page, '#f-rabi', '11 MHz');

@@ -75,6 +75,13 @@ export const SAVED_HISTORY_CHARS = 500_000;
 /** Milliseconds between the last edit and the autosave. */
 export const AUTOSAVE_DELAY_MS = 400;
 
+/** Runs `job` once the page is idle (within 2 s), or on the next turn where there is no idle callback (Node). */
+function whenIdle(job: () => void): void {
+  const idle = (globalThis as { requestIdleCallback?: (callback: () => void, options: { timeout: number }) => number }).requestIdleCallback;
+  if (idle) idle(job, { timeout: 2000 });
+  else setTimeout(job, 0);
+}
+
 let nextId = 1;
 /** A fresh pulse id, unique in this page. */
 export function newPulseId(prefix: string): string {
@@ -121,6 +128,11 @@ export class Session {
   notice = $state.raw<Notice | null>(null);
   composites = $state.raw<CompositeChoice[]>([]);
   ready = $state(false);
+  /**
+   * True once the saved session (or the demo) is in place, or the core failed to load: the
+   * views are drawn from then on, not first for the empty session and again for the restored.
+   */
+  restored = $state(false);
   /** Bumped whenever the whole spec is replaced (demo, JSON, project, link): the form retypes every field. */
   specRevision = $state(0);
   /** A pulse file being opened, and how far (the page shows its progress). */
@@ -243,8 +255,14 @@ export class Session {
       await this.restoreSaved(hash);
     } finally {
       restored();
+      this.restored = true;
     }
     await this.validate();
+    // The design workers load once the restored session is drawn and the page is idle: on
+    // two cores, their start beside the page's own stretched its first tasks past 50 ms.
+    whenIdle(() => void this.client.designersReady().catch((error: Error) => {
+      this.notice = { kind: 'error', text: `The core could not be loaded for designs (${error.message}); reload the page, or rebuild with "npm start".` };
+    }));
   }
 
   /** Settles once the saved session and the link are applied: a pulse opened meanwhile waits for it, or the restore would drop it. */
