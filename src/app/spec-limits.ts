@@ -47,11 +47,15 @@ export const FIELD_WORDS: Record<string, FieldWords> = {
   'optimizer.gradientTolerance': { label: 'Gradient tol.', quantity: 'number' },
   'optimizer.memory': { label: 'L-BFGS memory', quantity: 'count' },
   'optimizer.arithmetic': { label: 'Arithmetic', quantity: null },
+  'system.levels': { label: 'Levels', quantity: 'count' },
+  'system.anharmonicity': { label: 'Anharmonicity', quantity: 'frequency' },
   ...AXIS_WORDS('Detuning', 'frequency'),
   ...AXIS_WORDS('Amplitude error', 'relative'),
 };
 
-const UNIT_OF: Partial<Record<string, Quantity>> = { Hz: 'frequency', s: 'time' };
+const UNIT_OF: Partial<Record<string, Quantity>> = { Hz: 'frequency', s: 'time', relative: 'relative' };
+/** A library unit as the form's fields take it, for a rule without bounds. */
+const UNIT_WORDS: Record<string, string> = { Hz: 'in Hz, kHz, MHz or GHz', s: 'in ns, µs, ms or s', relative: 'in %' };
 
 /**
  * A library message retold with the form's label for its field and values in engineering
@@ -72,6 +76,15 @@ export function inFormWords(error: ErrorInfo, table: Record<string, FieldWords> 
   for (const [key, other] of Object.entries(table)) {
     if (/^[a-zA-Z]+$/.test(key) && key !== error.field) text = text.replace(new RegExp(`\\b${key}\\b`, 'g'), other.label);
   }
+  // A value the spec lacks: said as the form says it of an empty field.
+  text = text.replace('missing value is not allowed; required: ', 'a value is required: ');
+  // A rule's bounds the library gives with its unit after them ("a finite number >= 5000000
+  // (Hz)", "... >= -0.1 (relative)"), each printed in engineering units instead.
+  text = text.replace(/((?:a finite number|an integer)[^;()]*?) \((Hz|s|relative)\)/g, (all, rule: string, unit: string) => {
+    const bound = /(?<=[<>=] |from |to |and )-?\d+(?:\.\d+)?(?:e[+-]?\d+)?\b/g;
+    if (!bound.test(rule)) return `${rule} ${UNIT_WORDS[unit]}`;
+    return rule.replace(bound, (number) => formatQuantity(Number(number), UNIT_OF[unit]!));
+  });
   // Bounds the library gives in Hz or seconds, printed in engineering units.
   return text.replace(/(-?\d+(?:\.\d+)?(?:e[+-]?\d+)?) (Hz|s)\b/g, (all, number: string, unit: string) => formatQuantity(Number(number), UNIT_OF[unit]!));
 }

@@ -61,6 +61,16 @@ describe('inFormWords', () => {
       'Peak Rabi: -5 MHz is not allowed; a number > 0 MHz',
     );
     expect(inFormWords({ name: 'SpecError', field: 'ensemble.detuning.points', message: 'ensemble.detuning.points: 0 is not allowed; x' })).toBe('Detuning points: 0 is not allowed; x');
+    // Bounds the library prints with their unit after them (src/core/spec-fields.ts describeRule).
+    expect(inFormWords({ name: 'SpecError', field: 'ensemble.detuning.max', message: 'ensemble.detuning.max: 1000000 is not allowed; a finite number >= 5000000 (Hz)' })).toBe(
+      'Detuning to: 1 MHz is not allowed; a finite number >= 5 MHz',
+    );
+    expect(inFormWords({ name: 'SpecError', field: 'ensemble.amplitudeError.max', message: 'ensemble.amplitudeError.max: -0.2 is not allowed; a finite number >= -0.1 (relative)' })).toBe(
+      'Amplitude error to: -20 % is not allowed; a finite number >= -10 %',
+    );
+    expect(inFormWords({ name: 'SpecError', field: 'system.anharmonicity', message: 'system.anharmonicity: missing value is not allowed; required: a finite number (Hz)' })).toBe(
+      'Anharmonicity: a value is required: a finite number in Hz, kHz, MHz or GHz',
+    );
     // A field the form has no label for keeps the library's words.
     expect(inFormWords({ name: 'SpecError', field: 'ensemble.members', message: 'ensemble.members: [] is not allowed' })).toBe('ensemble.members: [] is not allowed');
   });

@@ -129,6 +129,51 @@ describe.skipIf(reason !== null)('what the app lets slip, in Chromium', () => {
     expect(await page.locator('#f-segments-error').textContent()).toBe('Samples: 0 is not allowed; an integer from 1 to 100000');
   }, 120_000);
 
+  it('tells the rules between fields in the form\'s labels and units, at the field typed into', async () => {
+    const { page } = await fresh();
+    const said = async (selector: string) => {
+      await page.locator(selector).waitFor();
+      return (await page.locator(selector).textContent()) ?? '';
+    };
+    // A detuning range from 5 MHz to 1 MHz: the bound is in MHz, not "5000000 (Hz)".
+    await typeInto(page, '#f-detuning-min', '5 MHz');
+    await runDisabled(page);
+    const detuning = (await page.getByTestId('run-blocker').textContent()) ?? '';
+    expect(detuning).toContain('Detuning to: 1 MHz is not allowed; a finite number >= 5 MHz');
+    expect(detuning).not.toMatch(/\(Hz\)|5000000/);
+    await typeInto(page, '#f-detuning-min', '-1 MHz');
+    await runEnabled(page);
+    // An amplitude error range to -20 % below its -10 % start: in %, not "-0.1 (relative)".
+    await typeInto(page, '#f-amplitudeError-max', '-20 %');
+    expect(await said('#f-amplitudeError-max-error')).toBe('Amplitude error to: -20 % is not allowed; a finite number >= -10 %');
+    await typeInto(page, '#f-amplitudeError-max', '10 %');
+    await runEnabled(page);
+    // The ladder's fields by their labels, never "system.levels" or "system.anharmonicity".
+    await typeInto(page, '#f-levels', '1');
+    expect(await said('#f-levels-error')).toBe('Levels: 1 is not allowed; an integer from 2 to 8');
+    await typeInto(page, '#f-levels', '3');
+    await runDisabled(page);
+    expect(await said('#f-alpha-error')).toBe('Anharmonicity: a value is required: a finite number in Hz, kHz, MHz or GHz');
+    await typeInto(page, '#f-alpha', '-200 MHz');
+    await runEnabled(page);
+    await typeInto(page, '#f-levels', '');
+    await runDisabled(page);
+    expect(await said('#f-levels-error')).toBe('Levels: a value is required: an integer from 2 to 8');
+    await typeInto(page, '#f-alpha', '');
+    await runEnabled(page);
+    // A sample period of zero or below is refused at Sample period, and the duration is kept.
+    await typeInto(page, '#f-dt', '0');
+    expect(await said('#f-dt-error')).toBe('Sample period: 0 ns is not allowed; a finite number > 0 ns');
+    await runDisabled(page);
+    expect(await value(page, '#f-duration')).toBe('200 ns');
+    expect(await page.locator('#f-duration-error').count()).toBe(0);
+    await typeInto(page, '#f-dt', '-2 ns');
+    expect(await said('#f-dt-error')).toBe('Sample period: -2 ns is not allowed; a finite number > 0 ns');
+    await typeInto(page, '#f-dt', '2 ns');
+    await runEnabled(page);
+    expect(await page.locator('#f-dt-error').count()).toBe(0);
+  }, 120_000);
+
   it('reads sample rates in GS/s and GSa/s, refuses an absurd one clearly, and flags a sample period the instrument cannot hold', async () => {
     const { page } = await fresh();
     await page.getByTestId('run').click();
