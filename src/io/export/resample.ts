@@ -59,8 +59,8 @@ export function resampleMap(segments: number, dt: number, sampleRate: number, me
   const { ratio, whole } = samplesPerSegment(dt, sampleRate);
   if (method === 'hold' && whole === null) {
     throw new ExportError(
-      `resample: "hold" needs the design's dt to be a whole number of instrument sample periods, but dt = ${dt} s ` +
-        `is ${ratio} periods at sampleRate ${sampleRate} Hz; choose resample "hold-nearest", "linear" or "average" ` +
+      `resample: "hold" needs the design's dt to be a whole number of instrument sample periods, but dt = ${Number(dt.toPrecision(12))} s ` +
+        `is ${Number(ratio.toPrecision(6))} periods at sampleRate ${sampleRate} Hz; choose resample "hold-nearest", "linear" or "average" ` +
         `(the exported waveform is then evaluated as resampled)`,
     );
   }
