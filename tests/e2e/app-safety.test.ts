@@ -82,6 +82,35 @@ describe.skipIf(reason !== null)('what the app lets slip, in Chromium', () => {
     await screenshot(page, 'safety-01b-undo-after-reload');
   }, 120_000);
 
+  it('keeps the keyboard where it was when Ctrl+Z and Ctrl+Shift+Z redraw the form', async () => {
+    const { page } = await fresh();
+    const focused = () => page.evaluate(() => {
+      const element = document.activeElement as HTMLInputElement | null;
+      return element?.id || (element?.name ? `${element.name}=${element.value}` : element?.tagName ?? '');
+    });
+    // Typed, then undone from the field itself: the field keeps the focus and takes more typing.
+    await page.locator('#f-rabi').click();
+    await page.keyboard.press('Control+a');
+    await page.keyboard.type('20 MHz');
+    await page.waitForFunction(() => !(document.querySelector('[data-testid=undo]') as HTMLButtonElement).disabled);
+    await page.keyboard.press('Control+z');
+    await page.waitForFunction(() => (document.querySelector('#f-rabi') as HTMLInputElement).value === '10 MHz');
+    expect(await focused()).toBe('f-rabi');
+    await page.keyboard.press('Control+Shift+z');
+    await page.waitForFunction(() => (document.querySelector('#f-rabi') as HTMLInputElement).value === '20 MHz');
+    expect(await focused()).toBe('f-rabi');
+    // Tab goes on to the next field, not back to the top of the page.
+    await page.keyboard.press('Tab');
+    expect(await focused()).toBe('f-duration');
+    // A choice made with the arrow keys in a radio group, undone: the group keeps the focus.
+    await page.locator('input[name="f-detuning-mode"][value="range"]').focus();
+    await page.keyboard.press('ArrowRight');
+    await page.waitForFunction(() => (document.querySelector('input[name="f-detuning-mode"][value="gaussian"]') as HTMLInputElement | null)?.checked === true);
+    await page.keyboard.press('Control+z');
+    await page.waitForFunction(() => (document.querySelector('input[name="f-detuning-mode"][value="range"]') as HTMLInputElement | null)?.checked === true);
+    expect(await focused()).toMatch(/^f-detuning-mode=/);
+  }, 120_000);
+
   it('refuses what the core cannot compute, in the field\'s own words, and warns on what is odd', async () => {
     const { page } = await fresh();
     // Peak Rabi 1e30 Hz: 2e21 turns within one 2 ns sample (the core's phase is lost beyond 1e6).
