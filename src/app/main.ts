@@ -12,4 +12,6 @@ const session = new Session(createBrowserClient(), indexedDbStorage);
 const run = new DesignRun(session);
 mount(App, { target: document.getElementById('app')!, props: { session, run } });
 void session.start(location.hash);
+// A link pasted into the address bar of this tab changes only the hash: no new page load.
+addEventListener('hashchange', () => session.openLink(location.hash));
 addEventListener('pagehide', () => void session.saveNow());

@@ -252,8 +252,9 @@ describe.skipIf(reason !== null)('the app in Chromium', () => {
     await typeInto(page, '#f-levels', '5');
     const message = page.locator('#f-alpha-error');
     await message.waitFor();
-    // The library's SpecError (src/core/spec-system.ts): above two levels the anharmonicity is required.
-    expect(await message.textContent()).toContain('system.anharmonicity');
+    // The library's SpecError (src/core/spec-system.ts): above two levels the anharmonicity is required;
+    // told with the form's label, not the spec key.
+    expect(await message.textContent()).toBe('Anharmonicity: a value is required: a finite number in Hz, kHz, MHz or GHz');
     expect(await page.getByTestId('run').isDisabled()).toBe(true);
     await typeInto(page, '#f-alpha', '-212 MHz');
     await page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement).disabled);
@@ -366,6 +367,24 @@ describe.skipIf(reason !== null)('the app in Chromium', () => {
     await page.getByTestId('bloch').waitFor();
     await page.waitForTimeout(300);
     await screenshot(page, 'e2e-09-link-and-pulse');
+    await recordViolations(page);
+  }, 120_000);
+
+  it('takes a link pasted into the address bar of the open page, the spec it replaces one Undo away', async () => {
+    const { page } = await fresh();
+    await typeInto(page, '#f-rabi', '12 MHz');
+    // Only the hash changes: the browser does not load the page again.
+    const spec = { target: { gate: { axis: [0, 1, 0], angleDeg: 180 } }, duration: 1e-7, segments: 50, rabiMax: 5e6 };
+    await page.evaluate((hash) => { location.hash = hash; }, `spec=${encodeURIComponent(JSON.stringify(spec))}`);
+    await page.waitForFunction(() => (document.querySelector('#f-rabi') as HTMLInputElement).value === '5 MHz');
+    expect(await page.locator('#f-axis').inputValue()).toBe('+y');
+    expect(await page.getByTestId('notice').textContent()).toContain('Spec loaded from the link');
+    await page.getByTestId('notice-action').click();
+    await page.waitForFunction(() => (document.querySelector('#f-rabi') as HTMLInputElement).value === '12 MHz');
+    // A malformed one is refused and changes nothing.
+    await page.evaluate(() => { location.hash = 'spec=%7B%22duration'; });
+    await page.getByTestId('notice').filter({ hasText: 'the link was ignored' }).waitFor();
+    expect(await page.locator('#f-rabi').inputValue()).toBe('12 MHz');
     await recordViolations(page);
   }, 120_000);
 

@@ -299,6 +299,25 @@ export class Session {
     }
   }
 
+  /**
+   * A link opened in the page's own tab: only the address's hash changes and the page is not
+   * loaded again, so its spec is applied here; the spec it replaces is one Undo away.
+   */
+  openLink(hash: string): void {
+    try {
+      const linked = specFromHash(hash);
+      if (!linked || JSON.stringify(linked) === JSON.stringify(this.spec)) return;
+      this.replaceSpec(linked);
+      this.notice = {
+        kind: 'info',
+        text: 'Spec loaded from the link; your spec is one Undo away.',
+        action: { label: 'Undo', run: () => { this.undo(); this.notice = null; } },
+      };
+    } catch (error) {
+      this.notice = { kind: 'error', text: `${(error as Error).message}; the link was ignored.` };
+    }
+  }
+
   /** Replaces one spec value from the form (one undo step per field edit, keystrokes merged). */
   setField(path: string, value: unknown): void {
     const now = Date.now();
