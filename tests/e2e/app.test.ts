@@ -388,6 +388,43 @@ describe.skipIf(reason !== null)('the app in Chromium', () => {
     await recordViolations(page);
   }, 120_000);
 
+  it('reloads a page opened from a link without a step to undo, and keeps an edit made since one Undo away', async () => {
+    const spec = { target: { gate: { axis: [0, 1, 0], angleDeg: 180 } }, duration: 1e-7, segments: 50, rabiMax: 5e6 };
+    const { page } = await fresh(`#spec=${encodeURIComponent(JSON.stringify(spec))}`);
+    await page.waitForFunction(() => (document.querySelector('#f-rabi') as HTMLInputElement).value === '5 MHz');
+    /** How many steps Ctrl+Z can take back (redone again after counting). */
+    const undoSteps = async () => {
+      let steps = 0;
+      await page.locator('h1').click();
+      while (!(await page.getByTestId('undo').isDisabled())) {
+        await page.keyboard.press('Control+z');
+        steps++;
+      }
+      for (let k = 0; k < steps; k++) await page.keyboard.press('Control+Shift+z');
+      await page.waitForFunction(() => (document.querySelector('#f-rabi') as HTMLInputElement).value === '5 MHz');
+      return steps;
+    };
+    const before = await undoSteps();
+    // The autosave holds the link's spec: reloading, the link still in the address, adds no step.
+    await page.waitForTimeout(1500); // the autosave follows a change within AUTOSAVE_DELAY_MS
+    await page.reload();
+    await page.getByTestId('run').waitFor();
+    await page.waitForFunction(() => (document.querySelector('#f-rabi') as HTMLInputElement).value === '5 MHz');
+    await page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement).disabled);
+    expect(await page.getByTestId('notice').count()).toBe(0);
+    expect(await undoSteps()).toBe(before);
+    // An edit made since, then a reload: the link's spec comes back, the edit one Undo away.
+    await typeInto(page, '#f-rabi', '7 MHz');
+    await page.waitForTimeout(1500);
+    await page.reload();
+    await page.getByTestId('run').waitFor();
+    await page.waitForFunction(() => (document.querySelector('#f-rabi') as HTMLInputElement).value === '5 MHz');
+    expect(await page.getByTestId('notice').textContent()).toContain('the spec of your last session is one Undo away');
+    await page.getByTestId('notice-action').click();
+    await page.waitForFunction(() => (document.querySelector('#f-rabi') as HTMLInputElement).value === '7 MHz');
+    await recordViolations(page);
+  }, 120_000);
+
   it('follows a dark system preference; the ion demo runs in kHz and microseconds', async () => {
     const context = await harness.browser.newContext({ viewport: { width: 1440, height: 1000 }, colorScheme: 'dark' });
     const v = await visit(harness, '', context);

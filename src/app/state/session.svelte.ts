@@ -269,12 +269,14 @@ export class Session {
   private restoring: Promise<void> = Promise.resolve();
 
   private async restoreSaved(hash: string): Promise<void> {
+    let resumed = false;
     if (this.storage) {
       try {
         const saved = await this.storage.load();
         if (saved !== undefined && saved !== null) {
           const project = parseProject(saved);
           await this.apply(project);
+          resumed = true;
           // Ctrl+Z goes on where it was before the reload.
           if (project.specHistory) {
             this.past = project.specHistory.past.slice(-HISTORY_LENGTH);
@@ -287,12 +289,20 @@ export class Session {
     }
     try {
       const linked = specFromHash(hash);
-      if (linked) {
-        // The autosaved spec stays one Ctrl+Z away.
+      // A reload keeps the link in the address: the spec it carries and the autosave's being
+      // the same, there is nothing to load and no step to undo.
+      if (linked && JSON.stringify(linked) !== JSON.stringify(this.spec)) {
+        // The autosaved spec (edited after the link was opened, say) stays one Ctrl+Z away.
         this.remember();
         this.spec = linked;
         this.specRevision++;
-        this.notice = { kind: 'info', text: 'Spec loaded from the link.' };
+        this.notice = resumed
+          ? {
+            kind: 'info',
+            text: 'Spec loaded from the link; the spec of your last session is one Undo away.',
+            action: { label: 'Undo', run: () => { this.undo(); this.notice = null; } },
+          }
+          : { kind: 'info', text: 'Spec loaded from the link.' };
       }
     } catch (error) {
       this.notice = { kind: 'error', text: `${(error as Error).message}; the link was ignored.` };
