@@ -72,8 +72,9 @@ export function inFormWords(error: ErrorInfo, table: Record<string, FieldWords> 
     const shown = value && words.quantity && words.quantity !== 'count' && words.quantity !== 'number' ? formatQuantity(Number(value[1]), words.quantity) : null;
     text = `${words.label}: ${shown ? rest.replace(value![1], shown) : rest}`;
   }
-  // Other fields named in the message ("at least minLength (4)"), by their labels.
-  for (const [key, other] of Object.entries(table)) {
+  // Other fields named in the message ("at least minLength (4)"), by their labels; a list of
+  // the keys a JSON object allows keeps them as they are typed there.
+  if (!text.includes('unknown key')) for (const [key, other] of Object.entries(table)) {
     if (/^[a-zA-Z]+$/.test(key) && key !== error.field) text = text.replace(new RegExp(`\\b${key}\\b`, 'g'), other.label);
   }
   // A value the spec lacks: said as the form says it of an empty field.

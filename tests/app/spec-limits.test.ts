@@ -71,6 +71,10 @@ describe('inFormWords', () => {
     expect(inFormWords({ name: 'SpecError', field: 'system.anharmonicity', message: 'system.anharmonicity: missing value is not allowed; required: a finite number (Hz)' })).toBe(
       'Anharmonicity: a value is required: a finite number in Hz, kHz, MHz or GHz',
     );
+    // The keys a JSON object allows stay keys (src/core/spec-fields.ts readObject).
+    expect(inFormWords({ name: 'SpecError', field: 'foo', message: 'foo: 1 is not allowed; unknown key; a design spec allows only target, duration, segments, rabiMax' })).toBe(
+      'foo: 1 is not allowed; unknown key; a design spec allows only target, duration, segments, rabiMax',
+    );
     // A field the form has no label for keeps the library's words.
     expect(inFormWords({ name: 'SpecError', field: 'ensemble.members', message: 'ensemble.members: [] is not allowed' })).toBe('ensemble.members: [] is not allowed');
   });

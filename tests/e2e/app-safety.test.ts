@@ -201,6 +201,13 @@ describe.skipIf(reason !== null)('what the app lets slip, in Chromium', () => {
     await typeInto(page, '#f-dt', '2 ns');
     await runEnabled(page);
     expect(await page.locator('#f-dt-error').count()).toBe(0);
+    // A key the spec does not have, from the JSON editor: the keys it allows as they are typed there.
+    await page.locator('summary', { hasText: 'Spec JSON' }).click();
+    await page.locator('#f-spec-json').fill('{"foo": 1}');
+    await page.getByRole('button', { name: 'Apply JSON' }).click();
+    await runDisabled(page);
+    const unknown = (await page.getByTestId('run-blocker').textContent()) ?? '';
+    expect(unknown).toContain('unknown key; a design spec allows only name, description, target, duration, segments, rabiMax, ensemble');
   }, 120_000);
 
   it('reads sample rates in GS/s and GSa/s, refuses an absurd one clearly, and flags a sample period the instrument cannot hold', async () => {
