@@ -128,7 +128,7 @@ describe('the settings handed to the library', () => {
     });
     const nyquist = checkExportForm(form({ channels: 'ssb', intermediateFrequency: 6e8 }));
     expect(nyquist.ok === false && nyquist.field).toBe('intermediateFrequency');
-    expect(nyquist.ok === false && nyquist.message).toMatch(/^IF: 600 MHz is not allowed; .*0 < f < Sample rate\/2 = 500000000 \(Nyquist\)/);
+    expect(nyquist.ok === false && nyquist.message).toMatch(/^IF: 600 MHz is not allowed; .*0 < f < Sample rate\/2 = 500 MHz \(Nyquist\)/);
     expect(checkExportForm(form({ maxLength: 8, granularity: 16 }))).toMatchObject({ ok: false, field: 'maxLength' });
   });
   it('offers only the units a format can hold (README: raw and WAV hold codes, the pulse JSON Hz)', () => {

@@ -241,7 +241,7 @@ describe.skipIf(reason !== null)('the export panel in Chromium', () => {
     await typeInto(page, '#x-if', '600 MHz');
     await screenshot(page, 'e2e-export-04-invalid');
     await typeInto(page, '#x-granularity', '16');
-    expect(await page.locator('#x-if-error').textContent()).toContain('IF: 600 MHz is not allowed; a frequency in Hz with 0 < f < Sample rate/2 = 500000000 (Nyquist)');
+    expect(await page.locator('#x-if-error').textContent()).toContain('IF: 600 MHz is not allowed; a frequency with 0 < f < Sample rate/2 = 500 MHz (Nyquist)');
     await page.getByLabel('I and Q', { exact: true }).check();
     await panelState(page, 'ready');
 
@@ -330,6 +330,10 @@ describe.skipIf(reason !== null)('the export panel in Chromium', () => {
     expect(refusal).toContain('dt = 500 ns is 3.5 periods at Sample rate 7 MHz');
     expect(refusal).not.toMatch(/\d{7}|ExportError/);
     expect(await page.locator('#x-sample-rate-hint').textContent()).toContain('is 3.5 sample periods');
+    // A rate of zero: refused in the form's units, without "in Hz".
+    await typeInto(page, '#x-sample-rate', '0');
+    await panelState(page, 'invalid');
+    expect(await page.locator('#x-sample-rate-error').textContent()).toBe('Sample rate: 0 MHz is not allowed; a finite number > 0 MHz: the instrument sample rate');
     expect(consoleErrors).toEqual([]);
     await context.close();
   }, 120_000);

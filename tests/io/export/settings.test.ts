@@ -44,7 +44,7 @@ describe('parseExportSettings refusals name the field, the value and what is all
     ['an unknown padding place', { ...base, pad: 'middle' }, 'pad', /pad: "middle" is not allowed; one of "before", "after", "split"/],
     ['an unknown method', { ...base, resample: 'cubic' }, 'resample', /"hold", "hold-nearest", "linear", "average"/],
     ['an unknown field', { ...base, sampleRateHz: 1e9 }, 'sampleRateHz', /unknown field/],
-    ['SSB without a frequency', { ...base, channels: 'ssb' }, 'intermediateFrequency', /missing value is not allowed; a frequency in Hz with 0 < f < sampleRate\/2 = 500000000/],
+    ['SSB without a frequency', { ...base, channels: 'ssb' }, 'intermediateFrequency', /missing value is not allowed; a frequency with 0 < f < sampleRate\/2 = 500000000 Hz/],
     ['SSB at Nyquist', { ...base, channels: 'ssb', intermediateFrequency: 5e8 }, 'intermediateFrequency', /500000000 is not allowed.*Nyquist/],
     ['SSB above Nyquist', { ...base, channels: 'ssb', intermediateFrequency: 7e8 }, 'intermediateFrequency', /Nyquist/],
     ['a frequency with two channels', { ...base, intermediateFrequency: 5e7 }, 'intermediateFrequency', /only used with channels "ssb"/],
