@@ -96,6 +96,8 @@ export const MAX_TURNS_PER_SAMPLE = 1e6;
 export const MAX_AMPLITUDE_ERROR = 100;
 /** A sample period longer than this (1 ms) is far from any qubit drive's (common practice). */
 export const ODD_SAMPLE_PERIOD_S = 1e-3;
+/** A sample period shorter than this (1 ps) is shorter than any instrument's (common practice). */
+export const SHORTEST_SAMPLE_PERIOD_S = 1e-12;
 /** Above this peak Rabi frequency a drive is unusual for any qubit (common practice). */
 export const ODD_RABI_HZ = 1e9;
 /** A detuning range wider than this many times the peak Rabi frequency cannot be corrected by any pulse. */
@@ -189,7 +191,10 @@ export function specLimits(problem: Problem, exportSampleRate: number): SpecLimi
     }
   }
   const { ratio, whole } = samplesPerSegment(dt, exportSampleRate);
-  if (Number.isFinite(ratio) && whole === null) {
+  if (dt < SHORTEST_SAMPLE_PERIOD_S) {
+    // "2e-7" typed into Duration for 200 ns: a bare number there is in ns, so 2e-7 ns.
+    warnings.push({ field: 'dt', message: `a sample period of ${t(dt)} is below any instrument's ${t(SHORTEST_SAMPLE_PERIOD_S)}: a bare number is in ns; write the unit, as in "200 ns" or "2e-7 s"` });
+  } else if (Number.isFinite(ratio) && whole === null) {
     const text = `${t(dt)} is ${Number(ratio.toPrecision(5))} periods of the export's ${f(exportSampleRate).replace('Hz', 'S/s')}: the instrument cannot hold each sample, the export will resample`;
     warnings.push({ field: 'dt', message: text });
   }

@@ -52,6 +52,16 @@ describe('specLimits', () => {
   });
 });
 
+describe('a sample period no instrument has', () => {
+  it('is warned about, naming the bare number\'s unit (2e-7 typed for 200 ns is 2e-7 ns)', () => {
+    // 2e-16 s over the demo's 100 samples: 2e-18 s a sample, below 1 ps (common practice: no AWG samples faster).
+    const { refusals, warnings } = specLimits(problemWith({ duration: 2e-16 }), 1e9);
+    expect(refusals).toEqual([]);
+    expect(warnings).toEqual([{ field: 'dt', message: expect.stringMatching(/^a sample period of 2e-6 ps is below any instrument's 1 ps: a bare number is in ns/) }]);
+    expect(specLimits(problemWith({ duration: 2e-7 }), 1e9).warnings).toEqual([]);
+  });
+});
+
 describe('inFormWords', () => {
   it('tells a library message with the form\'s label and engineering units', () => {
     expect(inFormWords({ name: 'SpecError', field: 'segments', message: 'segments: 0 is not allowed; an integer from 1 to 100000' })).toBe(

@@ -201,6 +201,14 @@ describe.skipIf(reason !== null)('what the app lets slip, in Chromium', () => {
     await typeInto(page, '#f-dt', '2 ns');
     await runEnabled(page);
     expect(await page.locator('#f-dt-error').count()).toBe(0);
+    // "2e-7" typed into Duration out of the spec JSON's habit: 2e-7 ns, warned where it was typed, not blocked.
+    await typeInto(page, '#f-duration', '2e-7');
+    await page.locator('#f-duration-warning').waitFor();
+    expect(await page.locator('#f-duration-warning').textContent()).toBe('⚠ a sample period of 2e-6 ps is below any instrument\'s 1 ps: a bare number is in ns; write the unit, as in "200 ns" or "2e-7 s"');
+    await runEnabled(page);
+    await typeInto(page, '#f-duration', '2e-7 s');
+    await page.waitForFunction(() => document.querySelector('#f-duration-warning') === null);
+    expect(await value(page, '#f-dt')).toBe('2 ns');
     // A key the spec does not have, from the JSON editor: the keys it allows as they are typed there.
     await page.locator('summary', { hasText: 'Spec JSON' }).click();
     await page.locator('#f-spec-json').fill('{"foo": 1}');
