@@ -2,7 +2,8 @@
 // ladder design of 10 000 samples x 25 members, where one evaluation takes about 0.3 s, Stop
 // pressed before its first iteration ends and again after pulses were reported; the
 // shortest-duration search on the same ladder; Stop while a large map keeps the workers busy;
-// and Run pressed while a large map computes, to the run's first convergence point. Each
+// Run pressed while a large map computes, to the run's first convergence point; and a map
+// opened while a compare keeps the analysis worker busy, to its first image. Each
 // figure is the click to the page saying so, timed inside the page.
 import type { Page } from 'playwright-core';
 import type { Harness } from '../tests/e2e/harness.ts';
@@ -106,7 +107,42 @@ export const STOP_CASES: StopCase[] = [
       return timedClick(page, 'run', 'run-iteration', '^[1-9]');
     },
   },
+  {
+    name: 'Run while a compare runs, to first point',
+    run: async (page) => {
+      await mapRunning(page, false);
+      await page.keyboard.press('Alt+4');
+      await page.waitForTimeout(300);
+      await page.keyboard.press('Alt+1');
+      return timedClick(page, 'run', 'run-iteration', '^[1-9]');
+    },
+  },
+  {
+    name: 'Map, no compare, to the coarse image',
+    run: async (page) => {
+      await mapRunning(page, false);
+      return coarseImage(page);
+    },
+  },
+  {
+    name: 'Map while a compare runs, to the coarse image',
+    run: async (page) => {
+      await mapRunning(page, false);
+      // The compare view's table (the composites and DRAG calibrated on the ladder: one long
+      // call on the analysis worker), left at once for the map.
+      await page.keyboard.press('Alt+4');
+      await page.waitForTimeout(300);
+      return coarseImage(page);
+    },
+  },
 ];
+
+/** Opens the map's view and gives the view's own time from its request to the coarse image (ms). */
+async function coarseImage(page: Page): Promise<number> {
+  await page.keyboard.press('Alt+3');
+  const handle = await page.waitForFunction(() => document.querySelector('[data-testid=map-status]')?.getAttribute('data-coarse-ms') || null, undefined, { timeout: 240_000 });
+  return Number(await handle.jsonValue());
+}
 
 /**
  * A 61 x 61 map of the ladder's pulse computing at full resolution (about 45 s of core time by

@@ -230,6 +230,10 @@ export class CoreClient {
   private readonly designerEndpoints: Endpoint[];
   private readyPromise: Promise<CoreInfo> | null = null;
   private designersPromise: Promise<void> | null = null;
+  /** Calls in flight on the analysis worker other than map parts (a compare, an export, a figure). */
+  private analysisCalls = 0;
+  /** Called whenever the analysis worker has no such call left. */
+  private readonly analysisIdle = new Set<() => void>();
   private designing = false;
   private stopRequested = false;
   private current: Running | null = null;
@@ -282,15 +286,34 @@ export class CoreClient {
     return this.designersPromise;
   }
 
-  /** The core loaded everywhere, then the spec checked on the analysis worker. */
+  /**
+   * The core loaded everywhere, then the spec checked on the analysis worker, or on the first
+   * designer while another call keeps the analysis worker busy (a compare, an export: the
+   * check would wait for it, and the run goes to the designers anyway).
+   */
   private async readyAndChecked(spec: unknown): Promise<SpecCheck> {
     await Promise.all([this.ready(), this.designersReady()]);
-    return this.analysis.checkSpec(spec);
+    const checker = this.analysisCalls > 0 ? this.designers[0] : this.analysis;
+    return checker.checkSpec(spec);
   }
 
-  /** Validates a spec with the library's rules (first error, with its field). */
+  /** A call on the analysis worker, counted: while it runs, a map's parts go to an idle designer. */
+  private async ask<T>(call: (analysis: Remote<CoreService>) => Promise<T>): Promise<T> {
+    this.analysisCalls++;
+    try {
+      return await call(this.analysis);
+    } finally {
+      if (--this.analysisCalls === 0) this.analysisIdle.forEach((wake) => wake());
+    }
+  }
+
+  /**
+   * Validates a spec with the library's rules (first error, with its field): on the analysis
+   * worker, or on a designer while another call keeps the analysis worker busy and no design
+   * runs (the form's check would wait for a compare).
+   */
   checkSpec(spec: unknown): Promise<SpecCheck> {
-    return this.analysis.checkSpec(spec);
+    return (this.analysisCalls > 0 && !this.designing ? this.designers[0] : this.analysis).checkSpec(spec);
   }
 
   /** Runs a design over the pool; `onProgress` gets batches from every worker. */
@@ -484,7 +507,7 @@ export class CoreClient {
 
   /** Figures of a pulse on the spec's ensemble. */
   async evaluate(spec: unknown, pulse: Pulse): Promise<Evaluation> {
-    return this.analysis.evaluate(spec, await sendable(pulse));
+    return this.ask(async (analysis) => analysis.evaluate(spec, await sendable(pulse)));
   }
 
   /**
@@ -516,26 +539,60 @@ export class CoreClient {
     const map: MapResult = { detuning: { ...detuning }, amplitudeError: { ...amplitudeError }, infidelity };
     const parts = mapParts(total, size);
     let next = 0;
-    // Each worker takes the next part when its last one is done; a designer stops taking parts
-    // once a design runs (the analysis worker goes on alone).
-    const pool = [this.analysis, ...this.designers.filter((d) => d !== this.analysis)].slice(0, Math.max(1, this.mapWorkers));
-    await Promise.all(
-      pool.map(async (worker, w) => {
-        while (next < parts.length) {
-          if (signal?.aborted) throw aborted(signal);
-          // A designer ended by Stop is gone (its replacement may be designing soon).
-          if (w > 0 && (this.designing || !this.designers.includes(worker))) return;
-          const [start, count] = parts[next++];
-          const part: MapPart = await this.onSurvivor(worker, async (on) => on.mapPart(target, await sendable(pulse), detuning, amplitudeError, start, count, line, system));
-          infidelity.set(part.infidelity, start);
-          if (part.leakage) {
-            map.leakage ??= new Float64Array(total).fill(NaN);
-            map.leakage.set(part.leakage, start);
-          }
-          onPart?.(map);
+    const limit = Math.max(1, this.mapWorkers);
+    const busy = new Set<Remote<CoreService>>();
+    /**
+     * Workers that may take the next part, best first: the analysis worker unless another call
+     * runs on it (a compare, an export: the part would wait behind it), then the designers
+     * while no design runs (a designer ended by Stop is gone from the list).
+     */
+    const takers = () => [
+      ...(this.analysisCalls === 0 ? [this.analysis] : []),
+      ...(this.designing ? [] : this.designers.filter((d) => d !== this.analysis)),
+    ];
+    await new Promise<void>((resolve, reject) => {
+      let failed = false;
+      const wake = () => pump();
+      const finish = (error?: unknown) => {
+        this.analysisIdle.delete(wake);
+        if (error !== undefined) {
+          failed = true;
+          reject(error);
+        } else resolve();
+      };
+      // Each idle taker takes the next part, up to `limit` at once; when none may, the analysis
+      // worker takes it all the same (queued behind its call), or the map would wait for ever.
+      const pump = (): void => {
+        if (failed) return;
+        if (signal?.aborted) return finish(aborted(signal));
+        if (next >= parts.length) {
+          if (busy.size === 0) finish();
+          return;
         }
-      }),
-    );
+        while (next < parts.length && busy.size < limit) {
+          const worker = takers().find((w) => !busy.has(w)) ?? (busy.size === 0 ? this.analysis : undefined);
+          if (!worker) break;
+          const [start, count] = parts[next++];
+          busy.add(worker);
+          this.onSurvivor(worker, async (on) => on.mapPart(target, await sendable(pulse), detuning, amplitudeError, start, count, line, system)).then(
+            (part: MapPart) => {
+              busy.delete(worker);
+              infidelity.set(part.infidelity, start);
+              if (part.leakage) {
+                map.leakage ??= new Float64Array(total).fill(NaN);
+                map.leakage.set(part.leakage, start);
+              }
+              onPart?.(map);
+              pump();
+            },
+            finish,
+          );
+        }
+      };
+      // Once the analysis worker's other calls end, it takes parts again.
+      this.analysisIdle.add(wake);
+      pump();
+    });
     if (signal?.aborted) throw aborted(signal);
     return map;
   }
@@ -576,57 +633,57 @@ export class CoreClient {
 
   /** The comparison table and cuts. */
   async compare(request: CompareRequest): Promise<CompareRow[]> {
-    return this.analysis.compare(await sendable(request));
+    return this.ask(async (analysis) => analysis.compare(await sendable(request)));
   }
 
   /** Bloch vectors after each sample for one member. */
   async trajectory(pulse: Pulse, member: Member, from: Vec3, line?: Line, system?: LadderSystem): Promise<Float64Array> {
-    return this.analysis.trajectory(await sendable(pulse), member, from, line, system);
+    return this.ask(async (analysis) => analysis.trajectory(await sendable(pulse), member, from, line, system));
   }
 
   /** Population of every level against time for one member (the drive through the line). */
   async populations(pulse: Pulse, member: Member, system: LadderSystem, from: Vec3, line?: Line): Promise<Populations> {
-    return this.analysis.populations(await sendable(pulse), member, system, from, line);
+    return this.ask(async (analysis) => analysis.populations(await sendable(pulse), member, system, from, line));
   }
 
   /** The drive the qubit sees through the line. */
   async drive(pulse: Pulse, line?: Line): Promise<QubitDrive> {
-    return this.analysis.drive(await sendable(pulse), line);
+    return this.ask(async (analysis) => analysis.drive(await sendable(pulse), line));
   }
 
   /** Bloch paths of several members, each within `tolerance` (unit sphere) of the full path. */
   async ensembleTrajectories(pulse: Pulse, members: Member[], from: Vec3, tolerance: number, line?: Line): Promise<EnsemblePaths> {
-    return this.analysis.ensembleTrajectories(await sendable(pulse), members, from, tolerance, line);
+    return this.ask(async (analysis) => analysis.ensembleTrajectories(await sendable(pulse), members, from, tolerance, line));
   }
 
   /** The held pulse's spectrum over a span of detunings, computed in the analysis worker. */
   async spectrum(pulse: Pulse, request: SpectrumRequest): Promise<Spectrum> {
-    return this.analysis.spectrum(await sendable(pulse), request);
+    return this.ask(async (analysis) => analysis.spectrum(await sendable(pulse), request));
   }
 
   /** Reads a pulse file (rejects with a PulseFormatError named error when malformed). */
   readPulse(text: string): Promise<Pulse> {
-    return this.analysis.readPulse(text);
+    return this.ask((analysis) => analysis.readPulse(text));
   }
 
   /** Reads a pulse file in the analysis worker (the page only passes it on), with progress, evaluated on `spec` when given. */
   readPulseFile(file: Blob, onProgress?: FileProgressSink, spec?: unknown): Promise<{ pulse: Pulse; evaluation?: Evaluation }> {
-    return this.analysis.readPulseFile(file, onProgress ? proxy(onProgress) : undefined, spec);
+    return this.ask((analysis) => analysis.readPulseFile(file, onProgress ? proxy(onProgress) : undefined, spec));
   }
 
   /** Pulse file text of a pulse. */
   async writePulse(pulse: Pulse): Promise<string> {
-    return this.analysis.writePulse(await sendable(pulse));
+    return this.ask(async (analysis) => analysis.writePulse(await sendable(pulse)));
   }
 
   /** The instrument waveform of a pulse as played, and its report on the judge's members (rejects with ExportError when refused). */
   async exportPreview(pulse: Pulse, settings: unknown, judge: ExportJudge | null): Promise<ExportPreview> {
-    return this.analysis.exportPreview(await sendable(pulse), settings, judge);
+    return this.ask(async (analysis) => analysis.exportPreview(await sendable(pulse), settings, judge));
   }
 
   /** The exported waveform's file bytes (and description), exactly as the command line writes them. */
   async exportFile(pulse: Pulse, settings: unknown, options: ExportFileOptions): Promise<EncodedWaveform> {
-    return this.analysis.exportFile(await sendable(pulse), settings, options);
+    return this.ask(async (analysis) => analysis.exportFile(await sendable(pulse), settings, options));
   }
 
   /** Releases the workers. */

@@ -1,6 +1,7 @@
 // A long map and the run beside it, in Debian's Chromium: the analysis worker computes a map in
 // parts of bounded core time, so Run pressed during a long ladder map checks its spec and starts
-// designing before the map ends (events in order, no timing). Screenshots in test-results/.
+// designing before the map ends; and while a long compare keeps the analysis worker busy, Run's
+// check goes to a designer (events in order, no timing). Screenshots in test-results/.
 import { describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import { skipReason } from './harness.ts';
@@ -58,6 +59,38 @@ describe.skipIf(reason !== null)('a long map beside a run', () => {
     await screenshotLooks(page, 'map-parts-run-beside-map');
     await page.getByTestId('stop').click();
     await page.waitForFunction(() => /^stopped/.test(document.querySelector('[data-testid=run-status]')?.textContent ?? ''), undefined, { timeout: 30_000 });
+    expect(consoleErrors).toEqual([]);
+    await context.close();
+  }, 600_000);
+
+  it('starts designing while a long compare keeps the analysis worker busy, before the compare ends', async () => {
+    const { page, context, consoleErrors } = await openReady(harness(), { hash: `#spec=${encodeURIComponent(JSON.stringify(LADDER))}` });
+    await page.getByTestId('run').click();
+    await page.waitForFunction(() => Number(document.querySelector('[data-testid=run-iteration]')?.textContent) >= 1, undefined, { timeout: 120_000 });
+    await page.getByTestId('stop').click();
+    await page.waitForFunction(() => /^stopped/.test(document.querySelector('[data-testid=run-status]')?.textContent ?? ''), undefined, { timeout: 30_000 });
+    // The compare view's table: the pulse, the composites and DRAG calibrated on 5 levels, one
+    // call on the analysis worker of several times a design's first iteration.
+    await page.keyboard.press('Alt+4');
+    await page.waitForTimeout(300);
+    await page.evaluate(() => {
+      const events: string[] = ((window as unknown as { events: string[] }).events = []);
+      const note = () => {
+        const iteration = Number(document.querySelector('[data-testid=run-iteration]')?.textContent);
+        if (iteration >= 1 && !events.includes('iteration')) events.push('iteration');
+        if (document.querySelectorAll('[data-testid=compare-table] tbody tr').length > 1 && !events.includes('compare')) events.push('compare');
+      };
+      new MutationObserver(note).observe(document.body, { subtree: true, childList: true, characterData: true, attributes: true });
+      (document.querySelector('[data-testid=run]') as HTMLButtonElement).click();
+    });
+    await page.waitForFunction(() => (window as unknown as { events: string[] }).events.length > 0, undefined, { timeout: 240_000 });
+    // Before, the run's spec check waited on the analysis worker for the whole compare.
+    expect(await page.evaluate(() => (window as unknown as { events: string[] }).events)).toEqual(['iteration']);
+    await screenshotLooks(page, 'map-parts-run-beside-compare');
+    await page.getByTestId('stop').click();
+    await page.waitForFunction(() => /^stopped/.test(document.querySelector('[data-testid=run-status]')?.textContent ?? ''), undefined, { timeout: 30_000 });
+    // The compare still ends, with its rows.
+    await page.waitForFunction(() => document.querySelectorAll('[data-testid=compare-table] tbody tr').length > 1, undefined, { timeout: 240_000 });
     expect(consoleErrors).toEqual([]);
     await context.close();
   }, 600_000);

@@ -13,7 +13,9 @@ import { bandRows, coarseAxis, CoreClient, designWorkerCount, mapPartPoints, map
 import { QUBIT_NS, systemCostFactor } from '../../src/core/cost.ts';
 import { cuts as libraryCuts } from '../../src/core/robustness.ts';
 import { COPY_SLICE, sendable } from '../../src/worker/transfer.ts';
-import type { ProgressBatch, ProgressSink, TrialSink } from '../../src/worker/protocol.ts';
+import type { CoreService, ProgressBatch, ProgressSink, TrialSink } from '../../src/worker/protocol.ts';
+import { library } from '../../src/worker/library.ts';
+import { createCoreService } from '../../src/worker/service.ts';
 import { closePorts, inRealmClient, serviceEndpoint } from './in-realm.ts';
 
 const client = inRealmClient();
@@ -357,6 +359,96 @@ describe('Stop while a designer is inside one long core call', () => {
     const direct = robustnessMap(target, pulse, detuning, amplitudeError);
     // The part computed again on the analysis worker: the library's values bit for bit.
     expect(Array.from(done.fine!.infidelity)).toEqual(Array.from(direct.infidelity));
+    own.dispose();
+  });
+});
+
+/**
+ * An analysis worker whose compare holds until released (as a compare with DRAG calibration on
+ * a big ladder takes seconds); every other call is the real service's. It counts its map parts.
+ */
+function holdingAnalysis(): { endpoint: Endpoint; release: () => void; parts: () => number } {
+  const channel = new MessageChannel();
+  const real = createCoreService(library);
+  let release = () => undefined as void;
+  const held = new Promise<void>((resolve) => (release = resolve));
+  let parts = 0;
+  let comparing = false;
+  // A worker does one call at a time: a part sent during the compare waits for it.
+  const service: CoreService = {
+    ...real,
+    compare: async (request) => ((comparing = true), await held, real.compare(request)),
+    mapPart: async (...args) => (parts++, comparing && (await held), real.mapPart(...args)),
+  };
+  expose(service, channel.port1);
+  stuckPorts.push(channel.port1, channel.port2);
+  return { endpoint: channel.port2, release: () => release(), parts: () => parts };
+}
+
+describe('a map while the analysis worker is busy', () => {
+  it('computes its parts on the idle designer, not behind a long compare, with the library\'s values', async () => {
+    const analysis = holdingAnalysis();
+    const own = new CoreClient(analysis.endpoint, [serviceEndpoint()]);
+    // As on two cores: one worker at a time computes map parts, leaving a core to the page.
+    own.mapWorkers = 1;
+    const target: Target = { kind: 'gate', axis: [1, 0, 0], angleRad: Math.PI / 2 };
+    const pulse: Pulse = { dt: 1e-9, i: new Float64Array(25).fill(1e7), q: new Float64Array(25), metadata: {} };
+    const detuning = { min: -2e6, max: 2e6, points: 41 };
+    const amplitudeError = { min: -0.2, max: 0.2, points: 33 };
+    let compared = false;
+    const comparing = own.compare({ spec: demoSpec(), pulses: [], composites: ['bb1'], detuning, amplitudeError, threshold: 1e-4 }).then((rows) => ((compared = true), rows));
+    const done = await own.map(target, pulse, detuning, amplitudeError);
+    expect(compared).toBe(false);
+    expect(analysis.parts()).toBe(0);
+    expect(Array.from(done.fine!.infidelity)).toEqual(Array.from(robustnessMap(target, pulse, detuning, amplitudeError).infidelity));
+    analysis.release();
+    expect((await comparing).length).toBe(1);
+    // With the analysis worker free again, a map goes there first.
+    await own.map(target, pulse, detuning, amplitudeError);
+    expect(analysis.parts()).toBeGreaterThan(0);
+    own.dispose();
+  });
+
+  it('checks the form\'s and a Run\'s spec on the designer instead of behind a long compare, and designs', async () => {
+    const analysis = holdingAnalysis();
+    const own = new CoreClient(analysis.endpoint, [serviceEndpoint()]);
+    const detuning = { min: -2e6, max: 2e6, points: 5 };
+    const amplitudeError = { min: -0.2, max: 0.2, points: 5 };
+    let compared = false;
+    const comparing = own.compare({ spec: demoSpec(), pulses: [], composites: [], detuning, amplitudeError, threshold: 1e-4 }).then(() => (compared = true));
+    // The form's check too.
+    expect((await own.checkSpec({ ...demoSpec(), duration: -1 })).ok).toBe(false);
+    const outcome = await own.design({ ...demoSpec(), optimizer: { starts: 1, seed: 2, maxIterations: 20 } }, 1);
+    expect(compared).toBe(false);
+    expect(outcome.pulse.i.length).toBe(100);
+    analysis.release();
+    await comparing;
+    own.dispose();
+  });
+
+  it('waits for the analysis worker when the designers are designing', async () => {
+    const analysis = holdingAnalysis();
+    const stuck = stuckDesigner();
+    const own = new CoreClient(analysis.endpoint, [stuck.endpoint], () => undefined, () => stuckDesigner().endpoint);
+    own.mapWorkers = 1;
+    const target: Target = { kind: 'gate', axis: [1, 0, 0], angleRad: Math.PI / 2 };
+    const pulse: Pulse = { dt: 1e-9, i: new Float64Array(25).fill(1e7), q: new Float64Array(25), metadata: {} };
+    const detuning = { min: -2e6, max: 2e6, points: 11 };
+    const amplitudeError = { min: -0.2, max: 0.2, points: 9 };
+    const run = own.design({ ...demoSpec(), segments: 4, duration: 4e-8, optimizer: { starts: 1, seed: 1 } }, 1);
+    await until(() => stuck.calls.includes('design'));
+    const comparing = own.compare({ spec: demoSpec(), pulses: [], composites: [], detuning, amplitudeError, threshold: 1e-4 });
+    let mapped = false;
+    const map = own.map(target, pulse, detuning, amplitudeError).then((m) => ((mapped = true), m));
+    await new Promise((resolve) => setTimeout(resolve, 50));
+    expect(mapped).toBe(false);
+    expect(stuck.calls).not.toContain('mapPart');
+    analysis.release();
+    await comparing;
+    const done = await map;
+    expect(Array.from(done.fine!.infidelity)).toEqual(Array.from(robustnessMap(target, pulse, detuning, amplitudeError).infidelity));
+    await own.stop();
+    await expect(run).rejects.toBeInstanceOf(StoppedBeforeAnyPulse);
     own.dispose();
   });
 });
