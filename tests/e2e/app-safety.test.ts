@@ -111,6 +111,38 @@ describe.skipIf(reason !== null)('what the app lets slip, in Chromium', () => {
     expect(await focused()).toMatch(/^f-detuning-mode=/);
   }, 120_000);
 
+  it('undoes with Ctrl+Z the latest action, a removed pulse included, before older spec edits', async () => {
+    const { page } = await fresh();
+    const rabi = (text: string) => page.waitForFunction((t) => (document.querySelector('#f-rabi') as HTMLInputElement).value === t, text);
+    const listed = () => page.locator('#pulse-picker option', { hasText: 'keep.json' }).count();
+    await page.getByTestId('open-pulse').setInputFiles({ name: 'keep.json', mimeType: 'application/json', buffer: Buffer.from(JSON.stringify({ dt: 2e-9, i: new Array(100).fill(1e6), q: new Array(100).fill(0) })) });
+    await page.getByTestId('notice').filter({ hasText: 'Opened keep.json' }).waitFor();
+    await typeInto(page, '#f-rabi', '12 MHz');
+    await page.keyboard.press('Alt+2');
+    await page.getByRole('button', { name: 'Remove' }).click();
+    await page.getByTestId('notice').filter({ hasText: 'Removed keep.json' }).waitFor();
+    // The removal came last: Ctrl+Z brings the pulse back and leaves the Peak Rabi edit alone.
+    await page.locator('h1').click();
+    await page.keyboard.press('Control+z');
+    await page.locator('#pulse-picker option', { hasText: 'keep.json' }).waitFor({ state: 'attached' });
+    expect(await page.locator('#f-rabi').inputValue()).toBe('12 MHz');
+    // The next Ctrl+Z goes on to the spec edit.
+    await page.keyboard.press('Control+z');
+    await rabi('10 MHz');
+    expect(await listed()).toBe(1);
+    // A spec edit made after a removal comes first.
+    await page.getByRole('button', { name: 'Remove' }).click();
+    await page.getByTestId('notice').filter({ hasText: 'Removed keep.json' }).waitFor();
+    await typeInto(page, '#f-rabi', '14 MHz');
+    await page.locator('h1').click();
+    await page.keyboard.press('Control+z');
+    await rabi('10 MHz');
+    expect(await listed()).toBe(0);
+    // The notice still brings the pulse back.
+    await page.getByTestId('notice-action').click();
+    await page.locator('#pulse-picker option', { hasText: 'keep.json' }).waitFor({ state: 'attached' });
+  }, 120_000);
+
   it('refuses what the core cannot compute, in the field\'s own words, and warns on what is odd', async () => {
     const { page } = await fresh();
     // Peak Rabi 1e30 Hz: 2e21 turns within one 2 ns sample (the core's phase is lost beyond 1e6).

@@ -125,7 +125,29 @@ export class Session {
   selectedId = $state<string | null>(null);
   view = $state<ViewId>('design');
   settings = $state.raw<ViewSettings>(defaultSettings());
-  notice = $state.raw<Notice | null>(null);
+  #notice = $state.raw<Notice | null>(null);
+  /** The spec edits remembered when the notice was shown: while no later one came, its Undo is the latest action's. */
+  private noticeAfterEdits = 0;
+  private editsRemembered = 0;
+
+  get notice(): Notice | null {
+    return this.#notice;
+  }
+
+  set notice(notice: Notice | null) {
+    this.#notice = notice;
+    this.noticeAfterEdits = this.editsRemembered;
+  }
+
+  /**
+   * Ctrl+Z: undoes the latest action. That is the one the notice offers to undo (a pulse
+   * removed, a demo or a file loaded) while no spec edit came after it, else the last spec edit.
+   */
+  undoLatest(): void {
+    const action = this.#notice?.action;
+    if (action?.label === 'Undo' && this.noticeAfterEdits === this.editsRemembered) action.run();
+    else this.undo();
+  }
   composites = $state.raw<CompositeChoice[]>([]);
   ready = $state(false);
   /**
@@ -369,6 +391,7 @@ export class Session {
   }
 
   private remember(): void {
+    this.editsRemembered++;
     this.past = [...this.past.slice(-(HISTORY_LENGTH - 1)), this.spec];
     this.future = [];
   }
