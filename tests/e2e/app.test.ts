@@ -102,6 +102,14 @@ describe.skipIf(reason !== null)('the app in Chromium', () => {
     await page.waitForFunction(() => !(document.querySelector('[data-testid=run]') as HTMLButtonElement).disabled);
     await page.getByTestId('run').click();
     await page.waitForFunction(() => Number(document.querySelector('[data-testid=run-iteration]')?.textContent) > 20);
+    // Esc over the docs, opened meanwhile, closes them and leaves the run going.
+    await page.getByTestId('open-docs').click();
+    await page.getByTestId('docs').waitFor();
+    await page.keyboard.press('Escape');
+    await page.getByTestId('docs').waitFor({ state: 'hidden' });
+    const before = await figure(page, 'run-iteration');
+    await page.waitForFunction((n) => Number(document.querySelector('[data-testid=run-iteration]')?.textContent) > n, before, { timeout: 30_000 });
+    expect(await page.getByTestId('run-status').textContent()).not.toMatch(/^stopped/);
     await page.keyboard.press('Escape');
     const status = await runToEnd(page, 30_000);
     expect(status).toBe('stopped, best pulse kept');
