@@ -75,7 +75,7 @@ export function inFormWords(error: ErrorInfo, table: Record<string, FieldWords> 
   // Other fields named in the message ("at least minLength (4)"), by their labels; a list of
   // the keys a JSON object allows keeps them as they are typed there.
   if (!text.includes('unknown key')) for (const [key, other] of Object.entries(table)) {
-    if (/^[a-zA-Z]+$/.test(key) && key !== error.field) text = text.replace(new RegExp(`\\b${key}\\b`, 'g'), other.label);
+    if (/^[a-zA-Z]+$/.test(key)) text = text.replace(new RegExp(`\\b${key}\\b`, 'g'), other.label);
   }
   // A value the spec lacks: said as the form says it of an empty field.
   text = text.replace('missing value is not allowed; required: ', 'a value is required: ');
@@ -87,7 +87,8 @@ export function inFormWords(error: ErrorInfo, table: Record<string, FieldWords> 
     return rule.replace(bound, (number) => formatQuantity(Number(number), UNIT_OF[unit]!));
   });
   // Bounds the library gives in Hz or seconds, printed in engineering units.
-  return text.replace(/(-?\d+(?:\.\d+)?(?:e[+-]?\d+)?) (Hz|s)\b/g, (all, number: string, unit: string) => formatQuantity(Number(number), UNIT_OF[unit]!));
+  // Six digits at most: a peak the library prints as 9218246.533461157 Hz is 9.21825 MHz.
+  return text.replace(/(-?\d+(?:\.\d+)?(?:e[+-]?\d+)?) (Hz|s)\b/g, (all, number: string, unit: string) => formatQuantity(Number(Number(number).toPrecision(6)), UNIT_OF[unit]!));
 }
 
 /** Most turns of the qubit within one sample the core computes to full accuracy. */

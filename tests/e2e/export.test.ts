@@ -251,6 +251,9 @@ describe.skipIf(reason !== null)('the export panel in Chromium', () => {
     const refusal = (await page.getByTestId('export-refusal').textContent()) ?? '';
     expect(refusal).not.toContain('ExportError');
     expect(refusal).toContain('above the full scale of 8 MHz; the waveform is not written (it is never clipped)');
+    // The peak in six digits at most, and the field by its label (waveform.ts prints Hz in full and "fullScale").
+    expect(refusal).toMatch(/reaches \d\.\d{1,5} MHz \(pulse sample \d+\)/);
+    expect(refusal).toContain('or give Full scale as the calibrated Rabi frequency');
     expect(await download.isDisabled()).toBe(true);
     expect(await page.getByTestId('export-add').isDisabled()).toBe(true);
     await screenshot(page, 'e2e-export-05-refused');
