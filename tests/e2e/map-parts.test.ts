@@ -26,13 +26,20 @@ const status = (page: Page) => page.evaluate(() => document.querySelector('[data
 describe.skipIf(reason !== null)('a long map beside a run', () => {
   const harness = useHarness();
 
-  it('starts designing during a long ladder map before the map ends', async () => {
-    const { page, context, consoleErrors } = await openReady(harness(), { hash: `#spec=${encodeURIComponent(JSON.stringify(LADDER))}` });
-    // A pulse to map: the design stopped after its first report.
+  /** The ladder spec opened from a link, and a pulse of it: its design stopped after the first report. */
+  async function ladderPulse() {
+    const opened = await openReady(harness(), { hash: `#spec=${encodeURIComponent(JSON.stringify(LADDER))}` });
+    const { page } = opened;
     await page.getByTestId('run').click();
     await page.waitForFunction(() => Number(document.querySelector('[data-testid=run-iteration]')?.textContent) >= 1, undefined, { timeout: 120_000 });
     await page.getByTestId('stop').click();
     await page.waitForFunction(() => /^stopped/.test(document.querySelector('[data-testid=run-status]')?.textContent ?? ''), undefined, { timeout: 30_000 });
+    return opened;
+  }
+
+  it('starts designing during a long ladder map before the map ends', async () => {
+    const { page, context, consoleErrors } = await ladderPulse();
+    // A pulse to map.
     expect(await status(page)).toBe('stopped, best pulse kept');
     // 81 x 81 points of 2000 samples on 5 levels: about 16 s of core time (src/core/cost.ts), in
     // parts of about 50 ms each.
@@ -64,11 +71,7 @@ describe.skipIf(reason !== null)('a long map beside a run', () => {
   }, 600_000);
 
   it('starts designing while a long compare keeps the analysis worker busy, before the compare ends', async () => {
-    const { page, context, consoleErrors } = await openReady(harness(), { hash: `#spec=${encodeURIComponent(JSON.stringify(LADDER))}` });
-    await page.getByTestId('run').click();
-    await page.waitForFunction(() => Number(document.querySelector('[data-testid=run-iteration]')?.textContent) >= 1, undefined, { timeout: 120_000 });
-    await page.getByTestId('stop').click();
-    await page.waitForFunction(() => /^stopped/.test(document.querySelector('[data-testid=run-status]')?.textContent ?? ''), undefined, { timeout: 30_000 });
+    const { page, context, consoleErrors } = await ladderPulse();
     // The compare view's table: the pulse, the composites and DRAG calibrated on 5 levels, one
     // call on the analysis worker of several times a design's first iteration.
     await page.keyboard.press('Alt+4');
