@@ -309,26 +309,15 @@ export class Session {
         this.notice = { kind: 'error', text: `The saved session could not be restored (${(error as Error).message}); starting from the demo.` };
       }
     }
-    try {
-      const linked = specFromHash(hash);
-      // A reload keeps the link in the address: the spec it carries and the autosave's being
-      // the same, there is nothing to load and no step to undo.
-      if (linked && JSON.stringify(linked) !== JSON.stringify(this.spec)) {
-        // The autosaved spec (edited after the link was opened, say) stays one Ctrl+Z away.
-        this.remember();
-        this.spec = linked;
-        this.specRevision++;
-        this.notice = resumed
-          ? {
-            kind: 'info',
-            text: 'Spec loaded from the link; the spec of your last session is one Undo away.',
-            action: { label: 'Undo', run: () => { this.undo(); this.notice = null; } },
-          }
-          : { kind: 'info', text: 'Spec loaded from the link.' };
-      }
-    } catch (error) {
-      this.notice = { kind: 'error', text: `${(error as Error).message}; the link was ignored.` };
-    }
+    // A reload keeps the link in the address: the spec it carries and the autosave's being
+    // the same, there is nothing to load and no step to undo.
+    this.applyLink(hash, (linked) => {
+      // The autosaved spec (edited after the link was opened, say) stays one Ctrl+Z away.
+      this.remember();
+      this.spec = linked;
+      this.specRevision++;
+      return resumed ? this.undoNotice('Spec loaded from the link; the spec of your last session is one Undo away.') : { kind: 'info', text: 'Spec loaded from the link.' };
+    });
   }
 
   /**
@@ -336,18 +325,25 @@ export class Session {
    * loaded again, so its spec is applied here; the spec it replaces is one Undo away.
    */
   openLink(hash: string): void {
+    this.applyLink(hash, (linked) => {
+      this.replaceSpec(linked);
+      return this.undoNotice('Spec loaded from the link; your spec is one Undo away.');
+    });
+  }
+
+  /** The spec of a link applied by `apply` (which gives the notice to show), unless it is the spec already there; a malformed link is named and ignored. */
+  private applyLink(hash: string, apply: (linked: SpecJson) => Notice): void {
     try {
       const linked = specFromHash(hash);
-      if (!linked || JSON.stringify(linked) === JSON.stringify(this.spec)) return;
-      this.replaceSpec(linked);
-      this.notice = {
-        kind: 'info',
-        text: 'Spec loaded from the link; your spec is one Undo away.',
-        action: { label: 'Undo', run: () => { this.undo(); this.notice = null; } },
-      };
+      if (linked && JSON.stringify(linked) !== JSON.stringify(this.spec)) this.notice = apply(linked);
     } catch (error) {
       this.notice = { kind: 'error', text: `${(error as Error).message}; the link was ignored.` };
     }
+  }
+
+  /** A notice saying what replaced the spec, whose Undo (and Ctrl+Z) brings the spec before it back. */
+  undoNotice(text: string): Notice {
+    return { kind: 'info', text, action: { label: 'Undo', run: () => { this.undo(); this.notice = null; } } };
   }
 
   /** Replaces one spec value from the form (one undo step per field edit, keystrokes merged). */

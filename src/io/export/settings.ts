@@ -131,10 +131,10 @@ export function parseExportSettings(input: unknown): ExportSettings {
   const get = <K extends keyof ExportSettings>(key: K): unknown =>
     obj[key] === undefined ? (EXPORT_DEFAULTS as Partial<ExportSettings>)[key] : obj[key];
 
-  const sampleRate = positiveNumber('sampleRate', get('sampleRate'), 'the instrument sample rate');
+  const sampleRate = positiveHz('sampleRate', get('sampleRate'), 'the instrument sample rate');
   const bits = get('bits');
   if (bits !== 12 && bits !== 14 && bits !== 16) throw new SpecError('bits', bits, 'one of 12, 14, 16 (signed DAC codes)');
-  const fullScale = positiveNumber('fullScale', get('fullScale'), 'the Rabi frequency that the full-scale code produces');
+  const fullScale = positiveHz('fullScale', get('fullScale'), 'the Rabi frequency that the full-scale code produces');
   const resample = oneOf('resample', get('resample'), RESAMPLE_METHODS);
   const peakLimit = oneOf('peakLimit', get('peakLimit'), ['amplitude', 'per-channel'] as const);
   const granularity = wholeNumber('granularity', get('granularity'), 1, 'a whole number of samples >= 1 (the block size)');
@@ -188,7 +188,8 @@ export function parseExportSettings(input: unknown): ExportSettings {
   };
 }
 
-function positiveNumber(field: string, value: unknown, what: string): number {
+/** A frequency in Hz above zero (the sample rate, the full scale's Rabi frequency). */
+function positiveHz(field: string, value: unknown, what: string): number {
   if (typeof value !== 'number' || !Number.isFinite(value) || !(value > 0)) {
     throw new SpecError(field, value, `a finite number > 0 Hz: ${what}`);
   }
